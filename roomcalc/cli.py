@@ -1,0 +1,148 @@
+"""The ``roomcalc`` command line. Imports the terminal interface only inside the function that
+starts it, so ``roomcalc report`` never loads Textual."""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from pathlib import Path
+
+from roomcalc import __version__
+
+EXIT_OK, EXIT_INPUT = 0, 2
+
+
+def _parser() -> argparse.ArgumentParser:
+    common = argparse.ArgumentParser(add_help=False)
+    common.add_argument("--catalog", action="append", default=[], metavar="PATH",
+                        help="an extra material catalogue file or folder (may be repeated)")
+    fmt = argparse.ArgumentParser(add_help=False)
+    fmt.add_argument("--format", choices=("text", "markdown", "json", "csv"), default="text",
+                     help="output format (json and csv are always in SI units)")
+
+    p = argparse.ArgumentParser(
+        prog="roomcalc",
+        description="Estimate what a room does to sound, per octave band, and what treatment "
+                    "changes: reverberation time, room constant, levels, critical distance.")
+    p.add_argument("--version", action="version", version=f"roomcalc {__version__}")
+    sub = p.add_subparsers(dest="command", metavar="COMMAND")
+
+    r = sub.add_parser("report", parents=[common, fmt], help="the full per-band report of a room")
+    r.add_argument("file", nargs="?", help="room file (.toml)")
+    r.add_argument("--demo", action="store_true", help="use the built-in demo room")
+    r.add_argument("--method", choices=("sabine", "eyring", "millington", "fitzroy",
+                                        "arau_puchades"),
+                   help="reverberation formula to base the summary on (default: the one "
+                        "recommended for the room)")
+    r.add_argument("--reverberant", choices=("classic", "barron-lee"), default="classic",
+                   help="model of the reverberant level: diffuse field 4/R (classic) or "
+                        "Barron & Lee's revised theory")
+
+    c = sub.add_parser("check", parents=[common], help="check a room file and say what is wrong")
+    c.add_argument("file", nargs="?", help="room file (.toml)")
+    c.add_argument("--demo", action="store_true", help="check the built-in demo room")
+
+    k = sub.add_parser("compare", parents=[common, fmt],
+                       help="before and after: two rooms, e.g. a room and its treated copy")
+    k.add_argument("before", nargs="?", help="room file before treatment")
+    k.add_argument("after", nargs="?", help="room file after treatment")
+    k.add_argument("--demo", action="store_true",
+                   help="compare the demo room with its treated copy")
+
+    m = sub.add_parser("materials", parents=[common, fmt], help="search the material catalogue")
+    m.add_argument("words", nargs="*", help="words that must all appear (id, name, notes)")
+    m.add_argument("--category", help="only this category (part of its name is enough)")
+    m.add_argument("--kind", choices=("surface", "object"), help="only this kind")
+    return p
+
+
+def _load(path, catalog):
+    from roomcalc.io.roomfile import read_room
+
+    return read_room(path, catalog)
+
+
+def main(argv=None) -> int:
+    args = _parser().parse_args(argv)
+    if args.command is None:
+        _parser().print_help()
+        return EXIT_OK
+    from roomcalc.io.errors import RoomFileError
+
+    try:
+        return _run(args)
+    except RoomFileError as exc:
+        for problem in exc.problems:
+            print(problem, file=sys.stderr)
+        n = len(exc.problems)
+        print(f"roomcalc: {n} problem{'s' if n != 1 else ''} found; nothing was computed.",
+              file=sys.stderr)
+        return EXIT_INPUT
+    except ValueError as exc:
+        print(f"roomcalc: {exc}", file=sys.stderr)
+        return EXIT_INPUT
+    except BrokenPipeError:
+        return EXIT_OK
+    except KeyboardInterrupt:
+        return 130
+
+
+def _need_file(args, name: str):
+    value = getattr(args, name)
+    if value is None and not args.demo:
+        print(f"roomcalc {args.command}: give a room file or --demo", file=sys.stderr)
+        return None
+    return value
+
+
+def _run(args) -> int:
+    from roomcalc.engine.analysis import compare, evaluate
+    from roomcalc.io import paths, report
+    from roomcalc.io.catalog import load_catalog
+
+    catalog = load_catalog(args.catalog)
+
+    if args.command == "materials":
+        mats = catalog.search(" ".join(args.words), args.category, args.kind)
+        sys.stdout.write(report.materials_text(mats, args.format))
+        return EXIT_OK
+
+    if args.command in ("report", "check"):
+        if args.demo:
+            path = paths.demo_room_path()
+        else:
+            path = _need_file(args, "file")
+            if path is None:
+                return EXIT_INPUT
+        spec, room = _load(path, catalog)
+        shown = "built-in demo room" if args.demo else str(path)
+        if args.command == "check":
+            result = evaluate(room)
+            print(f"{shown}: ok ({len(room.surfaces)} surfaces, {len(room.objects)} objects, "
+                  f"{len(room.sources)} sources, {len(room.receivers)} receivers)")
+            for w in result.warnings:
+                print(report._wrap(w.message, "  warning: ", "    "))
+            return EXIT_OK
+        result = evaluate(room, reverberant_model=args.reverberant, method=args.method)
+        sys.stdout.write(report.REPORTERS[args.format](result, shown, spec.unit_system))
+        return EXIT_OK
+
+    if args.command == "compare":
+        if args.demo:
+            before, after = paths.demo_room_path(), paths.demo_treated_path()
+        elif args.before is None or args.after is None:
+            print("roomcalc compare: give two room files (BEFORE AFTER) or --demo",
+                  file=sys.stderr)
+            return EXIT_INPUT
+        else:
+            before, after = args.before, args.after
+        rb = evaluate(_load(before, catalog)[1])
+        ra = evaluate(_load(after, catalog)[1])
+        names = (Path(before).name, Path(after).name)
+        sys.stdout.write(report.compare_text(compare(rb, ra), names, args.format))
+        return EXIT_OK
+    return EXIT_INPUT  # pragma: no cover - argparse rejects unknown commands
+
+
+if __name__ == "__main__":  # pragma: no cover
+    raise SystemExit(main())

@@ -1,0 +1,223 @@
+"""Steady sound field: room constant, critical distance and levels from direct plus reverberant sound.
+
+Levels are sound pressure levels re 20 uPa from sound power levels re 1 pW, with no rho-c correction
+(the +10 lg(rho c / 400) term, about +0.1 dB, is left out; docs/methods.md says so).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from roomcalc.engine.bands import db_from_ratio
+
+#: Directivity factor Q of a source by where it stands (common practice).
+PLACEMENT_Q = {"free": 1.0, "surface": 2.0, "edge": 4.0, "corner": 8.0}
+
+
+def _check(name, x, *, low=0.0, inclusive=False, high=None):
+    x = np.asarray(x, dtype=float)
+    ok = np.isfinite(x) & ((x >= low) if inclusive else (x > low))
+    if high is not None:
+        ok &= x < high
+    if not np.all(ok):
+        rng = f"{'>=' if inclusive else '>'} {low:g}" + (f" and < {high:g}" if high is not None else "")
+        raise ValueError(f"{name}: must be finite and {rng}")
+    return x
+
+
+def mean_alpha_with_air(surface_area, absorption_area, volume, m=0.0) -> np.ndarray:
+    """Mean absorption coefficient including air, abar_t = (A + 4 m V) / S.
+
+    References
+    ----------
+    .. [1] L. L. Beranek, Acoustics (1954), ch. 10.
+    """
+    s = _check("surface_area", surface_area)
+    a = _check("absorption_area", absorption_area, inclusive=True)
+    v = _check("volume", volume)
+    m = _check("m", m, inclusive=True)
+    return (a + 4.0 * m * v) / s
+
+
+def room_constant(surface_area, mean_alpha) -> np.ndarray:
+    """Room constant R of the diffuse reverberant field.
+
+    Parameters
+    ----------
+    surface_area : array_like -- total surface area S [m^2]
+    mean_alpha : array_like -- mean coefficient abar_t including air, 0 < abar_t < 1
+
+    Returns
+    -------
+    ndarray -- R [m^2]
+
+    Notes
+    -----
+    .. math:: R = \\frac{S \\bar\\alpha_t}{1 - \\bar\\alpha_t}, \\quad
+              \\bar\\alpha_t = \\frac{A + 4 m V}{S}
+
+    References
+    ----------
+    .. [1] L. L. Beranek, Acoustics (1954), ch. 10, eq. (10.26).
+
+    Examples
+    --------
+    >>> round(float(room_constant(100.0, 0.2)), 6)
+    25.0
+    """
+    s = _check("surface_area", surface_area)
+    a = _check("mean_alpha", mean_alpha, high=1.0)
+    return s * a / (1.0 - a)
+
+
+def critical_distance(directivity, room_constant_m2) -> np.ndarray:
+    """Critical distance, where direct and reverberant energy are equal.
+
+    Parameters
+    ----------
+    directivity : array_like -- directivity factor Q of the source, > 0
+    room_constant_m2 : array_like -- room constant R [m^2]
+
+    Returns
+    -------
+    ndarray -- r_c [m]
+
+    Notes
+    -----
+    .. math:: r_c = \\sqrt{\\frac{Q R}{16 \\pi}}
+
+    from :math:`Q / (4\\pi r^2) = 4 / R`.
+
+    References
+    ----------
+    .. [1] L. L. Beranek, Acoustics (1954), ch. 10; Bies, Hansen & Howard, Engineering Noise
+       Control, 5th ed. (2017), sec. 6.4.
+
+    Examples
+    --------
+    >>> round(float(critical_distance(2.0, 50.0)), 4)
+    1.4105
+    """
+    q = _check("directivity", directivity)
+    r = _check("room_constant_m2", room_constant_m2)
+    return np.sqrt(q * r / (16.0 * np.pi))
+
+
+def direct_term(directivity, distance_m) -> np.ndarray:
+    """Direct-field energy term Q / (4 pi r^2) [1/m^2] (inverse-square law)."""
+    q = _check("directivity", directivity)
+    r = _check("distance_m", distance_m)
+    return q / (4.0 * np.pi * r ** 2)
+
+
+def reverberant_term(room_constant_m2) -> np.ndarray:
+    """Diffuse reverberant-field energy term 4 / R [1/m^2]."""
+    r = _check("room_constant_m2", room_constant_m2)
+    return 4.0 / r
+
+
+def levels(sound_power_db, directivity, distance_m, room_constant_m2):
+    """Sound pressure level from a source: direct, reverberant and total.
+
+    Parameters
+    ----------
+    sound_power_db : array_like -- sound power level Lw [dB re 1 pW]
+    directivity : array_like -- directivity factor Q
+    distance_m : array_like -- source-receiver distance r [m], > 0
+    room_constant_m2 : array_like -- room constant R [m^2]
+
+    Returns
+    -------
+    (total, direct, reverberant) : tuple of ndarray -- Lp [dB re 20 uPa], broadcast over inputs
+
+    Notes
+    -----
+    .. math:: L_p = L_w + 10 \\lg\\left(\\frac{Q}{4 \\pi r^2} + \\frac{4}{R}\\right)
+
+    with the direct part :math:`L_w + 10\\lg(Q / 4\\pi r^2)` and the reverberant part
+    :math:`L_w + 10\\lg(4/R)`. No rho-c correction is applied.
+
+    References
+    ----------
+    .. [1] L. L. Beranek, Acoustics (1954), ch. 10, eq. (10.29); Bies, Hansen & Howard,
+       Engineering Noise Control, 5th ed. (2017), eq. (6.44).
+
+    Examples
+    --------
+    >>> [round(float(x), 2) for x in levels(90.0, 2.0, 2.0, 50.0)]
+    [80.78, 76.0, 79.03]
+    """
+    lw = np.asarray(sound_power_db, dtype=float)
+    d = direct_term(directivity, distance_m)
+    rv = reverberant_term(room_constant_m2)
+    return lw + db_from_ratio(d + rv), lw + db_from_ratio(d), lw + db_from_ratio(rv * np.ones_like(d))
+
+
+def barron_lee_reverberant_term(rt60, volume, distance_m) -> np.ndarray:
+    """Reverberant energy term by Barron & Lee's revised theory [1/m^2].
+
+    Parameters
+    ----------
+    rt60 : array_like -- reverberation time T [s]
+    volume : array_like -- room volume V [m^3]
+    distance_m : array_like -- source-receiver distance r [m]
+
+    Returns
+    -------
+    ndarray -- reverberant (early + late) energy, in the units of Q / (4 pi r^2), to replace 4/R
+
+    Notes
+    -----
+    Relative to the direct sound of an omnidirectional source at 10 m, the reflected energy is
+
+    .. math:: \\frac{31200\\, T}{V} e^{-0.04 r / T}
+
+    (the sum of the early part, with factor :math:`1 - e^{-1.11/T}`, and the late part, with
+    :math:`e^{-1.11/T}`). The direct sound at 10 m is :math:`1 / (4 \\pi \\cdot 100)`, so the term
+    that replaces :math:`4/R` is :math:`31200\\, T\\, e^{-0.04 r/T} / (400 \\pi V)`. For small
+    absorption it tends to 24.8 T / V, which is 4/R with R = 0.161 V / T.
+
+    References
+    ----------
+    .. [1] M. Barron & L.-J. Lee, "Energy relations in concert auditoriums. I",
+       J. Acoust. Soc. Am. 84 (1988) 618 (from memory; not checked against a copy).
+
+    Examples
+    --------
+    >>> round(float(barron_lee_reverberant_term(1.0, 1000.0, 0.0)), 6)
+    0.024828
+    """
+    t = _check("rt60", rt60)
+    v = _check("volume", volume)
+    r = _check("distance_m", distance_m, inclusive=True)
+    return 31200.0 * t * np.exp(-0.04 * r / t) / (400.0 * np.pi * v)
+
+
+def distance_curve(sound_power_db, directivity, distances_m, room_constant_m2=None, *,
+                   rt60=None, volume=None, model="classic"):
+    """Level against distance for one source, for every band: direct, reverberant and total.
+
+    Parameters
+    ----------
+    sound_power_db : array_like, shape (bands,) -- Lw [dB re 1 pW]
+    directivity : float -- Q
+    distances_m : array_like, shape (points,) -- distances r [m], > 0
+    room_constant_m2 : array_like, shape (bands,) -- R [m^2] (model "classic")
+    rt60, volume : per-band T [s] and V [m^3] (model "barron-lee")
+    model : "classic" (4/R) or "barron-lee"
+
+    Returns
+    -------
+    (total, direct, reverberant) : tuple of ndarray, shape (points, bands) [dB]
+    """
+    r = _check("distances_m", distances_m)[:, None]
+    lw = np.asarray(sound_power_db, dtype=float)[None, :]
+    d = direct_term(directivity, r)
+    if model == "classic":
+        rv = reverberant_term(room_constant_m2)[None, :] * np.ones_like(d)
+    elif model == "barron-lee":
+        rv = barron_lee_reverberant_term(np.asarray(rt60, dtype=float)[None, :], volume, r)
+    else:
+        raise ValueError(f"model: {model!r} is not one of 'classic', 'barron-lee'")
+    d = d * np.ones_like(rv)
+    return lw + db_from_ratio(d + rv), lw + db_from_ratio(d), lw + db_from_ratio(rv)

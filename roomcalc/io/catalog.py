@@ -1,0 +1,214 @@
+"""The material catalogue: built-in TOML files, user files, and a room's inline materials."""
+
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+
+from roomcalc.engine.bands import ALLOWED_BANDS_HZ, DEFAULT_BANDS_HZ
+from roomcalc.engine.ratings import WeightedAlpha, nrc, saa_octave_estimate, weighted_alpha
+from roomcalc.io import paths
+from roomcalc.io.checks import Checker, read_toml
+from roomcalc.io.errors import Problem, RoomFileError
+
+ID_PATTERN = re.compile(r"^[a-z0-9]+(-[a-z0-9]+)*$")
+KINDS = ("surface", "object")
+CATEGORIES = ("hard surfaces", "floors", "ceilings", "glazing and doors", "porous panels",
+              "foams", "curtains", "carpets", "seats and people", "low-frequency absorbers",
+              "furniture", "user")
+ENTRY_KEYS = ("id", "name", "category", "kind", "values", "source", "notes")
+#: Largest surface coefficient accepted (test reports show values a little above 1).
+ALPHA_MAX = 1.2
+
+
+@dataclass(frozen=True)
+class Material:
+    """A catalogue entry. ``values`` maps band [Hz] to alpha (surface) or m^2 per unit (object)."""
+
+    id: str
+    name: str
+    category: str
+    kind: str
+    values: dict[int, float]
+    source: str
+    notes: str = ""
+    file: str = ""
+
+    def values_for(self, bands_hz) -> np.ndarray:
+        """Values at the given bands; KeyError lists the bands this entry lacks."""
+        missing = [b for b in bands_hz if b not in self.values]
+        if missing:
+            raise KeyError(missing)
+        return np.array([self.values[b] for b in bands_hz], dtype=float)
+
+    @property
+    def bands_text(self) -> str:
+        b = sorted(self.values)
+        return f"{b[0]}-{b[-1]} Hz"
+
+    def ratings(self) -> tuple[float, float, WeightedAlpha] | None:
+        """(NRC, SAA octave estimate, alpha_w) for a surface material; None for objects."""
+        if self.kind != "surface":
+            return None
+        bands = list(DEFAULT_BANDS_HZ)
+        a = self.values_for(bands)
+        return float(nrc(bands, a)), float(saa_octave_estimate(bands, a)), \
+            weighted_alpha(bands, a)
+
+
+@dataclass
+class Catalog:
+    """Materials by id."""
+
+    materials: dict[str, Material] = field(default_factory=dict)
+
+    def __contains__(self, mid: str) -> bool:
+        return mid in self.materials
+
+    def __getitem__(self, mid: str) -> Material:
+        return self.materials[mid]
+
+    def __len__(self) -> int:
+        return len(self.materials)
+
+    def get(self, mid: str):
+        return self.materials.get(mid)
+
+    def ids(self, kind: str | None = None) -> list[str]:
+        return [m.id for m in self.materials.values() if kind is None or m.kind == kind]
+
+    def with_materials(self, extra: list[Material]) -> "Catalog":
+        """A copy with more materials; an id already present is an error naming both files."""
+        merged = dict(self.materials)
+        problems = []
+        for m in extra:
+            if m.id in merged:
+                problems.append(Problem(m.file, f"materials id '{m.id}'",
+                                        f"is already defined in {merged[m.id].file}"))
+            else:
+                merged[m.id] = m
+        if problems:
+            raise RoomFileError(problems)
+        return Catalog(merged)
+
+    def search(self, words: str = "", category: str | None = None,
+               kind: str | None = None) -> list[Material]:
+        """Materials whose id, name, category or notes contain every word (any case)."""
+        terms = [w.lower() for w in words.split()]
+        out = []
+        for m in self.materials.values():
+            if category and category.lower() not in m.category.lower():
+                continue
+            if kind and m.kind != kind:
+                continue
+            hay = f"{m.id} {m.name} {m.category} {m.notes}".lower()
+            if all(t in hay for t in terms):
+                out.append(m)
+        return sorted(out, key=lambda m: (m.category, m.name))
+
+    def categories(self) -> list[str]:
+        return sorted({m.category for m in self.materials.values()})
+
+
+def parse_entries(entries: list, chk: Checker, where: str = "materials",
+                  allow_user_category=True) -> list[Material]:
+    """Check catalogue-format entries (catalogue files and a room's inline [[materials]])."""
+    out = []
+    for i, e in enumerate(entries):
+        w = f"{where}[{i}]"
+        before = len(chk.problems)
+        chk.keys(e, w, ENTRY_KEYS)
+        mid = chk.text(e, "id", w, required=True)
+        if mid is not None and not ID_PATTERN.match(mid):
+            chk.add(f"{w}.id", f"'{mid}' must be lowercase words joined by hyphens "
+                    "(letters a-z, digits), e.g. 'mineral-wool-50mm'")
+        name = chk.text(e, "name", w, required=True)
+        cats = CATEGORIES if allow_user_category else CATEGORIES[:-1]
+        cat = chk.text(e, "category", w, default="user", choices=cats)
+        kind = chk.text(e, "kind", w, required=True, choices=KINDS)
+        source = chk.text(e, "source", w, required=True)
+        notes = chk.text(e, "notes", w, default="")
+        vals = e.get("values")
+        values: dict[int, float] = {}
+        if vals is None:
+            chk.add(f"{w}.values", "is required: a table of band (Hz) = value, 125 to 4000 Hz")
+        elif not isinstance(vals, dict):
+            chk.add(f"{w}.values", "must be a table such as { 125 = 0.10, 250 = 0.20, ... }")
+        else:
+            high = ALPHA_MAX if kind == "surface" else None
+            for k, x in vals.items():
+                try:
+                    band = int(k)
+                except ValueError:
+                    band = None
+                if band not in ALLOWED_BANDS_HZ:
+                    chk.add(f"{w}.values.{k}", f"'{k}' is not a band; allowed: "
+                            f"{', '.join(map(str, ALLOWED_BANDS_HZ))} Hz")
+                    continue
+                y = chk.value(x, f"{w}.values.{k}", low=0.0, high=high,
+                              unit="(alpha)" if kind == "surface" else "m^2")
+                if y is not None:
+                    values[band] = float(y)
+            missing = [b for b in DEFAULT_BANDS_HZ if str(b) not in vals]
+            if missing:
+                chk.add(f"{w}.values", f"missing bands {', '.join(map(str, missing))} Hz "
+                        "(125 to 4000 Hz are required)")
+        if len(chk.problems) == before:
+            out.append(Material(mid, name, cat, kind, values, source, notes, chk.filename))
+    return out
+
+
+def load_catalog_file(path) -> list[Material]:
+    """Read one catalogue file; raises RoomFileError with every problem in it."""
+    path = Path(path)
+    try:
+        text = path.read_text(encoding="utf-8")
+    except OSError as exc:
+        raise RoomFileError([Problem(str(path), "", f"cannot be read: {exc.strerror}")]) from None
+    data = read_toml(text, str(path))
+    chk = Checker(str(path))
+    chk.keys(data, "", ("materials",))
+    mats = parse_entries(chk.array_of_tables(data, "materials"), chk)
+    if chk.problems:
+        raise RoomFileError(chk.problems)
+    return mats
+
+
+def _files(folder: Path) -> list[Path]:
+    return sorted(folder.glob("*.toml")) if folder.is_dir() else []
+
+
+def load_catalog(extra=(), include_user: bool = True) -> Catalog:
+    """The built-in catalogue, plus the user's folder and any extra files or folders.
+
+    Every problem in every file is collected; a duplicate id is an error naming both files.
+    """
+    files = _files(paths.materials_dir())
+    if include_user:
+        files += _files(paths.user_catalog_dir())
+    for p in extra:
+        p = Path(p)
+        if p.is_dir():
+            files += _files(p)
+        elif p.exists():
+            files.append(p)
+        else:
+            raise RoomFileError([Problem(str(p), "", "catalogue file not found")])
+    problems: list[Problem] = []
+    cat = Catalog()
+    for f in files:
+        try:
+            mats = load_catalog_file(f)
+        except RoomFileError as exc:
+            problems.extend(exc.problems)
+            continue
+        try:
+            cat = cat.with_materials(mats)
+        except RoomFileError as exc:
+            problems.extend(exc.problems)
+    if problems:
+        raise RoomFileError(problems)
+    return cat

@@ -1,0 +1,156 @@
+"""Small helpers that check values read from TOML and collect problems with their field paths."""
+
+from __future__ import annotations
+
+import difflib
+import math
+import re
+import tomllib
+
+from roomcalc.io.errors import Problem
+
+_TOML_POS = re.compile(r"^(?P<msg>.*?)\s*\(at line (?P<line>\d+), column (?P<col>\d+)\)\s*$")
+_TOML_END = re.compile(r"^(?P<msg>.*?)\s*\(at end of document\)\s*$")
+
+
+def read_toml(text: str, filename: str) -> dict:
+    """Parse TOML text; a syntax error becomes a RoomFileError naming the line and column."""
+    from roomcalc.io.errors import RoomFileError
+
+    try:
+        return tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        msg = str(exc)
+        m = _TOML_POS.match(msg)
+        if m:
+            where, msg = f"line {m['line']}, column {m['col']}", m["msg"]
+        elif (m := _TOML_END.match(msg)):
+            where, msg = "end of file", m["msg"]
+        else:
+            where = ""
+        raise RoomFileError([Problem(filename, where, f"not valid TOML: {msg}")]) from None
+
+
+class Checker:
+    """Collects problems for one file."""
+
+    def __init__(self, filename: str):
+        self.filename = filename
+        self.problems: list[Problem] = []
+
+    def add(self, where: str, message: str) -> None:
+        self.problems.append(Problem(self.filename, where, message))
+
+    def keys(self, table: dict, where: str, known) -> None:
+        """Report keys of a table that are not known, with the nearest known one."""
+        for k in table:
+            if k not in known:
+                near = difflib.get_close_matches(k, list(known), n=1, cutoff=0.5)
+                hint = f"; did you mean '{near[0]}'?" if near else \
+                    f"; known keys: {', '.join(known)}"
+                self.add(_join(where, k), f"unknown key '{k}'{hint}")
+
+    def table(self, parent: dict, key: str, where: str, required=False):
+        v = parent.get(key)
+        if v is None:
+            if required:
+                self.add(_join(where, key), "is required (a table)")
+            return None
+        if not isinstance(v, dict):
+            self.add(_join(where, key), f"must be a table, not {_kind(v)}")
+            return None
+        return v
+
+    def array_of_tables(self, parent: dict, key: str, where: str = "") -> list:
+        v = parent.get(key, [])
+        if not isinstance(v, list) or not all(isinstance(x, dict) for x in v):
+            self.add(_join(where, key), f"must be an array of tables ([[{key}]])")
+            return []
+        return v
+
+    def text(self, table: dict, key: str, where: str, required=False, default=None,
+             choices=None):
+        if key not in table:
+            if required:
+                self.add(_join(where, key), "is required (text)")
+            return default
+        v = table[key]
+        if not isinstance(v, str):
+            self.add(_join(where, key), f"must be text, not {_kind(v)}")
+            return default
+        if choices is not None and v not in choices:
+            near = difflib.get_close_matches(v, list(choices), n=1, cutoff=0.4)
+            hint = f" (did you mean '{near[0]}'?)" if near else ""
+            self.add(_join(where, key), f"'{v}' is not one of {', '.join(choices)}{hint}")
+            return default
+        return v
+
+    def number(self, table: dict, key: str, where: str, *, low=None, high=None,
+               low_open=False, required=False, default=None, integer=False, unit=""):
+        if key not in table:
+            if required:
+                self.add(_join(where, key), "is required (a number)")
+            return default
+        return self.value(table[key], _join(where, key), low=low, high=high,
+                          low_open=low_open, default=default, integer=integer, unit=unit)
+
+    def value(self, v, where: str, *, low=None, high=None, low_open=False, default=None,
+              integer=False, unit=""):
+        if isinstance(v, bool) or not isinstance(v, (int, float)) or \
+                (integer and not isinstance(v, int)):
+            want = "a whole number" if integer else "a number"
+            self.add(where, f"must be {want}, not {_kind(v)}")
+            return default
+        if not math.isfinite(v):
+            self.add(where, f"{v} is not a finite number")
+            return default
+        bad = (low is not None and (v <= low if low_open else v < low)) or \
+            (high is not None and v > high)
+        if bad:
+            self.add(where, f"{_fmt(v)} is outside {_range(low, high, low_open, unit)}")
+            return default
+        return v
+
+    def numbers(self, table: dict, key: str, where: str, *, length=None, low=None, high=None,
+                low_open=False, required=False, unit="", what="values"):
+        if key not in table:
+            if required:
+                self.add(_join(where, key), "is required (a list of numbers)")
+            return None
+        v = table[key]
+        path = _join(where, key)
+        if not isinstance(v, list):
+            self.add(path, f"must be a list of numbers, not {_kind(v)}")
+            return None
+        if length is not None and len(v) != length:
+            self.add(path, f"has {len(v)} {what}; {length} are needed ({unit})" if unit else
+                     f"has {len(v)} {what}; {length} are needed")
+            return None
+        out, ok = [], True
+        for i, x in enumerate(v):
+            y = self.value(x, f"{path}[{i}]", low=low, high=high, low_open=low_open)
+            ok &= y is not None
+            out.append(y)
+        return [float(x) for x in out] if ok else None
+
+
+def _kind(v) -> str:
+    return {bool: "true/false", str: "text", list: "a list", dict: "a table", int: "a number",
+            float: "a number"}.get(type(v), type(v).__name__)
+
+
+def _fmt(v) -> str:
+    return f"{v:g}" if isinstance(v, float) else str(v)
+
+
+def _range(low, high, low_open, unit) -> str:
+    u = f" {unit}" if unit else ""
+    if low is not None and high is not None:
+        return f"{_fmt(low)} to {_fmt(high)}{u}" + (f" (above {_fmt(low)})" if low_open else "")
+    if low is not None:
+        return f"the allowed range: {'above' if low_open else 'at least'} {_fmt(low)}{u}"
+    return f"the allowed range: at most {_fmt(high)}{u}"
+
+
+def _join(where: str, key: str) -> str:
+    return f"{where}.{key}" if where else key

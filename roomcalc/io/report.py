@@ -1,0 +1,371 @@
+"""Report formats: text (80 columns), markdown, JSON (SI units) and CSV.
+
+Text and markdown show lengths, areas and volumes in the room file's units; JSON and CSV are SI
+whatever the file's units.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+import math
+import textwrap
+
+import numpy as np
+
+from roomcalc.engine.analysis import METHOD_TITLES, METHODS, Comparison, RoomResult
+from roomcalc.io.catalog import Material
+from roomcalc.io.units import METRIC, Units
+
+FORMATS = ("text", "markdown", "json", "csv")
+WIDTH = 80
+
+
+def _f(x, nd=2) -> str:
+    if x is None or (isinstance(x, float) and not math.isfinite(x)):
+        return "-"
+    return f"{x:.{nd}f}"
+
+
+def _list(a, nd=None):
+    out = [float(x) for x in np.asarray(a, dtype=float)]
+    if nd is not None:
+        out = [round(x, nd) for x in out]
+    return out
+
+
+def _wrap(text, first="  - ", rest="    "):
+    return textwrap.fill(text, WIDTH - 1, initial_indent=first, subsequent_indent=rest)
+
+
+class _Table:
+    """Rows of a label and per-band numbers, laid out for text or markdown."""
+
+    def __init__(self, title, bands, extra=None):
+        self.title, self.bands, self.extra, self.rows = title, list(bands), extra, []
+
+    def add(self, label, values, nd=2, extra=None):
+        self.rows.append((label, [_f(float(v), nd) for v in values],
+                          None if extra is None else _f(extra, 1)))
+
+    def text(self) -> str:
+        w = 7 if len(self.bands) <= 6 else 6
+        lw = WIDTH - 1 - w * len(self.bands) - (7 if self.extra else 0)
+        lw = min(lw, 26)
+        head = self.title.ljust(lw) + "".join(f"{b:>{w}}" for b in self.bands) + \
+            (f"{self.extra:>7}" if self.extra else "")
+        lines = [head]
+        for label, vals, ex in self.rows:
+            label = label if len(label) <= lw - 1 else label[:lw - 2] + "~"
+            lines.append(label.ljust(lw) + "".join(f"{v:>{w}}" for v in vals) +
+                         (f"{ex or '':>7}" if self.extra else ""))
+        return "\n".join(lines)
+
+    def markdown(self) -> str:
+        cols = [self.title] + [f"{b} Hz" for b in self.bands] + ([self.extra] if self.extra else [])
+        lines = ["| " + " | ".join(cols) + " |", "|" + "---|" * len(cols)]
+        for label, vals, ex in self.rows:
+            cells = [label] + vals + ([ex or ""] if self.extra else [])
+            lines.append("| " + " | ".join(cells) + " |")
+        return "\n".join(lines)
+
+
+def _tables(res: RoomResult, u: Units):
+    bands = res.bands_hz
+    rt = _Table("RT60 [s]", bands)
+    for k in METHODS:
+        if k in res.rt60_s:
+            mark = " *" if k == res.recommended else ""
+            rt.add(METHOD_TITLES[k] + mark, res.rt60_s[k])
+    room = _Table("Room", bands)
+    room.add(f"Absorption A [{u.area_label}]", res.absorption_area_m2 / u.area, 1)
+    room.add("Mean alpha", res.mean_alpha, 3)
+    room.add("Air [dB/km]", res.air_attenuation_db_per_m * 1000.0, 2)
+    room.add(f"Air 4mV [{u.area_label}]", 4 * res.air_m_per_m * res.volume_m3 / u.area, 2)
+    room.add(f"Room constant R [{u.area_label}]", res.room_constant_m2 / u.area, 1)
+    room.add("Schroeder f_S [Hz]", res.schroeder_hz, 0)
+    rc = None
+    if res.sources:
+        rc = _Table(f"Critical dist. [{u.length_label}]", bands)
+        for s in res.sources:
+            rc.add(f"{s.name} (Q={s.directivity:g})", s.critical_distance_m / u.length)
+    lv = None
+    if res.receivers:
+        lv = _Table("Lp [dB]", bands, extra="dB(A)")
+        for r in res.receivers:
+            lv.add(f"{r.name}", r.level_db, 1, r.level_dba)
+            lv.add("  direct", r.direct_db, 1, r.direct_dba)
+            lv.add("  reverberant", r.reverberant_db, 1, r.reverberant_dba)
+    return rt, room, rc, lv
+
+
+def _header(res: RoomResult, u: Units, source_name: str) -> list[str]:
+    room = res.room
+    if room.dimensions:
+        L, W, H = (d / u.length for d in room.dimensions)
+        shape = f"Box {L:.2f} x {W:.2f} x {H:.2f} {u.length_label}, "
+    else:
+        shape = "Free shape, "
+    a = room.air
+    return [
+        f"{room.title or 'Room'}",
+        f"  file: {source_name}",
+        f"  {shape}V = {res.volume_m3 / u.volume:.1f} {u.volume_label}, "
+        f"S = {res.surface_area_m2 / u.area:.1f} {u.area_label}",
+        f"  air {u.temperature_from_c(a.temperature_c):.1f} {u.temperature_label}, "
+        f"{a.relative_humidity:.0f} % RH, {a.pressure_kpa:.1f} kPa; "
+        f"c = {res.speed_of_sound_m_s:.1f} m/s",
+    ]
+
+
+def _method_lines(res: RoomResult) -> list[str]:
+    lines = [_wrap(f"* {METHOD_TITLES[res.recommended]} is the one to use here: "
+                   f"{res.recommended_reason}.", "  ", "    ")]
+    for k, why in res.unavailable.items():
+        lines.append(_wrap(f"{METHOD_TITLES[k]} not available: {why}.", "  ", "    "))
+    return lines
+
+
+def _sources_lines(res: RoomResult, spec_sources=None) -> list[str]:
+    lines = []
+    for s in res.room.sources:
+        lw = ", ".join(f"{x:.1f}" for x in s.sound_power_db)
+        lines.append(f"  {s.name}: Lw {lw} dB re 1 pW, Q = {s.directivity:g}")
+    return lines
+
+
+def report_text(res: RoomResult, source_name: str, u: Units = METRIC) -> str:
+    rt, room, rc, lv = _tables(res, u)
+    out = _header(res, u, source_name)
+    out += ["", rt.text()] + _method_lines(res) + ["", room.text()]
+    if rc:
+        out += ["", rc.text()]
+    if lv:
+        model = "Barron & Lee revised theory" if res.reverberant_model == "barron-lee" \
+            else "diffuse field, 4/R"
+        out += ["", lv.text(), f"  Levels re 20 uPa, sources summed; reverberant part by "
+                f"{model}; no rho-c correction."]
+    if res.warnings:
+        out += ["", "Warnings"] + [_wrap(w.message) for w in res.warnings]
+    if res.cautions:
+        out += ["", "CAUTION: HEARING"] + [_wrap(c, "  ! ", "    ") for c in res.cautions]
+    return "\n".join(out) + "\n"
+
+
+def report_markdown(res: RoomResult, source_name: str, u: Units = METRIC) -> str:
+    rt, room, rc, lv = _tables(res, u)
+    head = _header(res, u, source_name)
+    out = [f"# {head[0]}", ""] + [f"- {h.strip()}" for h in head[1:]] + ["", "## Reverberation",
+                                                                          "", rt.markdown(), ""]
+    out += [f"\\* {METHOD_TITLES[res.recommended]} is the one to use here: "
+            f"{res.recommended_reason}."]
+    for k, why in res.unavailable.items():
+        out += ["", f"{METHOD_TITLES[k]} not available: {why}."]
+    out += ["", "## Room", "", room.markdown()]
+    if rc:
+        out += ["", "## Critical distance", "", rc.markdown()]
+    if lv:
+        out += ["", "## Levels at receivers", "", lv.markdown()]
+    if res.warnings:
+        out += ["", "## Warnings", ""] + [f"- {w.message}" for w in res.warnings]
+    if res.cautions:
+        out += ["", "## Caution: hearing", ""] + [f"- **{c}**" for c in res.cautions]
+    return "\n".join(out) + "\n"
+
+
+def result_dict(res: RoomResult) -> dict:
+    """The JSON document of a result, SI units."""
+    return {
+        "title": res.room.title,
+        "bands_hz": list(res.bands_hz),
+        "volume_m3": res.volume_m3,
+        "surface_area_m2": res.surface_area_m2,
+        "absorption_area_m2": _list(res.absorption_area_m2),
+        "air_attenuation_db_per_m": _list(res.air_attenuation_db_per_m),
+        "speed_of_sound_m_s": res.speed_of_sound_m_s,
+        "rt60_s": {k: _list(v) for k, v in res.rt60_s.items()},
+        "rt60_unavailable": dict(res.unavailable),
+        "recommended_method": res.recommended,
+        "recommended_reason": res.recommended_reason,
+        "room_constant_m2": _list(res.room_constant_m2),
+        "schroeder_frequency_hz": _list(res.schroeder_hz),
+        "reverberant_model": res.reverberant_model,
+        "sources": [{"name": s.name, "directivity": s.directivity,
+                     "sound_power_db": _list(s.sound_power_db),
+                     "critical_distance_m": _list(s.critical_distance_m)} for s in res.sources],
+        "receivers": [{"name": r.name, "distances_m": r.distances_m,
+                       "level_db": _list(r.level_db), "level_dba": r.level_dba,
+                       "direct_db": _list(r.direct_db), "direct_dba": r.direct_dba,
+                       "reverberant_db": _list(r.reverberant_db),
+                       "reverberant_dba": r.reverberant_dba} for r in res.receivers],
+        "warnings": [{"code": w.code, "message": w.message} for w in res.warnings],
+        "cautions": list(res.cautions),
+    }
+
+
+def report_json(res: RoomResult, source_name: str = "", u: Units = METRIC) -> str:
+    return json.dumps(result_dict(res), indent=2) + "\n"
+
+
+def report_csv(res: RoomResult, source_name: str = "", u: Units = METRIC) -> str:
+    """One row per quantity: quantity, item, unit, then one column per band, then dB(A)."""
+    buf = io.StringIO()
+    w = csv.writer(buf, lineterminator="\n")
+    w.writerow(["quantity", "item", "unit"] + [str(b) for b in res.bands_hz] + ["dBA"])
+
+    def row(q, item, unit, vals, extra=""):
+        w.writerow([q, item, unit] + [f"{float(v):.6g}" for v in vals] +
+                   [f"{extra:.6g}" if extra != "" else ""])
+
+    for k, v in res.rt60_s.items():
+        row("rt60", k, "s", v)
+    row("absorption_area", "surfaces+objects", "m2", res.absorption_area_m2)
+    row("air_attenuation", "air", "dB/m", res.air_attenuation_db_per_m)
+    row("room_constant", "room", "m2", res.room_constant_m2)
+    row("schroeder_frequency", "room", "Hz", res.schroeder_hz)
+    for s in res.sources:
+        row("critical_distance", s.name, "m", s.critical_distance_m)
+    for r in res.receivers:
+        row("level", r.name, "dB", r.level_db, r.level_dba)
+        row("direct", r.name, "dB", r.direct_db, r.direct_dba)
+        row("reverberant", r.name, "dB", r.reverberant_db, r.reverberant_dba)
+    return buf.getvalue()
+
+
+REPORTERS = {"text": report_text, "markdown": report_markdown, "json": report_json,
+             "csv": report_csv}
+
+
+# ----------------------------------------------------------------------------- compare
+
+def comparison_dict(cmp: Comparison) -> dict:
+    b, a = cmp.before, cmp.after
+    return {
+        "bands_hz": list(b.bands_hz),
+        "before": b.room.title, "after": a.room.title,
+        "method": b.recommended,
+        "rt60_before_s": {k: _list(v) for k, v in b.rt60_s.items()},
+        "rt60_after_s": {k: _list(v) for k, v in a.rt60_s.items()},
+        "rt60_change_s": {k: _list(v) for k, v in cmp.rt60_change_s.items()},
+        "room_constant_before_m2": _list(b.room_constant_m2),
+        "room_constant_after_m2": _list(a.room_constant_m2),
+        "reverberant_reduction_db": _list(cmp.reverberant_reduction_db),
+        "receivers": [{"name": c.name, "level_change_db": _list(c.level_change_db),
+                       "level_change_dba": c.level_change_dba,
+                       "reverberant_change_dba": c.reverberant_change_dba,
+                       "inside_critical_distance_of": c.inside_critical_distance}
+                      for c in cmp.receivers],
+        "notes": list(cmp.notes),
+        "warnings_after": [w.message for w in a.warnings],
+        "cautions_after": list(a.cautions),
+    }
+
+
+def _compare_tables(cmp: Comparison):
+    b, a = cmp.before, cmp.after
+    k = b.recommended if b.recommended in a.rt60_s else "sabine"
+    rt = _Table(f"RT60 [s], {METHOD_TITLES[k]}", b.bands_hz)
+    rt.add("before", b.rt60_s[k])
+    rt.add("after", a.rt60_s[k])
+    rt.add("change", a.rt60_s[k] - b.rt60_s[k])
+    rt.add("reverberant field [dB]", cmp.reverberant_reduction_db, 1)
+    lv = None
+    if cmp.receivers:
+        before = {r.name: r for r in b.receivers}
+        after = {r.name: r for r in a.receivers}
+        lv = _Table("Lp [dB]", b.bands_hz, extra="dB(A)")
+        for c in cmp.receivers:
+            lv.add(f"{c.name}", before[c.name].level_db, 1, before[c.name].level_dba)
+            lv.add("  after", after[c.name].level_db, 1, after[c.name].level_dba)
+            lv.add("  change", c.level_change_db, 1, c.level_change_dba)
+    return rt, lv
+
+
+def compare_text(cmp: Comparison, names: tuple[str, str], fmt: str = "text") -> str:
+    if fmt == "json":
+        return json.dumps(comparison_dict(cmp), indent=2) + "\n"
+    if fmt == "csv":
+        buf = io.StringIO()
+        w = csv.writer(buf, lineterminator="\n")
+        w.writerow(["quantity", "item", "unit"] + [str(x) for x in cmp.before.bands_hz] + ["dBA"])
+        for k, v in cmp.rt60_change_s.items():
+            w.writerow(["rt60_change", k, "s"] + [f"{x:.6g}" for x in v] + [""])
+        w.writerow(["reverberant_reduction", "room", "dB"] +
+                   [f"{x:.6g}" for x in cmp.reverberant_reduction_db] + [""])
+        for c in cmp.receivers:
+            w.writerow(["level_change", c.name, "dB"] + [f"{x:.6g}" for x in c.level_change_db] +
+                       [f"{c.level_change_dba:.6g}"])
+        return buf.getvalue()
+    rt, lv = _compare_tables(cmp)
+    md = fmt == "markdown"
+    out = [("# " if md else "") + f"Before: {cmp.before.room.title or names[0]}",
+           ("# " if md else "") + f"After:  {cmp.after.room.title or names[1]}",
+           "" if md else f"  ({names[0]} -> {names[1]}; negative = shorter or quieter)", "",
+           rt.markdown() if md else rt.text()]
+    if lv:
+        out += ["", lv.markdown() if md else lv.text()]
+    if cmp.notes:
+        out += ["", "Notes"] + [(f"- {n}" if md else _wrap(n)) for n in cmp.notes]
+    if cmp.after.warnings:
+        out += ["", "Warnings (after)"] + [(f"- {w.message}" if md else _wrap(w.message))
+                                          for w in cmp.after.warnings]
+    if cmp.after.cautions:
+        out += ["", "CAUTION: HEARING (after)"] + [(f"- **{c}**" if md else _wrap(c, "  ! ", "    "))
+                                                  for c in cmp.after.cautions]
+    return "\n".join(out) + "\n"
+
+
+# ----------------------------------------------------------------------------- materials
+
+def material_dict(m: Material) -> dict:
+    d = {"id": m.id, "name": m.name, "category": m.category, "kind": m.kind,
+         "values": {str(k): v for k, v in sorted(m.values.items())}, "source": m.source,
+         "notes": m.notes}
+    r = m.ratings()
+    if r:
+        d.update({"nrc": r[0], "saa_octave_estimate": r[1], "alpha_w": r[2].alpha_w,
+                  "alpha_w_shape": r[2].shape, "absorption_class": r[2].absorption_class})
+    return d
+
+
+def materials_text(mats: list[Material], fmt: str = "text") -> str:
+    if fmt == "json":
+        return json.dumps([material_dict(m) for m in mats], indent=2) + "\n"
+    if fmt == "csv":
+        buf = io.StringIO()
+        w = csv.writer(buf, lineterminator="\n")
+        bands = [63, 125, 250, 500, 1000, 2000, 4000, 8000]
+        w.writerow(["id", "name", "category", "kind"] + [str(b) for b in bands] +
+                   ["nrc", "saa_octave_estimate", "alpha_w", "absorption_class", "source"])
+        for m in mats:
+            r = m.ratings()
+            w.writerow([m.id, m.name, m.category, m.kind] +
+                       [m.values.get(b, "") for b in bands] +
+                       ([r[0], r[1], r[2].label(), r[2].absorption_class] if r else
+                        ["", "", "", ""]) + [m.source])
+        return buf.getvalue()
+    md = fmt == "markdown"
+    if md:
+        lines = ["| id | name | kind | 125-4000 Hz | NRC | alpha_w (class) | source |",
+                 "|---|---|---|---|---|---|---|"]
+    else:
+        lines = []
+    for m in mats:
+        vals = " ".join(f"{m.values[b]:.2f}" for b in sorted(m.values))
+        r = m.ratings()
+        rating = (f"NRC {r[0]:.2f}  SAA~{r[1]:.2f}  alpha_w {r[2].label()} class "
+                  f"{r[2].absorption_class}") if r else "absorption per unit [m^2]"
+        if md:
+            lines.append(f"| {m.id} | {m.name} | {m.kind} | {vals} | "
+                         f"{_f(r[0]) if r else ''} | "
+                         f"{f'{r[2].label()} ({r[2].absorption_class})' if r else ''} | "
+                         f"{m.source} |")
+        else:
+            lines += [f"{m.id}  [{m.category}]", f"    {m.name}",
+                      f"    {m.bands_text}: {vals}", f"    {rating}",
+                      _wrap(f"source: {m.source}", "    ", "      "), ""]
+    if not md:
+        lines.append(f"{len(mats)} material(s). SAA~ is an estimate from octave data; a "
+                     "product's test report\nto ISO 354 / ASTM C423 supersedes these values.")
+    return "\n".join(lines) + "\n"

@@ -1,0 +1,488 @@
+"""Room files, version 1 (TOML): read, check, resolve against the catalogue, write back.
+
+A room file is read into a :class:`RoomSpec`, which keeps what the user wrote (file units,
+material ids). :func:`resolve` turns a spec into the engine's SI :class:`~roomcalc.engine.model.Room`.
+docs/room-files.md describes every key.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import tomli_w
+
+from roomcalc.engine.bands import ALLOWED_BANDS_HZ, DEFAULT_BANDS_HZ
+from roomcalc.engine.field import PLACEMENT_Q
+from roomcalc.engine.model import FACE_AXIS, FACES, Air, Receiver, Room, RoomObject, Source, Surface
+from roomcalc.engine.spectra import SPECTRUM_SHAPES, band_power_from_dba
+from roomcalc.io.atomic import write_text_atomic
+from roomcalc.io.catalog import ALPHA_MAX, Catalog, Material, parse_entries
+from roomcalc.io.checks import Checker, read_toml
+from roomcalc.io.errors import Problem, RoomFileError
+from roomcalc.io.units import UNITS, Units
+
+FORMAT_VERSION = 1
+TOP_KEYS = ("version", "title", "units", "bands_hz", "air", "shape", "surfaces", "objects",
+            "sources", "receivers", "materials")
+AIR_KEYS = ("temperature", "relative_humidity", "pressure_kpa")
+SHAPE_KEYS = ("length", "width", "height", "volume")
+SURFACE_KEYS = ("name", "area", "count", "face", "material", "alpha")
+OBJECT_KEYS = ("name", "count", "material", "absorption")
+SOURCE_KEYS = ("name", "sound_power", "sound_power_dba", "spectrum", "directivity", "placement",
+               "position")
+RECEIVER_KEYS = ("name", "position", "distances")
+DEFAULT_PLACEMENT = "surface"
+
+
+@dataclass
+class AirSpec:
+    temperature: float | None = None        # file units (degC or degF); None = default
+    relative_humidity: float | None = None  # %
+    pressure_kpa: float | None = None
+
+
+@dataclass
+class ShapeSpec:
+    length: float | None = None
+    width: float | None = None
+    height: float | None = None
+    volume: float | None = None
+
+    @property
+    def is_box(self) -> bool:
+        return None not in (self.length, self.width, self.height)
+
+
+@dataclass
+class SurfaceSpec:
+    name: str
+    material: str | None = None
+    alpha: list[float] | None = None
+    area: float | None = None
+    count: int = 1
+    face: str | None = None
+
+
+@dataclass
+class ObjectSpec:
+    name: str
+    count: float = 1
+    material: str | None = None
+    absorption: list[float] | None = None
+
+
+@dataclass
+class SourceSpec:
+    name: str
+    sound_power: list[float] | None = None
+    sound_power_dba: float | None = None
+    spectrum: str | None = None
+    directivity: float | None = None
+    placement: str | None = None
+    position: list[float] | None = None
+
+    @property
+    def q(self) -> float:
+        if self.directivity is not None:
+            return float(self.directivity)
+        return PLACEMENT_Q[self.placement or DEFAULT_PLACEMENT]
+
+
+@dataclass
+class ReceiverSpec:
+    name: str
+    position: list[float] | None = None
+    distances: dict[str, float] = field(default_factory=dict)
+
+
+@dataclass
+class RoomSpec:
+    """A room as written in its file (file units, material ids)."""
+
+    title: str = ""
+    units: str = "metric"
+    bands_hz: list[int] | None = None
+    air: AirSpec = field(default_factory=AirSpec)
+    shape: ShapeSpec = field(default_factory=ShapeSpec)
+    surfaces: list[SurfaceSpec] = field(default_factory=list)
+    objects: list[ObjectSpec] = field(default_factory=list)
+    sources: list[SourceSpec] = field(default_factory=list)
+    receivers: list[ReceiverSpec] = field(default_factory=list)
+    materials: list[Material] = field(default_factory=list)
+    version: int = FORMAT_VERSION
+
+    @property
+    def bands(self) -> tuple[int, ...]:
+        return tuple(self.bands_hz) if self.bands_hz else DEFAULT_BANDS_HZ
+
+    @property
+    def unit_system(self) -> Units:
+        return UNITS[self.units]
+
+
+# ----------------------------------------------------------------------------- reading
+
+def read_room(path, catalog: Catalog) -> tuple[RoomSpec, Room]:
+    """Read, check and resolve a room file. Raises RoomFileError with every problem found."""
+    spec = read_spec(path)
+    return spec, resolve(spec, catalog, str(path))
+
+
+def read_spec(path) -> RoomSpec:
+    """Read and check a room file without resolving materials."""
+    path = Path(path)
+    try:
+        text = path.read_text(encoding="utf-8")
+    except FileNotFoundError:
+        raise RoomFileError([Problem(str(path), "", "no such file")]) from None
+    except (OSError, UnicodeDecodeError) as exc:
+        reason = getattr(exc, "strerror", None) or str(exc)
+        raise RoomFileError([Problem(str(path), "", f"cannot be read: {reason}")]) from None
+    return parse_spec(text, str(path))
+
+
+def parse_spec(text: str, filename: str = "<room>") -> RoomSpec:
+    """Check room-file text and build a RoomSpec; every problem is reported at once."""
+    data = read_toml(text, filename)
+    chk = Checker(filename)
+    chk.keys(data, "", TOP_KEYS)
+    spec = RoomSpec()
+    version = chk.number(data, "version", "", required=True, integer=True)
+    if version is not None and version != FORMAT_VERSION:
+        chk.add("version", f"{version} is not a version this roomcalc reads (it reads "
+                f"{FORMAT_VERSION})")
+    spec.title = chk.text(data, "title", "", default="")
+    spec.units = chk.text(data, "units", "", default="metric", choices=tuple(UNITS))
+    u = UNITS[spec.units]
+
+    if "bands_hz" in data:
+        b = data["bands_hz"]
+        if not isinstance(b, list) or not all(isinstance(x, int) and not isinstance(x, bool)
+                                              for x in b):
+            chk.add("bands_hz", "must be a list of whole numbers such as [125, 250, 500, 1000, "
+                    "2000, 4000]")
+        else:
+            bad = [x for x in b if x not in ALLOWED_BANDS_HZ]
+            missing = [x for x in DEFAULT_BANDS_HZ if x not in b]
+            if bad:
+                chk.add("bands_hz", f"{bad} are not allowed; bands are octaves from "
+                        f"{', '.join(map(str, ALLOWED_BANDS_HZ))} Hz")
+            elif missing:
+                chk.add("bands_hz", f"missing {missing}: 125 to 4000 Hz are always computed; "
+                        "63 and 8000 Hz may be added")
+            elif b != sorted(set(b)):
+                chk.add("bands_hz", "must list each band once, in rising order")
+            else:
+                spec.bands_hz = list(b)
+    nb = len(spec.bands)
+    band_text = f"one per band: {', '.join(map(str, spec.bands))} Hz"
+
+    air = chk.table(data, "air", "")
+    if air is not None:
+        chk.keys(air, "air", AIR_KEYS)
+        lo, hi = (-40.0, 60.0) if u.name == "metric" else (-40.0, 140.0)
+        spec.air.temperature = chk.number(air, "temperature", "air", low=lo, high=hi,
+                                          unit=u.temperature_label)
+        spec.air.relative_humidity = chk.number(air, "relative_humidity", "air", low=0.0,
+                                                high=100.0, unit="%")
+        spec.air.pressure_kpa = chk.number(air, "pressure_kpa", "air", low=50.0, high=120.0,
+                                           unit="kPa")
+
+    shape = chk.table(data, "shape", "", required=True)
+    if shape is not None:
+        chk.keys(shape, "shape", SHAPE_KEYS)
+        for k in ("length", "width", "height"):
+            setattr(spec.shape, k, chk.number(shape, k, "shape", low=0.0, low_open=True,
+                                              high=1000.0 / u.length, unit=u.length_label))
+        spec.shape.volume = chk.number(shape, "volume", "shape", low=0.0, low_open=True,
+                                       high=1e7 / u.volume, unit=u.volume_label)
+        given = [k for k in ("length", "width", "height") if k in shape]
+        if given and len(given) < 3:
+            chk.add("shape", "a box needs length, width and height; "
+                    f"only {', '.join(given)} given")
+        if not given and "volume" not in shape:
+            chk.add("shape", "give length, width and height (a box) or volume (a free shape)")
+
+    for i, s in enumerate(chk.array_of_tables(data, "surfaces")):
+        w = f"surfaces[{i}]"
+        chk.keys(s, w, SURFACE_KEYS)
+        sp = SurfaceSpec(name=chk.text(s, "name", w, default=f"Surface {i + 1}"))
+        sp.area = chk.number(s, "area", w, low=0.0, low_open=True, unit=u.area_label)
+        sp.count = chk.number(s, "count", w, low=1, integer=True, default=1)
+        sp.face = chk.text(s, "face", w, choices=FACES)
+        sp.material = chk.text(s, "material", w)
+        sp.alpha = chk.numbers(s, "alpha", w, length=nb, low=0.0, high=ALPHA_MAX,
+                               unit=band_text)
+        if "material" in s and "alpha" in s:
+            chk.add(w, "give either material or alpha, not both")
+        elif "material" not in s and "alpha" not in s:
+            chk.add(w, "needs material (a catalogue id) or alpha (a list, " + band_text + ")")
+        if "area" not in s and "face" not in s:
+            chk.add(f"{w}.area", "is required unless face names a box face")
+        spec.surfaces.append(sp)
+    if not data.get("surfaces"):
+        chk.add("surfaces", "a room needs at least one [[surfaces]] entry")
+
+    for i, o in enumerate(chk.array_of_tables(data, "objects")):
+        w = f"objects[{i}]"
+        chk.keys(o, w, OBJECT_KEYS)
+        op = ObjectSpec(name=chk.text(o, "name", w, default=f"Object {i + 1}"))
+        op.count = chk.number(o, "count", w, low=0.0, default=1)
+        op.material = chk.text(o, "material", w)
+        op.absorption = chk.numbers(o, "absorption", w, length=nb, low=0.0,
+                                    high=1000.0 / u.area, unit=band_text)
+        if ("material" in o) == ("absorption" in o):
+            chk.add(w, "give either material (a catalogue id of kind object) or absorption "
+                    f"({u.area_label} per unit, {band_text})")
+        spec.objects.append(op)
+
+    names = []
+    for i, s in enumerate(chk.array_of_tables(data, "sources")):
+        w = f"sources[{i}]"
+        chk.keys(s, w, SOURCE_KEYS)
+        sp = SourceSpec(name=chk.text(s, "name", w, default=f"Source {i + 1}"))
+        if sp.name in names:
+            chk.add(f"{w}.name", f"'{sp.name}' is used by another source; names must differ")
+        names.append(sp.name)
+        sp.sound_power = chk.numbers(s, "sound_power", w, length=nb, low=0.0, high=200.0,
+                                     unit=band_text)
+        sp.sound_power_dba = chk.number(s, "sound_power_dba", w, low=0.0, high=200.0,
+                                        unit="dB(A)")
+        sp.spectrum = chk.text(s, "spectrum", w, choices=tuple(SPECTRUM_SHAPES))
+        if ("sound_power" in s) == ("sound_power_dba" in s):
+            chk.add(w, "give either sound_power (dB re 1 pW, " + band_text + ") or "
+                    "sound_power_dba with spectrum")
+        if "sound_power_dba" in s and "spectrum" not in s:
+            chk.add(f"{w}.spectrum", "is required with sound_power_dba; one of "
+                    + ", ".join(SPECTRUM_SHAPES))
+        if sp.spectrum and "sound_power" in s:
+            chk.add(f"{w}.spectrum", "only goes with sound_power_dba")
+        if sp.spectrum and "sound_power_dba" in s:
+            missing = [b for b in spec.bands if b not in SPECTRUM_SHAPES[sp.spectrum]]
+            if missing:
+                chk.add(f"{w}.spectrum", f"'{sp.spectrum}' has no value at {missing} Hz")
+        sp.directivity = chk.number(s, "directivity", w, low=0.0, low_open=True, high=100.0,
+                                    unit="(Q)")
+        sp.placement = chk.text(s, "placement", w, choices=tuple(PLACEMENT_Q))
+        if "directivity" in s and "placement" in s:
+            chk.add(w, "give either directivity (Q) or placement, not both")
+        sp.position = _position(chk, s, w)
+        spec.sources.append(sp)
+
+    rnames = []
+    for i, r in enumerate(chk.array_of_tables(data, "receivers")):
+        w = f"receivers[{i}]"
+        chk.keys(r, w, RECEIVER_KEYS)
+        rp = ReceiverSpec(name=chk.text(r, "name", w, default=f"Receiver {i + 1}"))
+        if rp.name in rnames:
+            chk.add(f"{w}.name", f"'{rp.name}' is used by another receiver; names must differ")
+        rnames.append(rp.name)
+        rp.position = _position(chk, r, w)
+        d = chk.table(r, "distances", w)
+        if d is not None:
+            for k, x in d.items():
+                if k not in names:
+                    chk.add(f"{w}.distances.{k}", f"'{k}' is not a source of this room"
+                            + (f" (sources: {', '.join(names)})" if names else ""))
+                y = chk.value(x, f"{w}.distances.{k}", low=0.0, low_open=True,
+                              high=10000.0, unit=u.length_label)
+                if y is not None:
+                    rp.distances[k] = float(y)
+        given = d if d is not None else {}
+        for s in spec.sources:
+            if s.name not in given and (rp.position is None or s.position is None):
+                chk.add(w, f"has no distance to source '{s.name}': give distances."
+                        f"\"{s.name}\" or positions for both")
+        spec.receivers.append(rp)
+
+    spec.materials = parse_entries(chk.array_of_tables(data, "materials"), chk,
+                                   where="materials")
+    if spec.shape.is_box:
+        dims = (spec.shape.length, spec.shape.width, spec.shape.height)
+        for group, items in (("sources", spec.sources), ("receivers", spec.receivers)):
+            for i, it in enumerate(items):
+                if it.position is not None and any(
+                        not (0.0 <= p <= d) for p, d in zip(it.position, dims)):
+                    chk.add(f"{group}[{i}].position", f"{it.position} lies outside the box "
+                            f"(0 to {dims[0]:g}, 0 to {dims[1]:g}, 0 to {dims[2]:g} "
+                            f"{u.length_label})")
+    if chk.problems:
+        raise RoomFileError(chk.problems)
+    return spec
+
+
+def _position(chk: Checker, table: dict, where: str):
+    if "position" not in table:
+        return None
+    p = chk.numbers(table, "position", where, length=3, unit="x, y, z")
+    return p
+
+
+# ----------------------------------------------------------------------------- resolving
+
+def resolve(spec: RoomSpec, catalog: Catalog, filename: str = "<room>") -> Room:
+    """Turn a RoomSpec into the engine's SI Room, looking materials up in the catalogue.
+
+    Raises RoomFileError naming every unknown material, wrong kind, missing band or face area.
+    """
+    cat = catalog.with_materials(spec.materials) if spec.materials else catalog
+    chk = Checker(filename)
+    u = spec.unit_system
+    bands = spec.bands
+    dims = None
+    if spec.shape.is_box:
+        dims = tuple(float(x) * u.length for x in (spec.shape.length, spec.shape.width,
+                                                   spec.shape.height))
+    volume = float(spec.shape.volume) * u.volume if spec.shape.volume is not None else \
+        (math.prod(dims) if dims else None)
+    if volume is None:
+        chk.add("shape", "give length, width and height (a box) or volume (a free shape)")
+
+    def lookup(mid, where, kind):
+        m = cat.get(mid)
+        if m is None:
+            near = _near(mid, cat.ids(kind))
+            chk.add(f"{where}.material", f"unknown material '{mid}'"
+                    + (f"; did you mean '{near}'?" if near else "")
+                    + " (search with: roomcalc materials WORDS)")
+            return None
+        if m.kind != kind:
+            chk.add(f"{where}.material", f"'{mid}' is a material of kind {m.kind}; "
+                    f"{'surfaces' if kind == 'surface' else 'objects'} need kind {kind}")
+            return None
+        try:
+            return m.values_for(bands)
+        except KeyError as exc:
+            missing = exc.args[0]
+            chk.add(f"{where}.material", f"'{mid}' has no value at {missing} Hz (it gives "
+                    f"{m.bands_text}); give the coefficients inline or remove "
+                    f"{', '.join(map(str, missing))} from bands_hz")
+            return None
+
+    face_area = {}
+    if dims:
+        L, W, H = dims
+        face_area = {"floor": L * W, "ceiling": L * W, "front": W * H, "back": W * H,
+                     "left": L * H, "right": L * H}
+    surfaces = []
+    for i, s in enumerate(spec.surfaces):
+        w = f"surfaces[{i}]"
+        alpha = lookup(s.material, w, "surface") if s.material else s.alpha
+        area = float(s.area) * u.area if s.area is not None else None
+        if area is None:
+            if s.face is None:
+                chk.add(f"{w}.area", "is required unless face names a box face")
+                continue
+            if not dims:
+                chk.add(f"{w}.area", f"is required: face '{s.face}' has no size because the "
+                        "shape is a volume, not a box")
+                continue
+            sharing = [o for o in spec.surfaces if o is not s and o.face == s.face]
+            if any(o.area is None for o in sharing):
+                chk.add(f"{w}.area", f"is required: another surface on face '{s.face}' has "
+                        "no area either")
+                continue
+            taken = sum(float(o.area) * u.area * o.count for o in sharing)
+            area = (face_area[s.face] - taken) / s.count
+            if area <= 0:
+                chk.add(f"{w}.area", f"the other surfaces on face '{s.face}' take "
+                        f"{taken / u.area:.2f} {u.area_label} of its "
+                        f"{face_area[s.face] / u.area:.2f}; nothing is left for this one")
+                continue
+        if alpha is not None:
+            surfaces.append(Surface(s.name, area, alpha, int(s.count), s.face, s.material))
+    objects = []
+    for i, o in enumerate(spec.objects):
+        w = f"objects[{i}]"
+        if o.material:
+            a = lookup(o.material, w, "object")
+        else:
+            a = [x * u.area for x in o.absorption] if o.absorption is not None else None
+        if a is not None:
+            objects.append(RoomObject(o.name, a, float(o.count), o.material))
+    sources = []
+    for s in spec.sources:
+        if s.sound_power is not None:
+            lw = s.sound_power
+        else:
+            lw = band_power_from_dba(s.sound_power_dba, s.spectrum, bands)
+        pos = tuple(x * u.length for x in s.position) if s.position else None
+        sources.append(Source(s.name, lw, s.q, pos))
+    receivers = []
+    for r in spec.receivers:
+        pos = tuple(x * u.length for x in r.position) if r.position else None
+        receivers.append(Receiver(r.name, pos, {k: v * u.length for k, v in r.distances.items()}))
+    if chk.problems:
+        raise RoomFileError(chk.problems)
+    a = spec.air
+    air = Air(temperature_c=u.temperature_to_c(a.temperature) if a.temperature is not None
+              else 20.0,
+              relative_humidity=a.relative_humidity if a.relative_humidity is not None else 50.0,
+              pressure_kpa=a.pressure_kpa if a.pressure_kpa is not None else 101.325)
+    return Room(bands_hz=bands, volume=volume, surfaces=tuple(surfaces), dimensions=dims,
+                air=air, objects=tuple(objects), sources=tuple(sources),
+                receivers=tuple(receivers), title=spec.title)
+
+
+def _near(word, choices):
+    import difflib
+
+    m = difflib.get_close_matches(word, choices, n=1, cutoff=0.6)
+    return m[0] if m else None
+
+
+# ----------------------------------------------------------------------------- writing
+
+def spec_to_dict(spec: RoomSpec) -> dict:
+    """The TOML document of a spec, keys in the order of docs/room-files.md."""
+    d: dict = {"version": spec.version}
+    if spec.title:
+        d["title"] = spec.title
+    d["units"] = spec.units
+    if spec.bands_hz:
+        d["bands_hz"] = list(spec.bands_hz)
+    air = {k: v for k, v in (("temperature", spec.air.temperature),
+                             ("relative_humidity", spec.air.relative_humidity),
+                             ("pressure_kpa", spec.air.pressure_kpa)) if v is not None}
+    if air:
+        d["air"] = air
+    d["shape"] = {k: getattr(spec.shape, k) for k in SHAPE_KEYS
+                  if getattr(spec.shape, k) is not None}
+    d["surfaces"] = [_clean({"name": s.name, "area": s.area,
+                             "count": s.count if s.count != 1 else None, "face": s.face,
+                             "material": s.material, "alpha": s.alpha}) for s in spec.surfaces]
+    if spec.objects:
+        d["objects"] = [_clean({"name": o.name, "count": o.count, "material": o.material,
+                                "absorption": o.absorption}) for o in spec.objects]
+    if spec.sources:
+        d["sources"] = [_clean({"name": s.name, "sound_power": s.sound_power,
+                                "sound_power_dba": s.sound_power_dba, "spectrum": s.spectrum,
+                                "directivity": s.directivity, "placement": s.placement,
+                                "position": s.position}) for s in spec.sources]
+    if spec.receivers:
+        d["receivers"] = [_clean({"name": r.name, "position": r.position,
+                                  "distances": dict(r.distances) or None})
+                          for r in spec.receivers]
+    if spec.materials:
+        d["materials"] = [_clean({"id": m.id, "name": m.name, "category": m.category,
+                                  "kind": m.kind,
+                                  "values": {str(k): v for k, v in sorted(m.values.items())},
+                                  "source": m.source, "notes": m.notes or None})
+                          for m in spec.materials]
+    return d
+
+
+def _clean(d: dict) -> dict:
+    return {k: v for k, v in d.items() if v is not None}
+
+
+def spec_to_toml(spec: RoomSpec) -> str:
+    """Room-file text of a spec."""
+    return tomli_w.dumps(spec_to_dict(spec))
+
+
+def save_spec(spec: RoomSpec, path) -> None:
+    """Write a spec to a room file atomically (temporary file, fsync, rename)."""
+    write_text_atomic(path, spec_to_toml(spec))
