@@ -209,6 +209,16 @@ def distance_curve(sound_power_db, directivity, distances_m, room_constant_m2=No
     Returns
     -------
     (total, direct, reverberant) : tuple of ndarray, shape (points, bands) [dB]
+
+    Notes
+    -----
+    The equation of :func:`levels` at every distance, with :math:`4/R` replaced by
+    :func:`barron_lee_reverberant_term` for model "barron-lee".
+
+    References
+    ----------
+    .. [1] L. L. Beranek, Acoustics (1954), ch. 10; M. Barron & L.-J. Lee, J. Acoust. Soc. Am. 84
+       (1988) 618.
     """
     r = _check("distances_m", distances_m)[:, None]
     lw = np.asarray(sound_power_db, dtype=float)[None, :]

@@ -29,6 +29,12 @@ def read_toml(text: str, filename: str) -> dict:
         else:
             where = ""
         raise RoomFileError([Problem(filename, where, f"not valid TOML: {msg}")]) from None
+    except ValueError as exc:  # an integer longer than Python converts (sys.int_info)
+        msg = "a number has too many digits to read" if "digits" in str(exc) else str(exc)
+        raise RoomFileError([Problem(filename, "", f"not valid TOML: {msg}")]) from None
+    except RecursionError:
+        raise RoomFileError([Problem(filename, "", "not valid TOML: arrays or tables are "
+                                     "nested too deeply")]) from None
 
 
 class Checker:
@@ -100,6 +106,10 @@ class Checker:
                 (integer and not isinstance(v, int)):
             want = "a whole number" if integer else "a number"
             self.add(where, f"must be {want}, not {_kind(v)}")
+            return default
+        # tomllib reads integers of any length; one too large for a float is out of every range.
+        if isinstance(v, int) and abs(v) > 1e300:
+            self.add(where, f"a whole number of {len(str(abs(v)))} digits is far too large")
             return default
         if not math.isfinite(v):
             self.add(where, f"{v} is not a finite number")

@@ -144,8 +144,8 @@ def report_text(res: RoomResult, source_name: str, u: Units = METRIC) -> str:
     if lv:
         model = "Barron & Lee revised theory" if res.reverberant_model == "barron-lee" \
             else "diffuse field, 4/R"
-        out += ["", lv.text(), f"  Levels re 20 uPa, sources summed; reverberant part by "
-                f"{model}; no rho-c correction."]
+        out += ["", lv.text(), _wrap(f"Levels re 20 uPa, sources summed; reverberant part "
+                                     f"by {model}; no rho-c correction.", "  ", "  ")]
     if res.warnings:
         out += ["", "Warnings"] + [_wrap(w.message) for w in res.warnings]
     if res.cautions:
