@@ -480,7 +480,8 @@ def profile_imports(top=14):
     for line in proc.stderr.splitlines():
         if not line.startswith("import time:") or "self [us]" in line:
             continue
-        _, self_us, cum_us, name = (x.strip() for x in line.replace("import time:", "|").split("|"))
+        self_us, cum_us, name = line[len("import time:"):].split("|")
+        name = name[1:]                                  # one space, then two per nesting level
         depth = (len(name) - len(name.lstrip())) // 2
         rows.append((int(cum_us), int(self_us), depth, name.strip()))
     top_level = sorted((r for r in rows if r[2] == 0), reverse=True)
@@ -536,7 +537,7 @@ def main(argv=None):
     print("-" * len(head))
     for name, t_o, t_r, ratio, target, met in rows:
         met_s = "-" if met is None else ("yes" if met else "NO")
-        print(f"{name:44} {fmt_time(t_o):>12} {fmt_time(t_r):>12} {ratio:7.1f}x  {target:13} {met_s}")
+        print(f"{name:44} {fmt_time(t_o):>12} {fmt_time(t_r):>12} {ratio:7.2f}x  {target:13} {met_s}")
     print(f"\ntotal benchmark time {time.perf_counter() - t_start:.1f} s")
 
     missed = [r[0][:3] for r in rows if r[5] is False]

@@ -118,8 +118,10 @@ def _run(args) -> int:
         shown = "built-in demo room" if args.demo else str(path)
         if args.command == "check":
             result = evaluate(room)
-            print(f"{shown}: ok ({len(room.surfaces)} surfaces, {len(room.objects)} objects, "
-                  f"{len(room.sources)} sources, {len(room.receivers)} receivers)")
+            counts = ", ".join(f"{n} {w if n == 1 else w + 's'}" for n, w in (
+                (len(room.surfaces), "surface"), (len(room.objects), "object"),
+                (len(room.sources), "source"), (len(room.receivers), "receiver")))
+            print(f"{shown}: ok ({counts})")
             for w in result.warnings:
                 print(report._wrap(w.message, "  warning: ", "    "))
             return EXIT_OK

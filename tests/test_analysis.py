@@ -179,3 +179,10 @@ def test_batch_matches_single(catalog):
         a = areas[i] @ alphas[i] + 2.0
         assert out["sabine"][i] == pytest.approx(reverb.sabine(v[i], a, m, 343.0))
         assert out["eyring"][i] == pytest.approx(reverb.eyring(v[i], areas[i].sum(), a, m, 343.0))
+
+
+def test_dry_air_is_reported_not_raised():
+    r = box_room()
+    dry = Room(r.bands_hz, r.volume, r.surfaces, r.dimensions, Air(20.0, 1.0, 101.325))
+    assert "air-range" in {w.code for w in evaluate(dry).warnings}
+    assert "air-range" not in {w.code for w in evaluate(r).warnings}

@@ -6,6 +6,7 @@ for batches of rooms given as arrays. It reads no files and prints nothing.
 
 from __future__ import annotations
 
+import warnings
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -116,6 +117,10 @@ def _bands_text(bands, mask):
     return ", ".join(f"{b:g} Hz" for b, on in zip(bands, mask) if on)
 
 
+def _verb(n: int, one: str, many: str) -> str:
+    return one if n == 1 else many
+
+
 def evaluate(room: Room, reverberant_model: str = "classic", method: str | None = None) -> RoomResult:
     """Evaluate a room per octave band.
 
@@ -161,8 +166,15 @@ def evaluate(room: Room, reverberant_model: str = "classic", method: str | None 
 
     air = room.air
     c = float(air_mod.speed_of_sound(air.temperature_c))
-    att = air_mod.attenuation_db_per_m(exact_centre(bands), air.temperature_c,
-                                       air.relative_humidity, air.pressure_kpa)
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always", air_mod.AirRangeWarning)
+        att = air_mod.attenuation_db_per_m(exact_centre(bands), air.temperature_c,
+                                           air.relative_humidity, air.pressure_kpa)
+    if any(issubclass(w.category, air_mod.AirRangeWarning) for w in caught):
+        found.append(Finding("air-range",
+            f"Air at {air.temperature_c:.1f} degC and {air.relative_humidity:.0f} % RH is outside "
+            "the range where ISO 9613-1 states its accuracy (253-323 K, 0.05-5 % molar water "
+            "vapour): air absorption is approximate."))
     m = air_mod.energy_coefficient(att)
 
     # Logarithmic formulas take alpha below 1: cap and say so.
@@ -170,7 +182,8 @@ def evaluate(room: Room, reverberant_model: str = "classic", method: str | None 
     if np.any(capped):
         who = [room.surfaces[i].name for i in np.nonzero(capped.any(axis=1))[0]]
         found.append(Finding("alpha-capped",
-            f"Surfaces {_names(who)} have alpha above {ALPHA_LOG_MAX} (largest "
+            f"{_verb(len(who), 'Surface', 'Surfaces')} {_names(who)} "
+            f"{_verb(len(who), 'has', 'have')} alpha above {ALPHA_LOG_MAX} (largest "
             f"{alphas.max():.2f}): used as given by Sabine, capped at {ALPHA_LOG_MAX} for Eyring, "
             "Millington-Sette, Fitzroy and Arau-Puchades, whose ln(1 - alpha) has no value at 1."))
     alphas_log = np.minimum(alphas, ALPHA_LOG_MAX)
@@ -257,7 +270,8 @@ def evaluate(room: Room, reverberant_model: str = "classic", method: str | None 
     below = np.asarray(bands) < f_s
     if np.any(below):
         found.append(Finding("schroeder",
-            f"{_bands_text(bands, below)} lie below the Schroeder frequency "
+            f"{_bands_text(bands, below)} {_verb(int(below.sum()), 'lies', 'lie')} below the "
+            "Schroeder frequency "
             f"(about {float(np.max(f_s[below])):.0f} Hz): room modes dominate there and the "
             "diffuse-field figures are rough."))
     if room.dimensions is not None:

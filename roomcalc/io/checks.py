@@ -102,6 +102,9 @@ class Checker:
 
     def value(self, v, where: str, *, low=None, high=None, low_open=False, default=None,
               integer=False, unit=""):
+        if integer and isinstance(v, float) and math.isfinite(v):
+            self.add(where, f"must be a whole number, not {v!r}")
+            return default
         if isinstance(v, bool) or not isinstance(v, (int, float)) or \
                 (integer and not isinstance(v, int)):
             want = "a whole number" if integer else "a number"

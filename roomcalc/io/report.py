@@ -239,12 +239,21 @@ REPORTERS = {"text": report_text, "markdown": report_markdown, "json": report_js
 
 # ----------------------------------------------------------------------------- compare
 
+def comparison_method(cmp: Comparison) -> str:
+    """One method for both rooms, like for like: the treated room's recommendation when the
+    untreated room has it too (treatment makes a room deader, where Sabine runs long)."""
+    for k in (cmp.after.recommended, cmp.before.recommended):
+        if k in cmp.before.rt60_s and k in cmp.after.rt60_s:
+            return k
+    return "sabine"
+
+
 def comparison_dict(cmp: Comparison) -> dict:
     b, a = cmp.before, cmp.after
     return {
         "bands_hz": list(b.bands_hz),
         "before": b.room.title, "after": a.room.title,
-        "method": b.recommended,
+        "method": comparison_method(cmp),
         "rt60_before_s": {k: _list(v) for k, v in b.rt60_s.items()},
         "rt60_after_s": {k: _list(v) for k, v in a.rt60_s.items()},
         "rt60_change_s": {k: _list(v) for k, v in cmp.rt60_change_s.items()},
@@ -264,7 +273,7 @@ def comparison_dict(cmp: Comparison) -> dict:
 
 def _compare_tables(cmp: Comparison):
     b, a = cmp.before, cmp.after
-    k = b.recommended if b.recommended in a.rt60_s else "sabine"
+    k = comparison_method(cmp)
     rt = _Table(f"RT60 [s], {METHOD_TITLES[k]}", b.bands_hz)
     rt.add("before", b.rt60_s[k])
     rt.add("after", a.rt60_s[k])

@@ -11,6 +11,7 @@ import math
 from dataclasses import dataclass, field
 from pathlib import Path
 
+import numpy as np
 import tomli_w
 
 from roomcalc.engine.bands import ALLOWED_BANDS_HZ, DEFAULT_BANDS_HZ
@@ -126,8 +127,38 @@ class RoomSpec:
 
 def read_room(path, catalog: Catalog) -> tuple[RoomSpec, Room]:
     """Read, check and resolve a room file. Raises RoomFileError with every problem found."""
-    spec = read_spec(path)
+    try:
+        spec = read_spec(path)
+    except _SpecProblems as exc:  # add what the catalogue says, so every problem shows at once
+        more = _material_problems(exc.spec, exc.inline_ids, catalog, str(path))
+        raise RoomFileError(list(exc.problems) + more) from None
     return spec, resolve(spec, catalog, str(path))
+
+
+class _SpecProblems(RoomFileError):
+    """parse_spec's error, with the spec as far as it was read (for read_room)."""
+
+    def __init__(self, problems, spec: "RoomSpec", inline_ids: set):
+        super().__init__(problems)
+        self.spec, self.inline_ids = spec, inline_ids
+
+
+def _material_problems(spec: "RoomSpec", inline_ids: set, catalog: Catalog,
+                       filename: str) -> list[Problem]:
+    """Unknown materials, wrong kinds and missing bands of a spec that has other problems.
+
+    Ids of the file's own [[materials]] entries are skipped: those entries have problems of
+    their own, already reported.
+    """
+    merged = dict(catalog.materials)
+    merged.update({m.id: m for m in spec.materials if m.id not in merged})
+    cat, chk = Catalog(merged), Checker(filename)
+    for group, items, kind in (("surfaces", spec.surfaces, "surface"),
+                               ("objects", spec.objects, "object")):
+        for i, it in enumerate(items):
+            if it.material and it.material not in inline_ids:
+                _lookup(cat, chk, it.material, f"{group}[{i}]", kind, spec.bands)
+    return chk.problems
 
 
 def read_spec(path) -> RoomSpec:
@@ -309,7 +340,10 @@ def parse_spec(text: str, filename: str = "<room>") -> RoomSpec:
                             f"(0 to {dims[0]:g}, 0 to {dims[1]:g}, 0 to {dims[2]:g} "
                             f"{u.length_label})")
     if chk.problems:
-        raise RoomFileError(chk.problems)
+        entries = data.get("materials")
+        inline_ids = {e["id"] for e in entries if isinstance(e, dict)
+                      and isinstance(e.get("id"), str)} if isinstance(entries, list) else set()
+        raise _SpecProblems(chk.problems, spec, inline_ids - {m.id for m in spec.materials})
     return spec
 
 
@@ -327,8 +361,15 @@ def resolve(spec: RoomSpec, catalog: Catalog, filename: str = "<room>") -> Room:
 
     Raises RoomFileError naming every unknown material, wrong kind, missing band or face area.
     """
-    cat = catalog.with_materials(spec.materials) if spec.materials else catalog
     chk = Checker(filename)
+    fresh: list[Material] = []
+    for i, m in enumerate(spec.materials):  # a duplicate id is reported with the rest
+        if m.id in catalog or any(f.id == m.id for f in fresh):
+            other = catalog[m.id].file if m.id in catalog else "this file"
+            chk.add(f"materials[{i}].id", f"'{m.id}' is already defined in {other}")
+        else:
+            fresh.append(m)
+    cat = catalog.with_materials(fresh) if fresh else catalog
     u = spec.unit_system
     bands = spec.bands
     dims = None
@@ -341,25 +382,7 @@ def resolve(spec: RoomSpec, catalog: Catalog, filename: str = "<room>") -> Room:
         chk.add("shape", "give length, width and height (a box) or volume (a free shape)")
 
     def lookup(mid, where, kind):
-        m = cat.get(mid)
-        if m is None:
-            near = _near(mid, cat.ids(kind))
-            chk.add(f"{where}.material", f"unknown material '{mid}'"
-                    + (f"; did you mean '{near}'?" if near else "")
-                    + " (search with: roomcalc materials WORDS)")
-            return None
-        if m.kind != kind:
-            chk.add(f"{where}.material", f"'{mid}' is a material of kind {m.kind}; "
-                    f"{'surfaces' if kind == 'surface' else 'objects'} need kind {kind}")
-            return None
-        try:
-            return m.values_for(bands)
-        except KeyError as exc:
-            missing = exc.args[0]
-            chk.add(f"{where}.material", f"'{mid}' has no value at {missing} Hz (it gives "
-                    f"{m.bands_text}); give the coefficients inline or remove "
-                    f"{', '.join(map(str, missing))} from bands_hz")
-            return None
+        return _lookup(cat, chk, mid, where, kind, bands)
 
     face_area = {}
     if dims:
@@ -411,9 +434,14 @@ def resolve(spec: RoomSpec, catalog: Catalog, filename: str = "<room>") -> Room:
         pos = tuple(x * u.length for x in s.position) if s.position else None
         sources.append(Source(s.name, lw, s.q, pos))
     receivers = []
-    for r in spec.receivers:
+    for i, r in enumerate(spec.receivers):
         pos = tuple(x * u.length for x in r.position) if r.position else None
         receivers.append(Receiver(r.name, pos, {k: v * u.length for k, v in r.distances.items()}))
+        for s in sources:  # the engine needs a distance above 0 (its own norm, in SI)
+            if s.name not in r.distances and pos is not None and s.position is not None and \
+                    not float(np.linalg.norm(np.subtract(pos, s.position))) > 0:
+                chk.add(f"receivers[{i}].position", f"{r.position} is where source "
+                        f"'{s.name}' is; a receiver must be some distance from each source")
     if chk.problems:
         raise RoomFileError(chk.problems)
     a = spec.air
@@ -424,6 +452,29 @@ def resolve(spec: RoomSpec, catalog: Catalog, filename: str = "<room>") -> Room:
     return Room(bands_hz=bands, volume=volume, surfaces=tuple(surfaces), dimensions=dims,
                 air=air, objects=tuple(objects), sources=tuple(sources),
                 receivers=tuple(receivers), title=spec.title)
+
+
+def _lookup(cat: Catalog, chk: Checker, mid: str, where: str, kind: str, bands):
+    """A material's values at the bands, or None after reporting why not."""
+    m = cat.get(mid)
+    if m is None:
+        near = _near(mid, cat.ids(kind))
+        chk.add(f"{where}.material", f"unknown material '{mid}'"
+                + (f"; did you mean '{near}'?" if near else "")
+                + " (search with: roomcalc materials WORDS)")
+        return None
+    if m.kind != kind:
+        chk.add(f"{where}.material", f"'{mid}' is a material of kind {m.kind}; "
+                f"{'surfaces' if kind == 'surface' else 'objects'} need kind {kind}")
+        return None
+    try:
+        return m.values_for(bands)
+    except KeyError as exc:
+        missing = exc.args[0]
+        chk.add(f"{where}.material", f"'{mid}' has no value at {missing} Hz (it gives "
+                f"{m.bands_text}); give the coefficients inline or remove "
+                f"{', '.join(map(str, missing))} from bands_hz")
+        return None
 
 
 def _near(word, choices):
