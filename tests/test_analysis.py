@@ -186,3 +186,19 @@ def test_dry_air_is_reported_not_raised():
     dry = Room(r.bands_hz, r.volume, r.surfaces, r.dimensions, Air(20.0, 1.0, 101.325))
     assert "air-range" in {w.code for w in evaluate(dry).warnings}
     assert "air-range" not in {w.code for w in evaluate(r).warnings}
+
+
+def test_batch_by_material_matches_per_surface():
+    from roomcalc.engine.analysis import batch_reverberation, batch_reverberation_by_material
+    rng = np.random.default_rng(7)
+    table = rng.uniform(0.01, 0.9, (15, 6))
+    idx = rng.integers(0, 15, (40, 8))
+    areas = rng.uniform(0, 50, (40, 8))
+    v = rng.uniform(80, 900, 40)
+    m = np.array([0.0001, 0.0003, 0.0006, 0.001, 0.002, 0.006])
+    a = batch_reverberation_by_material(v, areas, idx, table, 1.5, m, 343.0)
+    b = batch_reverberation(v, areas, table[idx], 1.5, m, 343.0)
+    for key in ("sabine", "eyring", "millington", "room_constant"):
+        np.testing.assert_allclose(a[key], b[key], rtol=1e-12)
+    with pytest.raises(ValueError, match="material"):
+        batch_reverberation_by_material(v, areas, idx + 15, table)

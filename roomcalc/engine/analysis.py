@@ -6,7 +6,7 @@ for batches of rooms given as arrays. It reads no files and prints nothing.
 
 from __future__ import annotations
 
-import warnings
+import math
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -14,7 +14,9 @@ import numpy as np
 from roomcalc.engine import air as air_mod
 from roomcalc.engine import field as field_mod
 from roomcalc.engine import reverb
-from roomcalc.engine.bands import a_weighted_total, db_from_ratio, energetic_sum, exact_centre
+from roomcalc.engine.reverb import LN10
+from roomcalc.engine.bands import (a_weighted_total, band_constants, db_from_ratio,
+                                   energetic_sum)
 from roomcalc.engine.model import FACE_AXIS, Room
 
 #: Largest alpha the logarithmic formulas are given; larger values are capped (and reported).
@@ -23,6 +25,9 @@ ALPHA_LOG_MAX = 0.99
 #: Level at a receiver from which the hearing caution is shown [dB(A)] (EU 2003/10/EC lower
 #: exposure action value).
 CAUTION_DBA = 80.0
+
+#: Closest a receiver may be to a source [m]; nearer, the point-source level has no meaning.
+MIN_DISTANCE_M = 1e-3
 
 #: Methods, in the order they are reported.
 METHODS = ("sabine", "eyring", "millington", "fitzroy", "arau_puchades")
@@ -71,7 +76,12 @@ class ReceiverResult:
     level_dba: float
     direct_dba: float
     reverberant_dba: float
-    per_source_db: dict[str, np.ndarray]
+    source_energy: np.ndarray           # (sources, bands): each source's 10^(Lp/10) here
+
+    @property
+    def per_source_db(self) -> dict[str, np.ndarray]:
+        """Each source's level at this receiver, per band [dB], by source name."""
+        return dict(zip(self.distances_m, 10.0 * np.log10(self.source_energy)))
 
 
 @dataclass(frozen=True, eq=False)
@@ -141,53 +151,77 @@ def evaluate(room: Room, reverberant_model: str = "classic", method: str | None 
     Arau-Puchades (when the room is a box and every surface names its face); air absorption by
     ISO 9613-1 at the exact mid-band frequencies; room constant with the air term; levels by
     :func:`roomcalc.engine.field.levels`. docs/methods.md gives every equation.
+
+    The inputs are checked once here, in whole arrays; the formulas then run unchecked.
     """
     if reverberant_model not in REVERBERANT_MODELS:
         raise ValueError(f"reverberant_model: {reverberant_model!r} is not one of "
                          f"{list(REVERBERANT_MODELS)}")
+    if method is not None and method not in METHODS:
+        raise ValueError(f"method: {method!r} is not one of {list(METHODS)}")
     bands = tuple(int(b) for b in room.bands_hz)
     nb = len(bands)
     if not room.surfaces:
         raise ValueError("surfaces: a room needs at least one surface")
     v = float(room.volume)
+    if not (math.isfinite(v) and v > 0):
+        raise ValueError(f"volume: {v} must be finite and above 0 m^3")
     found: list[Finding] = []
+    fm, aw = band_constants(bands)
 
-    areas = np.array([s.total_area for s in room.surfaces])
-    alphas = np.stack([s.alpha for s in room.surfaces])
+    surfaces = room.surfaces
+    areas = np.fromiter((sf.area * sf.count for sf in surfaces), float, len(surfaces))
+    try:
+        alphas = np.stack([sf.alpha for sf in surfaces])
+    except ValueError:
+        raise ValueError(f"surfaces: alpha must have {nb} values per surface") from None
     if alphas.shape != (len(areas), nb):
         raise ValueError(f"surfaces: alpha must have {nb} values per surface")
+    if not (np.isfinite(areas).all() and (areas > 0).all()):
+        raise ValueError("surfaces: every area must be finite and above 0 m^2")
+    if not (np.isfinite(alphas).all() and (alphas >= 0).all()):
+        raise ValueError("surfaces: every alpha must be finite and 0 or more")
     s_tot = float(areas.sum())
     a_surf = areas @ alphas
     if room.objects:
         a_obj = np.sum([o.count * o.absorption for o in room.objects], axis=0)
+        if a_obj.shape != (nb,) or not np.all(np.isfinite(a_obj)) or np.any(a_obj < 0):
+            raise ValueError(f"objects: absorption must be {nb} finite values of 0 or more")
     else:
         a_obj = np.zeros(nb)
     a_tot = a_surf + a_obj
 
     air = room.air
-    c = float(air_mod.speed_of_sound(air.temperature_c))
-    with warnings.catch_warnings(record=True) as caught:
-        warnings.simplefilter("always", air_mod.AirRangeWarning)
-        att = air_mod.attenuation_db_per_m(exact_centre(bands), air.temperature_c,
-                                           air.relative_humidity, air.pressure_kpa)
-    if any(issubclass(w.category, air_mod.AirRangeWarning) for w in caught):
+    if not (-273.15 < air.temperature_c < 1000 and 0 <= air.relative_humidity <= 100
+            and air.pressure_kpa > 0):
+        raise ValueError("air: temperature above -273.15 degC, humidity 0 to 100 %, "
+                         "pressure above 0 kPa")
+    c = 331.3 * math.sqrt(1.0 + air.temperature_c / 273.15)   # air.speed_of_sound
+    k = 24.0 * LN10 / c                                       # reverb.sabine_constant
+    att, h = air_mod._iso9613_1(fm, air.temperature_c + 273.15, air.relative_humidity,
+                                air.pressure_kpa)
+    t_k = air.temperature_c + 273.15
+    if t_k < 253.0 or t_k > 323.0 or np.any(h < 0.05) or np.any(h > 5.0):
         found.append(Finding("air-range",
             f"Air at {air.temperature_c:.1f} degC and {air.relative_humidity:.0f} % RH is outside "
             "the range where ISO 9613-1 states its accuracy (253-323 K, 0.05-5 % molar water "
             "vapour): air absorption is approximate."))
-    m = air_mod.energy_coefficient(att)
+    m = att / air_mod.DB_PER_NEPER_ENERGY
 
     # Logarithmic formulas take alpha below 1: cap and say so.
     capped = alphas > ALPHA_LOG_MAX
-    if np.any(capped):
-        who = [room.surfaces[i].name for i in np.nonzero(capped.any(axis=1))[0]]
+    if capped.any():
+        who = [surfaces[i].name for i in np.nonzero(capped.any(axis=1))[0]]
         found.append(Finding("alpha-capped",
             f"{_verb(len(who), 'Surface', 'Surfaces')} {_names(who)} "
             f"{_verb(len(who), 'has', 'have')} alpha above {ALPHA_LOG_MAX} (largest "
             f"{alphas.max():.2f}): used as given by Sabine, capped at {ALPHA_LOG_MAX} for Eyring, "
             "Millington-Sette, Fitzroy and Arau-Puchades, whose ln(1 - alpha) has no value at 1."))
-    alphas_log = np.minimum(alphas, ALPHA_LOG_MAX)
-    a_log = areas @ alphas_log + a_obj
+        alphas_log = np.minimum(alphas, ALPHA_LOG_MAX)
+        a_log = areas @ alphas_log + a_obj
+    else:
+        alphas_log = alphas
+        a_log = a_tot
     abar = a_log / s_tot
     if np.any(abar > ALPHA_LOG_MAX):
         found.append(Finding("mean-alpha-capped",
@@ -197,41 +231,48 @@ def evaluate(room: Room, reverberant_model: str = "classic", method: str | None 
 
     rt: dict[str, np.ndarray] = {}
     unavailable: dict[str, str] = {}
-    rt["sabine"] = reverb.sabine(v, a_tot, m, c)
-    rt["eyring"] = reverb.eyring(v, s_tot, abar * s_tot, m, c)
-    rt["millington"] = reverb.millington(v, areas, alphas_log, m, c, extra_absorption=a_obj)
+    if np.any(a_tot + 4.0 * m * v <= 0):
+        raise ValueError("surfaces: the room has no absorption at all; Sabine's formula needs "
+                         "some")
+    rt["sabine"] = reverb._sabine(v, a_tot, m, k)
+    rt["eyring"] = reverb._eyring(v, s_tot, abar, m, k)
+    rt["millington"] = reverb._millington(v, areas, alphas_log, m, k, a_obj)
 
     axis_alpha = None
-    no_face = [s.name for s in room.surfaces if s.face is None]
     if room.dimensions is None:
         reason = "the room is given by volume, not as a box (length, width, height)"
         unavailable["fitzroy"] = unavailable["arau_puchades"] = reason
-    elif no_face:
-        reason = f"surfaces {_names(no_face)} do not say which box face they lie on"
-        unavailable["fitzroy"] = unavailable["arau_puchades"] = reason
     else:
-        axis_of = np.array([FACE_AXIS[s.face] for s in room.surfaces])
-        onehot = (axis_of[None, :] == np.arange(3)[:, None]).astype(float)
-        s_axis = onehot @ areas
-        if np.any(s_axis <= 0):
-            missing = [("front/back", "left/right", "floor/ceiling")[i]
-                       for i in np.nonzero(s_axis <= 0)[0]]
-            reason = f"no surface lies on the {', '.join(missing)} faces"
+        faces = [sf.face for sf in surfaces]
+        no_face = [sf.name for sf, f in zip(surfaces, faces) if f is None]
+        if no_face:
+            reason = f"surfaces {_names(no_face)} do not say which box face they lie on"
             unavailable["fitzroy"] = unavailable["arau_puchades"] = reason
         else:
-            axis_alpha = np.minimum((onehot @ (areas[:, None] * alphas_log)) / s_axis[:, None]
-                                    + a_obj / s_tot, ALPHA_LOG_MAX)
-            rt["fitzroy"] = reverb.fitzroy(v, s_axis, axis_alpha, m, c)
-            rt["arau_puchades"] = reverb.arau_puchades(v, s_axis, axis_alpha, m, c)
+            axis_of = np.array([FACE_AXIS[f] for f in faces])
+            onehot = (axis_of[None, :] == _AXES[:, None]).astype(float)
+            s_axis = onehot @ areas
+            if np.any(s_axis <= 0):
+                missing = [("front/back", "left/right", "floor/ceiling")[i]
+                           for i in np.nonzero(s_axis <= 0)[0]]
+                reason = f"no surface lies on the {', '.join(missing)} faces"
+                unavailable["fitzroy"] = unavailable["arau_puchades"] = reason
+            else:
+                axis_alpha = np.minimum(onehot @ (areas[:, None] * alphas_log) / s_axis[:, None]
+                                        + a_obj / s_tot, ALPHA_LOG_MAX)
+                tx, w = reverb._axis_times_impl(v, s_axis, axis_alpha, m, k)
+                rt["fitzroy"] = reverb._fitzroy(tx, w)
+                rt["arau_puchades"] = reverb._arau_puchades(tx, w)
 
     # Room constant, with air.
-    abar_t = field_mod.mean_alpha_with_air(s_tot, a_log, v, m)
+    abar_t = (a_log + 4.0 * m * v) / s_tot
     if np.any(abar_t > ALPHA_LOG_MAX):
         found.append(Finding("room-constant-capped",
-            f"Mean alpha with air exceeds {ALPHA_LOG_MAX} at {_bands_text(bands, abar_t > ALPHA_LOG_MAX)}: "
-            "the room constant is computed with it capped; such a room is close to free field."))
+            f"Mean alpha with air exceeds {ALPHA_LOG_MAX} at "
+            f"{_bands_text(bands, abar_t > ALPHA_LOG_MAX)}: the room constant is computed with it "
+            "capped; such a room is close to free field."))
         abar_t = np.minimum(abar_t, ALPHA_LOG_MAX)
-    r_const = field_mod.room_constant(s_tot, abar_t)
+    r_const = s_tot * abar_t / (1.0 - abar_t)                 # field.room_constant
 
     # Which method to trust.
     mid = [i for i, b in enumerate(bands) if b in (500, 1000)] or list(range(nb))
@@ -254,8 +295,6 @@ def evaluate(room: Room, reverberant_model: str = "classic", method: str | None 
         reason = (f"mean alpha at 500-1000 Hz is {abar_mid:.2f}, a live room where Sabine "
                   "and Eyring agree closely")
     if method is not None:
-        if method not in METHODS:
-            raise ValueError(f"method: {method!r} is not one of {list(METHODS)}")
         if method not in rt:
             raise ValueError(f"method: {METHOD_TITLES[method]} is unavailable for this room: "
                              f"{unavailable[method]}")
@@ -266,14 +305,13 @@ def evaluate(room: Room, reverberant_model: str = "classic", method: str | None 
     t_rec = rt[recommended]
 
     # Validity warnings.
-    f_s = reverb.schroeder_frequency(t_rec, v)
+    f_s = 2000.0 * np.sqrt(t_rec / v)                         # reverb.schroeder_frequency
     below = np.asarray(bands) < f_s
-    if np.any(below):
+    if below.any():
         found.append(Finding("schroeder",
             f"{_bands_text(bands, below)} {_verb(int(below.sum()), 'lies', 'lie')} below the "
-            "Schroeder frequency "
-            f"(about {float(np.max(f_s[below])):.0f} Hz): room modes dominate there and the "
-            "diffuse-field figures are rough."))
+            f"Schroeder frequency (about {float(np.max(f_s[below])):.0f} Hz): room modes "
+            "dominate there and the diffuse-field figures are rough."))
     if room.dimensions is not None:
         dims = sorted(room.dimensions)
         if dims[2] / dims[0] > 3.0:
@@ -297,54 +335,8 @@ def evaluate(room: Room, reverberant_model: str = "classic", method: str | None 
             f"Mean alpha is above 0.3 at {', '.join(f'{b:g} Hz' for b in high)}: Sabine "
             "overestimates the reverberation time there; use Eyring or Millington-Sette."))
 
-    # Sources and receivers.
-    src_results = []
-    for s in room.sources:
-        if s.sound_power_db.shape != (nb,):
-            raise ValueError(f"source {s.name!r}: sound power needs {nb} values")
-        src_results.append(SourceResult(s.name, float(s.directivity), s.sound_power_db,
-                                        field_mod.critical_distance(s.directivity, r_const)))
-    rec_results = []
-    cautions: list[str] = []
-    if room.sources and room.receivers:
-        lw = np.stack([s.sound_power_db for s in room.sources])          # (S, B)
-        q = np.array([s.directivity for s in room.sources])              # (S,)
-        dist = np.array([[room.distance(r, s) for s in room.sources] for r in room.receivers])
-        if np.any(dist <= 0):
-            raise ValueError("receivers: a receiver is at the same point as a source")
-        direct = q[None, :, None] / (4.0 * np.pi * dist[:, :, None] ** 2)  # (R, S, 1)
-        if reverberant_model == "classic":
-            rev = np.broadcast_to(4.0 / r_const, direct.shape[:2] + (nb,))
-        else:
-            rev = field_mod.barron_lee_reverberant_term(t_rec[None, None, :], v,
-                                                        dist[:, :, None])
-        e_dir = direct * 10.0 ** (lw[None] / 10.0)                         # (R, S, B)
-        e_rev = rev * 10.0 ** (lw[None] / 10.0)
-        tot = db_from_ratio(e_dir.sum(axis=1) + e_rev.sum(axis=1))
-        d_db = db_from_ratio(e_dir.sum(axis=1))
-        r_db = db_from_ratio(e_rev.sum(axis=1))
-        per = db_from_ratio(e_dir + e_rev)
-        la = a_weighted_total(tot, bands)
-        la_d = a_weighted_total(d_db, bands)
-        la_r = a_weighted_total(r_db, bands)
-        close = []
-        for i, r in enumerate(room.receivers):
-            rec_results.append(ReceiverResult(
-                r.name, {s.name: float(dist[i, j]) for j, s in enumerate(room.sources)},
-                tot[i], d_db[i], r_db[i], float(la[i]), float(la_d[i]), float(la_r[i]),
-                {s.name: per[i, j] for j, s in enumerate(room.sources)}))
-            for j, s in enumerate(room.sources):
-                if dist[i, j] < 0.5:
-                    close.append(f"'{r.name}' is {dist[i, j]:.2f} m from '{s.name}'")
-            if la[i] >= CAUTION_DBA:
-                cautions.append(f"'{r.name}': estimated {la[i]:.1f} dB(A).")
-        if close:
-            found.append(Finding("receiver-close",
-                "; ".join(close) + ": closer than 0.5 m, where a real source is not a point and "
-                "the inverse-square estimate is rough."))
-        if cautions:
-            cautions.append(HEARING_CAUTION)
-
+    src_results, rec_results, cautions = _field(room, bands, aw, r_const, t_rec, v,
+                                                 reverberant_model, found)
     return RoomResult(
         room=room, bands_hz=bands, volume_m3=v, surface_area_m2=s_tot,
         absorption_area_m2=a_tot, surface_absorption_m2=a_surf, object_absorption_m2=a_obj,
@@ -352,8 +344,92 @@ def evaluate(room: Room, reverberant_model: str = "classic", method: str | None 
         mean_alpha=a_tot / s_tot, rt60_s=rt, unavailable=unavailable,
         recommended=recommended, recommended_reason=reason, room_constant_m2=r_const,
         schroeder_hz=f_s, reverberant_model=reverberant_model,
-        sources=tuple(src_results), receivers=tuple(rec_results),
+        sources=src_results, receivers=rec_results,
         warnings=tuple(found), cautions=tuple(cautions), axis_alpha=axis_alpha)
+
+
+_AXES = np.arange(3)
+
+
+def _distances(room: Room) -> np.ndarray:
+    """Distances [m] receiver x source: given ones, else from the positions, in one array."""
+    srcs, recs = room.sources, room.receivers
+    dist = np.full((len(recs), len(srcs)), np.nan)
+    sp = np.array([s.position if s.position is not None else (np.nan,) * 3 for s in srcs],
+                  dtype=float).reshape(len(srcs), 3)
+    rp = np.array([r.position if r.position is not None else (np.nan,) * 3 for r in recs],
+                  dtype=float).reshape(len(recs), 3)
+    diff = rp[:, None, :] - sp[None, :, :]
+    dist = np.sqrt(np.einsum("rsk,rsk->rs", diff, diff))
+    index = {s.name: j for j, s in enumerate(srcs)}
+    for i, r in enumerate(recs):
+        for name, d in r.distances.items():
+            j = index.get(name)
+            if j is not None:
+                dist[i, j] = d
+    if np.isnan(dist).any():
+        i, j = (int(x[0]) for x in np.nonzero(np.isnan(dist)))
+        raise ValueError(f"receiver {recs[i].name!r}: no distance to source {srcs[j].name!r} "
+                         "and no positions to compute it from")
+    if not np.isfinite(dist).all() or (dist < MIN_DISTANCE_M).any():
+        raise ValueError(f"receivers: every distance to a source must be finite and at least "
+                         f"{MIN_DISTANCE_M * 1000:g} mm (a receiver is at a source's position)")
+    return dist
+
+
+def _field(room, bands, aw, r_const, t_rec, v, reverberant_model, found):
+    """Critical distances per source and levels per receiver, all pairs at once."""
+    nb = len(bands)
+    srcs = room.sources
+    src_results: list[SourceResult] = []
+    if srcs:
+        lw = np.stack([s.sound_power_db for s in srcs])                   # (S, B)
+        if lw.shape != (len(srcs), nb) or not np.all(np.isfinite(lw)):
+            raise ValueError(f"sources: sound power needs {nb} finite values per source")
+        q = np.array([s.directivity for s in srcs], dtype=float)            # (S,)
+        if not (np.all(np.isfinite(q)) and np.all(q > 0)):
+            raise ValueError("sources: directivity Q must be finite and above 0")
+        rc = np.sqrt(q[:, None] * r_const[None, :] / (16.0 * np.pi))     # field.critical_distance
+        src_results = [SourceResult(s.name, float(q[j]), s.sound_power_db, rc[j])
+                       for j, s in enumerate(srcs)]
+    rec_results: list[ReceiverResult] = []
+    cautions: list[str] = []
+    if not (srcs and room.receivers):
+        return tuple(src_results), tuple(rec_results), cautions
+    dist = _distances(room)                                                # (R, S)
+    power = 10.0 ** (lw / 10.0)                                            # (S, B)
+    direct = q[None, :, None] / (4.0 * np.pi * dist[:, :, None] ** 2)      # (R, S, 1)
+    e_dir = direct * power[None]                                           # (R, S, B)
+    if reverberant_model == "classic":
+        e_rev = (4.0 / r_const)[None, None, :] * power[None]               # (1, S, B)
+    else:
+        e_rev = field_mod.barron_lee_reverberant_term(t_rec[None, None, :], v,
+                                                      dist[:, :, None]) * power[None]
+    per = e_dir + e_rev                                                    # (R, S, B)
+    d_sum = e_dir.sum(axis=1)
+    r_sum = np.broadcast_to(e_rev.sum(axis=1), d_sum.shape)
+    levels = 10.0 * np.log10(np.stack([d_sum + r_sum, d_sum, r_sum]))      # (3, R, B)
+    la = 10.0 * np.log10(np.sum(10.0 ** ((levels + aw) / 10.0), axis=-1))  # (3, R)
+    names = [s.name for s in srcs]
+    dist_list = dist.tolist()
+    la_list = la.tolist()
+    for i, r in enumerate(room.receivers):
+        rec_results.append(ReceiverResult(
+            r.name, dict(zip(names, dist_list[i])), levels[0, i], levels[1, i], levels[2, i],
+            la_list[0][i], la_list[1][i], la_list[2][i], per[i]))
+        if la_list[0][i] >= CAUTION_DBA:
+            cautions.append(f"'{r.name}': estimated {la_list[0][i]:.1f} dB(A).")
+    close = np.argwhere(dist < 0.5)
+    if close.size:
+        found.append(Finding("receiver-close",
+            "; ".join(f"'{room.receivers[i].name}' is {dist[i, j]:.2f} m from '{names[j]}'"
+                      for i, j in close[:6]) +
+            (f" (and {len(close) - 6} more)" if len(close) > 6 else "") +
+            ": closer than 0.5 m, where a real source is not a point and the inverse-square "
+            "estimate is rough."))
+    if cautions:
+        cautions.append(HEARING_CAUTION)
+    return tuple(src_results), tuple(rec_results), cautions
 
 
 def distance_curves(result: RoomResult, source: str, distances_m=None, points: int = 200):
@@ -496,4 +572,78 @@ def batch_reverberation(volume, areas, alphas, object_absorption=0.0, m=0.0, c=3
         "eyring": reverb.eyring(v, s, a, m, c),
         "millington": reverb.millington(v, s_i, a_i, m, c, extra_absorption=a_obj),
         "room_constant": field_mod.room_constant(s, (a + 4.0 * np.asarray(m) * v) / s),
+    }
+
+
+def batch_reverberation_by_material(volume, areas, material, material_alpha,
+                                    object_absorption=0.0, m=0.0, c=343.0):
+    """Sabine, Eyring, Millington-Sette and room constant for many rooms built from one table
+    of materials, e.g. a facilities office surveying all its classrooms.
+
+    Parameters
+    ----------
+    volume : array_like, shape (N,) -- volumes [m^3]
+    areas : array_like, shape (N, n) -- surface areas [m^2] (pad with zero areas)
+    material : array_like of int, shape (N, n) -- row of ``material_alpha`` each surface uses
+    material_alpha : array_like, shape (M, bands) -- coefficients of the M materials, below 1
+    object_absorption : array_like, shape (N, bands) or broadcastable -- objects [m^2]
+    m : array_like, shape (bands,) -- air coefficient [1/m]
+    c : float -- speed of sound [m/s]
+
+    Returns
+    -------
+    dict of (N, bands) arrays: ``sabine``, ``eyring``, ``millington``, ``room_constant``
+
+    Notes
+    -----
+    The equations of :func:`batch_reverberation`. Because every surface takes its alpha from the
+    table, each room's area per material W (N, M, sparse) is formed once, and then
+    :math:`A = W \\alpha` and :math:`\\sum_i S_i \\ln(1 - \\alpha_i) = W \\ln(1 - \\alpha)`: the
+    logarithm is taken M times, not N n times.
+    """
+    v = np.asarray(volume, dtype=float)
+    s_i = np.asarray(areas, dtype=float)
+    idx = np.asarray(material)
+    alpha = np.asarray(material_alpha, dtype=float)
+    n_rooms, n_mat = v.shape[0], alpha.shape[0]
+    if s_i.shape != idx.shape or s_i.shape[0] != n_rooms:
+        raise ValueError("areas and material must both have shape (rooms, surfaces)")
+    if not np.issubdtype(idx.dtype, np.integer) or idx.min() < 0 or idx.max() >= n_mat:
+        raise ValueError(f"material: whole numbers from 0 to {n_mat - 1} (rows of material_alpha)")
+    if not (np.isfinite(v).all() and (v > 0).all()):
+        raise ValueError("volume: must be finite and above 0")
+    if not (np.isfinite(s_i).all() and (s_i >= 0).all()):
+        raise ValueError("areas: must be finite and 0 or more")
+    if not ((alpha >= 0).all() and (alpha < 1).all()):
+        raise ValueError("material_alpha: must be 0 or more and below 1")
+    from scipy import sparse  # imported here: scipy.sparse is slow to import for one room
+
+    n_surf = s_i.shape[1]
+    w = sparse.csr_matrix((s_i.ravel(), idx.ravel(), np.arange(0, n_rooms * n_surf + 1, n_surf)),
+                          shape=(n_rooms, n_mat))          # area of each material in each room
+    nb = alpha.shape[1]
+    both = w @ np.hstack([alpha, np.log1p(-alpha)])        # (N, 2 bands): A and sum S ln(1-a)
+    a_obj = np.broadcast_to(np.asarray(object_absorption, dtype=float), (n_rooms, nb))
+    s = s_i.sum(axis=1)[:, None]
+    # Each whole-array operation costs about as much as the next here, so shared terms are
+    # formed once.
+    air4 = (4.0 * np.asarray(m, dtype=float)) * v[:, None]
+    a = both[:, :nb]
+    a += a_obj
+    abar = a / s
+    if (abar >= 1).any():
+        raise ValueError("objects: mean alpha with objects reaches 1 in some room")
+    kv = (24.0 * LN10 / float(c)) * v[:, None]
+    a_air = a + air4
+    abar_t = a_air / s
+    eyr = np.log(1.0 - abar)              # log(1 - x): vectorised log, faster than log1p here
+    eyr *= -s
+    eyr += air4
+    mil = air4 - both[:, nb:]
+    mil += a_obj
+    return {
+        "sabine": kv / a_air,
+        "eyring": kv / eyr,
+        "millington": kv / mil,
+        "room_constant": abar_t * s / (1.0 - abar_t),
     }

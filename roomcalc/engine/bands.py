@@ -5,6 +5,8 @@ All level arithmetic of the project lives here, so energetic sums are written on
 
 from __future__ import annotations
 
+from functools import lru_cache
+
 import numpy as np
 
 #: Nominal octave-band centre frequencies [Hz], IEC 61260-1:2014, Table E.1 (nominal values).
@@ -136,3 +138,12 @@ def a_weighted_total(band_levels_db, nominal_hz, axis=-1) -> np.ndarray:
     """
     levels = np.moveaxis(np.asarray(band_levels_db, dtype=float), axis, -1)
     return energetic_sum(levels + a_weighting(nominal_hz), axis=-1)
+
+
+@lru_cache(maxsize=32)
+def band_constants(bands_hz: tuple) -> tuple[np.ndarray, np.ndarray]:
+    """(exact centres [Hz], A-weighting [dB]) of a tuple of nominal centres, computed once."""
+    fm, aw = exact_centre(bands_hz), a_weighting(bands_hz)
+    fm.setflags(write=False)
+    aw.setflags(write=False)
+    return fm, aw

@@ -84,10 +84,13 @@ def sabine(volume, absorption_area, m=0.0, c=343.0) -> np.ndarray:
     v = _positive("volume", volume)
     a = _non_negative("absorption_area", absorption_area)
     m = _non_negative("m", m)
-    denom = a + 4.0 * m * v
-    if np.any(denom <= 0):
+    if np.any(a + 4.0 * m * v <= 0):
         raise ValueError("absorption_area: total absorption (with air) must be above 0 m^2")
-    return sabine_constant(c) * v / denom
+    return _sabine(v, a, m, sabine_constant(c))
+
+
+def _sabine(v, a, m, k):
+    return k * v / (a + 4.0 * m * v)
 
 
 def eyring(volume, surface_area, absorption_area, m=0.0, c=343.0) -> np.ndarray:
@@ -123,7 +126,11 @@ def eyring(volume, surface_area, absorption_area, m=0.0, c=343.0) -> np.ndarray:
     a = _non_negative("absorption_area", absorption_area)
     abar = _alpha_log("absorption_area / surface_area", a / s)
     m = _non_negative("m", m)
-    return sabine_constant(c) * v / (-s * np.log1p(-abar) + 4.0 * m * v)
+    return _eyring(v, s, abar, m, sabine_constant(c))
+
+
+def _eyring(v, s, abar, m, k):
+    return k * v / (-s * np.log1p(-abar) + 4.0 * m * v)
 
 
 def millington(volume, areas, alphas, m=0.0, c=343.0, extra_absorption=0.0) -> np.ndarray:
@@ -164,8 +171,12 @@ def millington(volume, areas, alphas, m=0.0, c=343.0, extra_absorption=0.0) -> n
     if a.shape[:-1][-1:] != s.shape[-1:]:
         raise ValueError(f"alphas: shape {a.shape} does not match areas {s.shape} "
                          "(expected (..., n, bands) with n surfaces)")
-    absorption = -np.sum(s[..., None] * np.log1p(-a), axis=-2) + extra
-    return sabine_constant(c) * v / (absorption + 4.0 * m * v)
+    return _millington(v, s, a, m, sabine_constant(c), extra)
+
+
+def _millington(v, s, a, m, k, extra):
+    absorption = -np.einsum("...i,...ib->...b", s, np.log1p(-a)) + extra
+    return k * v / (absorption + 4.0 * m * v)
 
 
 def _axis_times(volume, axis_areas, axis_alphas, m, c):
@@ -177,12 +188,23 @@ def _axis_times(volume, axis_areas, axis_alphas, m, c):
     if sx.shape[-1] != 3 or ax.shape[-2] != 3:
         raise ValueError("axis_areas must have shape (..., 3) and axis_alphas (..., 3, bands): "
                          "one entry per axis x, y, z")
+    return _axis_times_impl(v, sx, ax, m, sabine_constant(c))
+
+
+def _axis_times_impl(v, sx, ax, m, k):
     s = np.sum(sx, axis=-1)
-    k = sabine_constant(c)
     v, m, k = (_per_axis(x) for x in (v, m, k))
     tx = k * v / (-s[..., None, None] * np.log1p(-ax) + 4.0 * m * v)
     weights = (sx / s[..., None])[..., None]
     return tx, weights
+
+
+def _fitzroy(tx, w):
+    return np.sum(w * tx, axis=-2)
+
+
+def _arau_puchades(tx, w):
+    return np.exp(np.sum(w * np.log(tx), axis=-2))
 
 
 def _per_axis(x):
@@ -227,7 +249,7 @@ def fitzroy(volume, axis_areas, axis_alphas, m=0.0, c=343.0) -> np.ndarray:
     0.6999
     """
     tx, w = _axis_times(volume, axis_areas, axis_alphas, m, c)
-    return np.sum(w * tx, axis=-2)
+    return _fitzroy(tx, w)
 
 
 def arau_puchades(volume, axis_areas, axis_alphas, m=0.0, c=343.0) -> np.ndarray:
@@ -249,7 +271,7 @@ def arau_puchades(volume, axis_areas, axis_alphas, m=0.0, c=343.0) -> np.ndarray
     1.1424
     """
     tx, w = _axis_times(volume, axis_areas, axis_alphas, m, c)
-    return np.exp(np.sum(w * np.log(tx), axis=-2))
+    return _arau_puchades(tx, w)
 
 
 def schroeder_frequency(rt60, volume) -> np.ndarray:

@@ -66,7 +66,7 @@ def band_power_from_dba(level_dba, shape, bands_hz) -> np.ndarray:
     table = SPECTRUM_SHAPES[shape]
     missing = [int(b) for b in bands_hz if int(b) not in table]
     if missing:
-        raise ValueError(f"shape: {shape!r} has no value at {missing} Hz")
+        raise ValueError(f"shape: {shape!r} has no value at {', '.join(map(str, missing))} Hz")
     s = np.array([table[int(b)] for b in bands_hz])
     offset = db_from_ratio(np.sum(ratio_from_db(s + a_weighting(bands_hz))))
     return float(level_dba) + s - offset

@@ -159,7 +159,9 @@ def _fmt(v) -> str:
 def _range(low, high, low_open, unit) -> str:
     u = f" {unit}" if unit else ""
     if low is not None and high is not None:
-        return f"{_fmt(low)} to {_fmt(high)}{u}" + (f" (above {_fmt(low)})" if low_open else "")
+        if low_open:
+            return f"the allowed range: above {_fmt(low)} and up to {_fmt(high)}{u}"
+        return f"{_fmt(low)} to {_fmt(high)}{u}"
     if low is not None:
         return f"the allowed range: {'above' if low_open else 'at least'} {_fmt(low)}{u}"
     return f"the allowed range: at most {_fmt(high)}{u}"

@@ -270,6 +270,7 @@ def parse_spec(text: str, filename: str = "<room>") -> RoomSpec:
         spec.objects.append(op)
 
     names = []
+    bad_position = set()  # sources whose position is reported already
     for i, s in enumerate(chk.array_of_tables(data, "sources")):
         w = f"sources[{i}]"
         chk.keys(s, w, SOURCE_KEYS)
@@ -293,13 +294,16 @@ def parse_spec(text: str, filename: str = "<room>") -> RoomSpec:
         if sp.spectrum and "sound_power_dba" in s:
             missing = [b for b in spec.bands if b not in SPECTRUM_SHAPES[sp.spectrum]]
             if missing:
-                chk.add(f"{w}.spectrum", f"'{sp.spectrum}' has no value at {missing} Hz")
+                chk.add(f"{w}.spectrum", f"'{sp.spectrum}' has no value at "
+                        f"{', '.join(map(str, missing))} Hz")
         sp.directivity = chk.number(s, "directivity", w, low=0.0, low_open=True, high=100.0,
                                     unit="(Q)")
         sp.placement = chk.text(s, "placement", w, choices=tuple(PLACEMENT_Q))
         if "directivity" in s and "placement" in s:
             chk.add(w, "give either directivity (Q) or placement, not both")
         sp.position = _position(chk, s, w)
+        if "position" in s and sp.position is None:
+            bad_position.add(sp.name)
         spec.sources.append(sp)
 
     rnames = []
@@ -323,6 +327,8 @@ def parse_spec(text: str, filename: str = "<room>") -> RoomSpec:
                     rp.distances[k] = float(y)
         given = d if d is not None else {}
         for s in spec.sources:
+            if s.name in bad_position or ("position" in r and rp.position is None):
+                continue  # the bad position is reported; no second problem for it
             if s.name not in given and (rp.position is None or s.position is None):
                 chk.add(w, f"has no distance to source '{s.name}': give distances."
                         f"\"{s.name}\" or positions for both")
@@ -471,7 +477,7 @@ def _lookup(cat: Catalog, chk: Checker, mid: str, where: str, kind: str, bands):
         return m.values_for(bands)
     except KeyError as exc:
         missing = exc.args[0]
-        chk.add(f"{where}.material", f"'{mid}' has no value at {missing} Hz (it gives "
+        chk.add(f"{where}.material", f"'{mid}' has no value at {', '.join(map(str, missing))} Hz (it gives "
                 f"{m.bands_text}); give the coefficients inline or remove "
                 f"{', '.join(map(str, missing))} from bands_hz")
         return None
