@@ -9,7 +9,7 @@ import pytest
 
 from roomcalc.engine import reverb
 
-# Check room (shared REFERENCES): c = 343 m/s, no air; faces normal to x, y, z have
+# Check room: c = 343 m/s, no air; faces normal to x, y, z have
 # S = 240, 600, 500 m^2, alpha 0.10, 0.25, 0.45, V = 3000 m^3.
 # Source: test data of a general-purpose acoustics library, recomputed (REFERENCES).
 V = 3000.0
