@@ -16,7 +16,7 @@ import tomli_w
 
 from roomcalc.engine.bands import ALLOWED_BANDS_HZ, DEFAULT_BANDS_HZ
 from roomcalc.engine.field import PLACEMENT_Q
-from roomcalc.engine.model import FACE_AXIS, FACES, Air, Receiver, Room, RoomObject, Source, Surface
+from roomcalc.engine.model import FACES, Air, Receiver, Room, RoomObject, Source, Surface
 from roomcalc.engine.spectra import SPECTRUM_SHAPES, band_power_from_dba
 from roomcalc.io.atomic import write_text_atomic
 from roomcalc.io.catalog import ALPHA_MAX, Catalog, Material, parse_entries
