@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from functools import cached_property
 
 import numpy as np
 
@@ -107,7 +108,7 @@ class RoomResult:
     schroeder_hz: np.ndarray
     reverberant_model: str
     sources: tuple[SourceResult, ...]
-    receivers: tuple[ReceiverResult, ...]
+    receiver_arrays: "ReceiverArrays | None"
     warnings: tuple[Finding, ...] = ()
     cautions: tuple[str, ...] = ()
     axis_alpha: np.ndarray | None = field(default=None)
@@ -115,6 +116,36 @@ class RoomResult:
     @property
     def rt60_recommended(self) -> np.ndarray:
         return self.rt60_s[self.recommended]
+
+    @cached_property
+    def receivers(self) -> tuple[ReceiverResult, ...]:
+        """One result per receiver, built from :attr:`receiver_arrays` when first asked for."""
+        ra = self.receiver_arrays
+        if ra is None:
+            return ()
+        dists = ra.distances_m.tolist()
+        dba = ra.dba.tolist()
+        return tuple(
+            ReceiverResult(name, dict(zip(ra.source_names, dists[i])), ra.level_db[i],
+                           ra.direct_db[i], ra.reverberant_db[i], dba[0][i], dba[1][i],
+                           dba[2][i], ra.source_energy[i])
+            for i, name in enumerate(ra.names))
+
+
+@dataclass(frozen=True, eq=False)
+class ReceiverArrays:
+    """Levels at all receivers at once: (receivers, bands) arrays [dB], dB(A) (3, receivers)
+    for total, direct and reverberant, distances (receivers, sources) [m], and each source's
+    energy 10^(Lp/10) at each receiver (receivers, sources, bands)."""
+
+    names: tuple[str, ...]
+    source_names: tuple[str, ...]
+    distances_m: np.ndarray
+    level_db: np.ndarray
+    direct_db: np.ndarray
+    reverberant_db: np.ndarray
+    dba: np.ndarray
+    source_energy: np.ndarray
 
 
 def _names(items, limit=4):
@@ -171,12 +202,9 @@ def evaluate(room: Room, reverberant_model: str = "classic", method: str | None 
 
     surfaces = room.surfaces
     areas = np.fromiter((sf.area * sf.count for sf in surfaces), float, len(surfaces))
-    try:
-        alphas = np.stack([sf.alpha for sf in surfaces])
-    except ValueError:
-        raise ValueError(f"surfaces: alpha must have {nb} values per surface") from None
-    if alphas.shape != (len(areas), nb):
+    if any(sf.alpha.shape != (nb,) for sf in surfaces):
         raise ValueError(f"surfaces: alpha must have {nb} values per surface")
+    alphas = np.concatenate([sf.alpha for sf in surfaces]).reshape(len(surfaces), nb)
     if not (np.isfinite(areas).all() and (areas > 0).all()):
         raise ValueError("surfaces: every area must be finite and above 0 m^2")
     if not (np.isfinite(alphas).all() and (alphas >= 0).all()):
@@ -335,8 +363,8 @@ def evaluate(room: Room, reverberant_model: str = "classic", method: str | None 
             f"Mean alpha is above 0.3 at {', '.join(f'{b:g} Hz' for b in high)}: Sabine "
             "overestimates the reverberation time there; use Eyring or Millington-Sette."))
 
-    src_results, rec_results, cautions = _field(room, bands, aw, r_const, t_rec, v,
-                                                 reverberant_model, found)
+    src_results, rec_arrays, cautions = _field(room, bands, aw, r_const, t_rec, v,
+                                                reverberant_model, found)
     return RoomResult(
         room=room, bands_hz=bands, volume_m3=v, surface_area_m2=s_tot,
         absorption_area_m2=a_tot, surface_absorption_m2=a_surf, object_absorption_m2=a_obj,
@@ -344,7 +372,7 @@ def evaluate(room: Room, reverberant_model: str = "classic", method: str | None 
         mean_alpha=a_tot / s_tot, rt60_s=rt, unavailable=unavailable,
         recommended=recommended, recommended_reason=reason, room_constant_m2=r_const,
         schroeder_hz=f_s, reverberant_model=reverberant_model,
-        sources=src_results, receivers=rec_results,
+        sources=src_results, receiver_arrays=rec_arrays,
         warnings=tuple(found), cautions=tuple(cautions), axis_alpha=axis_alpha)
 
 
@@ -383,8 +411,10 @@ def _field(room, bands, aw, r_const, t_rec, v, reverberant_model, found):
     srcs = room.sources
     src_results: list[SourceResult] = []
     if srcs:
-        lw = np.stack([s.sound_power_db for s in srcs])                   # (S, B)
-        if lw.shape != (len(srcs), nb) or not np.all(np.isfinite(lw)):
+        if any(s.sound_power_db.shape != (nb,) for s in srcs):
+            raise ValueError(f"sources: sound power needs {nb} values per source")
+        lw = np.concatenate([s.sound_power_db for s in srcs]).reshape(len(srcs), nb)  # (S, B)
+        if not np.isfinite(lw).all():
             raise ValueError(f"sources: sound power needs {nb} finite values per source")
         q = np.array([s.directivity for s in srcs], dtype=float)            # (S,)
         if not (np.all(np.isfinite(q)) and np.all(q > 0)):
@@ -392,10 +422,9 @@ def _field(room, bands, aw, r_const, t_rec, v, reverberant_model, found):
         rc = np.sqrt(q[:, None] * r_const[None, :] / (16.0 * np.pi))     # field.critical_distance
         src_results = [SourceResult(s.name, float(q[j]), s.sound_power_db, rc[j])
                        for j, s in enumerate(srcs)]
-    rec_results: list[ReceiverResult] = []
     cautions: list[str] = []
     if not (srcs and room.receivers):
-        return tuple(src_results), tuple(rec_results), cautions
+        return tuple(src_results), None, cautions
     dist = _distances(room)                                                # (R, S)
     power = 10.0 ** (lw / 10.0)                                            # (S, B)
     direct = q[None, :, None] / (4.0 * np.pi * dist[:, :, None] ** 2)      # (R, S, 1)
@@ -410,15 +439,11 @@ def _field(room, bands, aw, r_const, t_rec, v, reverberant_model, found):
     r_sum = np.broadcast_to(e_rev.sum(axis=1), d_sum.shape)
     levels = 10.0 * np.log10(np.stack([d_sum + r_sum, d_sum, r_sum]))      # (3, R, B)
     la = 10.0 * np.log10(np.sum(10.0 ** ((levels + aw) / 10.0), axis=-1))  # (3, R)
-    names = [s.name for s in srcs]
-    dist_list = dist.tolist()
-    la_list = la.tolist()
-    for i, r in enumerate(room.receivers):
-        rec_results.append(ReceiverResult(
-            r.name, dict(zip(names, dist_list[i])), levels[0, i], levels[1, i], levels[2, i],
-            la_list[0][i], la_list[1][i], la_list[2][i], per[i]))
-        if la_list[0][i] >= CAUTION_DBA:
-            cautions.append(f"'{r.name}': estimated {la_list[0][i]:.1f} dB(A).")
+    names = tuple(s.name for s in srcs)
+    arrays = ReceiverArrays(tuple(r.name for r in room.receivers), names, dist, levels[0],
+                            levels[1], levels[2], la, per)
+    for i in np.nonzero(la[0] >= CAUTION_DBA)[0]:
+        cautions.append(f"'{room.receivers[i].name}': estimated {la[0, i]:.1f} dB(A).")
     close = np.argwhere(dist < 0.5)
     if close.size:
         found.append(Finding("receiver-close",
@@ -429,7 +454,7 @@ def _field(room, bands, aw, r_const, t_rec, v, reverberant_model, found):
             "estimate is rough."))
     if cautions:
         cautions.append(HEARING_CAUTION)
-    return tuple(src_results), tuple(rec_results), cautions
+    return tuple(src_results), arrays, cautions
 
 
 def distance_curves(result: RoomResult, source: str, distances_m=None, points: int = 200):
