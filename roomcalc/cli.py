@@ -23,8 +23,11 @@ def _parser() -> argparse.ArgumentParser:
     p = argparse.ArgumentParser(
         prog="roomcalc",
         description="Estimate what a room does to sound, per octave band, and what treatment "
-                    "changes: reverberation time, room constant, levels, critical distance.")
+                    "changes: reverberation time, room constant, levels, critical distance. "
+                    "With no command, the interface opens on the built-in demo room.")
     p.add_argument("--version", action="version", version=f"roomcalc {__version__}")
+    p.add_argument("--catalog", action="append", default=[], metavar="PATH",
+                   help="an extra material catalogue file or folder (may be repeated)")
     sub = p.add_subparsers(dest="command", metavar="COMMAND")
 
     r = sub.add_parser("report", parents=[common, fmt], help="the full per-band report of a room")
@@ -49,6 +52,13 @@ def _parser() -> argparse.ArgumentParser:
     k.add_argument("--demo", action="store_true",
                    help="compare the demo room with its treated copy")
 
+    o = sub.add_parser("open", parents=[common], help="open a room file in the interface")
+    o.add_argument("file", help="room file (.toml); if it does not exist, you are offered a "
+                                "new room of a box size to save there")
+    n = sub.add_parser("new", parents=[common], help="start a new room in the interface from "
+                                                     "a box size")
+    n.add_argument("file", nargs="?", help="where to save it (asked on saving if not given)")
+
     m = sub.add_parser("materials", parents=[common, fmt], help="search the material catalogue")
     m.add_argument("words", nargs="*", help="words that must all appear (id, name, notes)")
     m.add_argument("--category", help="only this category (part of its name is enough)")
@@ -63,10 +73,8 @@ def _load(path, catalog):
 
 
 def main(argv=None) -> int:
-    args = _parser().parse_args(argv)
-    if args.command is None:
-        _parser().print_help()
-        return EXIT_OK
+    parser = _parser()
+    args = parser.parse_args(argv)
     from roomcalc.io.errors import RoomFileError
 
     try:
@@ -100,7 +108,10 @@ def _run(args) -> int:
     from roomcalc.io import paths, report
     from roomcalc.io.catalog import load_catalog
 
-    catalog = load_catalog(args.catalog)
+    catalog = load_catalog(getattr(args, "catalog", []))
+
+    if args.command in (None, "open", "new"):
+        return _interface(args, catalog)
 
     if args.command == "materials":
         mats = catalog.search(" ".join(args.words), args.category, args.kind)
@@ -144,6 +155,31 @@ def _run(args) -> int:
         sys.stdout.write(report.compare_text(compare(rb, ra), names, args.format))
         return EXIT_OK
     return EXIT_INPUT  # pragma: no cover - argparse rejects unknown commands
+
+
+def _interface(args, catalog) -> int:
+    """Start the terminal interface (imported only here, so the other commands never load
+    Textual)."""
+    if not sys.stdin.isatty() or not sys.stdout.isatty():
+        print("roomcalc: the interface needs a terminal; for a report use "
+              "'roomcalc report FILE' (or --demo)", file=sys.stderr)
+        return EXIT_INPUT
+    from roomcalc.tui.app import AppConfig, make_app
+    from roomcalc.tui.document import Document
+
+    doc, ask_size = None, False
+    if args.command == "open":
+        path = Path(args.file)
+        if path.exists():
+            doc = Document.open(path)
+        else:
+            doc, ask_size = Document.new_box(6.0, 4.0, 2.7, path=path), True
+    elif args.command == "new":
+        doc, ask_size = Document.new_box(6.0, 4.0, 2.7,
+                                         path=Path(args.file) if args.file else None), True
+    app = make_app(doc, catalog, AppConfig(ask_box_size=ask_size))
+    app.run()
+    return EXIT_OK
 
 
 if __name__ == "__main__":  # pragma: no cover

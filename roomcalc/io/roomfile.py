@@ -176,7 +176,25 @@ def read_spec(path) -> RoomSpec:
 
 def parse_spec(text: str, filename: str = "<room>") -> RoomSpec:
     """Check room-file text and build a RoomSpec; every problem is reported at once."""
-    data = read_toml(text, filename)
+    return parse_data(read_toml(text, filename), filename)
+
+
+def check_room(spec: "RoomSpec", catalog: Catalog, filename: str = "<room>") -> Room:
+    """Check a spec as if it had been written and read back, then resolve it.
+
+    The interface uses this after every edit: the same checks and messages as for a file,
+    without writing one. Raises RoomFileError with every problem.
+    """
+    try:
+        checked = parse_data(spec_to_dict(spec), filename)
+    except _SpecProblems as exc:
+        more = _material_problems(exc.spec, exc.inline_ids, catalog, filename)
+        raise RoomFileError(list(exc.problems) + more) from None
+    return resolve(checked, catalog, filename)
+
+
+def parse_data(data: dict, filename: str = "<room>") -> RoomSpec:
+    """Check a parsed room document (a dict as tomllib gives it) and build a RoomSpec."""
     chk = Checker(filename)
     chk.keys(data, "", TOP_KEYS)
     spec = RoomSpec()
@@ -536,8 +554,41 @@ def _clean(d: dict) -> dict:
 
 
 def spec_to_toml(spec: RoomSpec) -> str:
-    """Room-file text of a spec."""
-    return tomli_w.dumps(spec_to_dict(spec))
+    """Room-file text of a spec: top-level keys, then [air] and [shape], then one [[table]] per
+    surface, object, source, receiver and material, each list of numbers on one line.
+    ``tomllib.loads(spec_to_toml(s)) == spec_to_dict(s)`` (a test checks it)."""
+    d = spec_to_dict(spec)
+    out = [f"{_key(k)} = {_value(v)}" for k, v in d.items() if not isinstance(v, (dict, list))
+           or (isinstance(v, list) and not (v and isinstance(v[0], dict)))]
+    for k, v in d.items():
+        if isinstance(v, dict):
+            out += ["", f"[{_key(k)}]"] + [f"{_key(a)} = {_value(b)}" for a, b in v.items()]
+        elif isinstance(v, list) and v and isinstance(v[0], dict):
+            for item in v:
+                out += ["", f"[[{_key(k)}]]"] + [f"{_key(a)} = {_value(b)}"
+                                                 for a, b in item.items()]
+    return "\n".join(out) + "\n"
+
+
+def _key(k: str) -> str:
+    import re
+
+    return k if re.fullmatch(r"[A-Za-z0-9_-]+", k) else _value(k)
+
+
+def _value(v) -> str:
+    if isinstance(v, bool):
+        return "true" if v else "false"
+    if isinstance(v, (int, float)):
+        return repr(v)
+    if isinstance(v, str):
+        return tomli_w.dumps({"x": v})[4:].rstrip("\n")
+    if isinstance(v, list):
+        return "[" + ", ".join(_value(x) for x in v) + "]"
+    if isinstance(v, dict):
+        return "{ " + ", ".join(f"{_key(a)} = {_value(b)}" for a, b in v.items()) + " }" \
+            if v else "{}"
+    raise TypeError(f"cannot write {type(v).__name__} to a room file")
 
 
 def save_spec(spec: RoomSpec, path) -> None:

@@ -1,0 +1,292 @@
+"""The room being edited: its spec, where it is kept, undo and redo. No Textual here.
+
+Every change goes through :meth:`Document.change`, which snapshots the spec first, so every edit
+can be undone. Consecutive changes with the same ``merge`` key (typing in one field) make one
+undo step.
+"""
+
+from __future__ import annotations
+
+import copy
+import hashlib
+import os
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from roomcalc.io import paths
+from roomcalc.io.atomic import write_text_atomic
+from roomcalc.io.roomfile import (ObjectSpec, ReceiverSpec, RoomSpec, ShapeSpec, SourceSpec,
+                                  SurfaceSpec, parse_spec, spec_to_toml)
+from roomcalc.io.units import UNITS
+
+COLLECTIONS = ("surfaces", "objects", "sources", "receivers")
+NEW_ITEM = {
+    "surfaces": lambda n: SurfaceSpec(name=f"Surface {n}", area=1.0,
+                                      material="plaster-on-masonry"),
+    "objects": lambda n: ObjectSpec(name=f"Object {n}", count=1, material="person-seated"),
+    "sources": lambda n: SourceSpec(name=f"Source {n}", sound_power_dba=80.0, spectrum="pink",
+                                    placement="surface"),
+    "receivers": lambda n: ReceiverSpec(name=f"Receiver {n}"),
+}
+HISTORY_LIMIT = 500
+
+
+@dataclass
+class _Step:
+    before: RoomSpec
+    label: str
+    merge: str | None
+
+
+@dataclass
+class Document:
+    """A room spec, its file (or none), and its history."""
+
+    spec: RoomSpec
+    path: Path | None = None
+    saved_text: str | None = None      # the text last read from or written to ``path``
+    original_text: str | None = None   # the file's text as opened, kept while nothing changes
+    undo_stack: list[_Step] = field(default_factory=list)
+    redo_stack: list[_Step] = field(default_factory=list)
+    demo: bool = False
+    clean_text: str | None = None      # the generated text when last opened or saved
+
+    def __post_init__(self):
+        if self.saved_text is not None or self.demo:
+            self.mark_clean()
+
+    # ------------------------------------------------------------------ state
+    @property
+    def text(self) -> str:
+        return _with_header(spec_to_toml(self.spec), self.original_text)
+
+    @property
+    def modified(self) -> bool:
+        """Changed since opened or last saved (undoing back to that state clears it)."""
+        if self.clean_text is None:
+            return bool(self.undo_stack) or self.path is None and not self.demo
+        return self.text != self.clean_text
+
+    def mark_clean(self) -> None:
+        self.clean_text = self.text
+
+    @property
+    def name(self) -> str:
+        if self.demo:
+            return "demo room"
+        return self.path.name if self.path else "untitled"
+
+    # ------------------------------------------------------------------ changes
+    def change(self, fn, label: str, merge: str | None = None) -> None:
+        """Apply ``fn(spec)`` with an undo step (merged with the last one if ``merge`` matches)."""
+        before = copy.deepcopy(self.spec)
+        fn(self.spec)
+        if merge is not None and self.undo_stack and self.undo_stack[-1].merge == merge \
+                and not self.redo_stack:
+            pass  # the earlier snapshot already holds the state before this run of edits
+        else:
+            self.undo_stack.append(_Step(before, label, merge))
+            del self.undo_stack[:-HISTORY_LIMIT]
+        self.redo_stack.clear()
+
+    def undo(self) -> str | None:
+        if not self.undo_stack:
+            return None
+        step = self.undo_stack.pop()
+        self.redo_stack.append(_Step(copy.deepcopy(self.spec), step.label, None))
+        self.spec = step.before
+        return step.label
+
+    def redo(self) -> str | None:
+        if not self.redo_stack:
+            return None
+        step = self.redo_stack.pop()
+        self.undo_stack.append(_Step(copy.deepcopy(self.spec), step.label, None))
+        self.spec = step.before
+        return step.label
+
+    def end_merge(self) -> None:
+        """The next change starts a new undo step even if its merge key is the same."""
+        if self.undo_stack:
+            self.undo_stack[-1].merge = None
+
+    # ------------------------------------------------------------------ collection edits
+    def items(self, collection: str) -> list:
+        return getattr(self.spec, collection)
+
+    def set_value(self, collection: str, index: int, key: str, value) -> None:
+        item_name = getattr(self.items(collection)[index], "name", "")
+
+        def fn(spec):
+            setattr(getattr(spec, collection)[index], key, value)
+        self.change(fn, f"{collection[:-1]} '{item_name}': {key}")
+
+    def set_values(self, collection: str, index: int, values: dict, label: str) -> None:
+        def fn(spec):
+            item = getattr(spec, collection)[index]
+            for k, v in values.items():
+                setattr(item, k, v)
+        self.change(fn, label)
+
+    def add(self, collection: str, index: int | None = None) -> int:
+        items = self.items(collection)
+        names = {getattr(x, "name", "") for x in items}
+        n = len(items) + 1
+        item = NEW_ITEM[collection](n)
+        while item.name in names:
+            n += 1
+            item.name = NEW_ITEM[collection](n).name
+        at = len(items) if index is None else index + 1
+        self.change(lambda spec: getattr(spec, collection).insert(at, item),
+                    f"add {collection[:-1]}")
+        return at
+
+    def duplicate(self, collection: str, index: int) -> int:
+        items = self.items(collection)
+        item = copy.deepcopy(items[index])
+        names = {x.name for x in items}
+        base, k = item.name, 2
+        while f"{base} ({k})" in names:
+            k += 1
+        item.name = f"{base} ({k})"
+        self.change(lambda spec: getattr(spec, collection).insert(index + 1, item),
+                    f"duplicate {collection[:-1]} '{base}'")
+        return index + 1
+
+    def delete(self, collection: str, index: int) -> None:
+        name = self.items(collection)[index].name
+        self.change(lambda spec: getattr(spec, collection).pop(index),
+                    f"delete {collection[:-1]} '{name}'")
+
+    def move(self, collection: str, index: int, delta: int) -> int:
+        items = self.items(collection)
+        to = index + delta
+        if not (0 <= to < len(items)):
+            return index
+
+        def fn(spec):
+            lst = getattr(spec, collection)
+            lst.insert(to, lst.pop(index))
+        self.change(fn, f"move {collection[:-1]} '{items[index].name}'")
+        return to
+
+    # ------------------------------------------------------------------ files
+    def save(self, path: Path | None = None) -> Path:
+        """Write atomically. Saving an opened file with no change writes its text unchanged."""
+        target = Path(path) if path is not None else self.path
+        if target is None:
+            raise ValueError("no file name yet: use save as")
+        if self.original_text is not None and not self.modified and target == self.path:
+            text = self.original_text
+        else:
+            text = self.text
+        write_text_atomic(target, text)
+        if self.demo or target != self.path:
+            discard_recovery(self.path)
+        self.path, self.saved_text, self.demo = target, text, False
+        self.mark_clean()
+        discard_recovery(self.path)
+        return target
+
+    @classmethod
+    def open(cls, path) -> "Document":
+        """Read a room file (raises RoomFileError with every problem)."""
+        path = Path(path)
+        text = path.read_text(encoding="utf-8")
+        spec = parse_spec(text, str(path))
+        return cls(spec=spec, path=path, saved_text=text, original_text=text)
+
+    @classmethod
+    def new_box(cls, length: float, width: float, height: float, units: str = "metric",
+                path=None, title: str = "") -> "Document":
+        """A new box room: six faces, plastered walls and ceiling, a concrete floor."""
+        spec = RoomSpec(title=title or "New room", units=units,
+                        shape=ShapeSpec(length=length, width=width, height=height))
+        for face, mat in (("floor", "concrete-floor-painted"), ("ceiling", "plaster-on-masonry"),
+                          ("front", "plaster-on-masonry"), ("back", "plaster-on-masonry"),
+                          ("left", "plaster-on-masonry"), ("right", "plaster-on-masonry")):
+            spec.surfaces.append(SurfaceSpec(name=face.capitalize(), face=face, material=mat))
+        return cls(spec=spec, path=Path(path) if path else None)
+
+    # ------------------------------------------------------------------ recovery
+    def write_recovery(self) -> Path:
+        p = recovery_path(self.path)
+        p.parent.mkdir(parents=True, exist_ok=True)
+        write_text_atomic(p, self.text)
+        return p
+
+
+def _with_header(text: str, original: str | None) -> str:
+    """Keep the comment lines at the top of the original file (a demo note, a description)."""
+    if not original:
+        return text
+    head = []
+    for line in original.splitlines():
+        if line.startswith("#") or (not line.strip() and head):
+            head.append(line)
+        else:
+            break
+    while head and not head[-1].strip():
+        head.pop()
+    return ("\n".join(head) + "\n" + text) if head else text
+
+
+def recovery_path(path: Path | None) -> Path:
+    """Where unsaved changes of a room are kept until it is saved."""
+    key = str(Path(path).resolve()) if path else "untitled"
+    digest = hashlib.sha1(key.encode("utf-8")).hexdigest()[:16]
+    stem = Path(path).stem if path else "untitled"
+    return paths.user_data_dir() / "recovery" / f"{stem}-{digest}.toml"
+
+
+def find_recovery(path: Path | None) -> Path | None:
+    """A recovery file newer than the room file, if one is left from a session that ended
+    without saving."""
+    p = recovery_path(path)
+    if not p.exists():
+        return None
+    if path is not None and Path(path).exists() and \
+            Path(path).stat().st_mtime > p.stat().st_mtime:
+        return None
+    return p
+
+
+def discard_recovery(path: Path | None) -> None:
+    try:
+        os.unlink(recovery_path(path))
+    except FileNotFoundError:
+        pass
+
+
+def convert_units(spec: RoomSpec, to: str) -> None:
+    """Re-express every length, area, volume, temperature and absorption in other units."""
+    src, dst = UNITS[spec.units], UNITS[to]
+    if src.name == dst.name:
+        return
+    f = src.length / dst.length
+
+    def L(x):
+        return None if x is None else round(x * f, 4)
+
+    def A(x):
+        return None if x is None else round(x * f * f, 4)
+
+    sh = spec.shape
+    sh.length, sh.width, sh.height = L(sh.length), L(sh.width), L(sh.height)
+    sh.volume = None if sh.volume is None else round(sh.volume * f ** 3, 3)
+    if spec.air.temperature is not None:
+        spec.air.temperature = round(dst.temperature_from_c(src.temperature_to_c(
+            spec.air.temperature)), 2)
+    for s in spec.surfaces:
+        s.area = A(s.area)
+    for o in spec.objects:
+        if o.absorption is not None:
+            o.absorption = [A(x) for x in o.absorption]
+    for s in spec.sources:
+        if s.position is not None:
+            s.position = [L(x) for x in s.position]
+    for r in spec.receivers:
+        if r.position is not None:
+            r.position = [L(x) for x in r.position]
+        r.distances = {k: L(v) for k, v in r.distances.items()}
+    spec.units = to

@@ -1,0 +1,71 @@
+"""Every key, and what each number means with the formula behind it."""
+
+from __future__ import annotations
+
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Vertical
+from textual.screen import ModalScreen
+from textual.widgets import Markdown
+
+HELP = """\
+# roomcalc: keys and numbers
+
+## Keys
+| Key | What it does |
+|---|---|
+| Tab / Shift+Tab | move between panels |
+| 1 to 5 | the Room, Surfaces, Objects, Sources, Receivers tabs |
+| F5 to F8 | the result tabs: reverberation, level vs distance, receivers, before/after |
+| Enter or click on a cell | edit it (a material cell opens the material chooser) |
+| Enter / Escape in the editor line | apply / cancel |
+| a | add a row after the highlighted one |
+| c | copy (duplicate) the highlighted row |
+| Delete or x | delete the highlighted row |
+| Ctrl+Up / Ctrl+Down (or K / J) | move the row up / down |
+| m | choose a material for the highlighted surface or object |
+| p | pin the room as it is now as "before"; the before/after tab compares with it |
+| b | change the reverberant model: diffuse field (4/R) or Barron & Lee |
+| Ctrl+Z / Ctrl+Y | undo / redo |
+| Ctrl+S / F2 | save / save as |
+| Ctrl+O / Ctrl+N | open / new room |
+| Ctrl+P | the command palette: every action by name |
+| F1 or ? | this help |
+| Ctrl+Q | quit (asks first when there are unsaved changes) |
+
+## The numbers
+- **RT60 [s]**: reverberation time, the time for sound to fall by 60 dB, per octave band, by
+  Sabine `T = 0.161 V / (A + 4mV)`, Eyring `T = 0.161 V / (-S ln(1 - abar) + 4mV)`,
+  Millington-Sette (per-surface logarithms), Fitzroy and Arau-Puchades (per box axis; these need
+  every surface's face). `>` marks the one used, with the reason in the report; the air term
+  4mV follows ISO 9613-1.
+- **Room constant R**: `R = S abar / (1 - abar)`, abar with air; the bigger, the deader the room.
+- **r_c** (critical distance): `sqrt(Q R / 16 pi)`, where direct and reverberant sound are
+  equally loud. Closer than r_c the source itself dominates and absorption helps little.
+- **Lp**: sound pressure level, `Lw + 10 lg(Q / (4 pi r^2) + 4 / R)`, direct and reverberant
+  parts shown; dB(A) with IEC 61672-1 weights.
+- **Schroeder f_S**: `2000 sqrt(T / V)`; below it room modes dominate and these figures are rough.
+- **NRC, SAA~, alpha_w**: single-number ratings of a material (ASTM C423, ISO 11654).
+- **(stale)**: the room has a problem (shown in the strip at the bottom); the results are the
+  last valid ones until it is fixed.
+
+Levels of 80 dB(A) or more bring a hearing caution. These are estimates: a measurement by a
+competent person and the local regulations govern.
+
+Press Escape to close.
+"""
+
+
+class HelpScreen(ModalScreen[None]):
+    DEFAULT_CSS = """
+    HelpScreen { align: center middle; }
+    HelpScreen > Vertical { width: 96%; height: 94%; border: thick $primary; background: $surface; }
+    """
+    BINDINGS = [Binding("escape,f1,q", "close", "Close", id="help.close")]
+
+    def compose(self) -> ComposeResult:
+        with Vertical():
+            yield Markdown(HELP)
+
+    def action_close(self) -> None:
+        self.dismiss(None)

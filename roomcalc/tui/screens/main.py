@@ -1,0 +1,576 @@
+"""The main screen: the room's tables on the left, what it does on the right, the warnings
+strip at the bottom. It owns the document; every edit goes through it and is recomputed."""
+
+from __future__ import annotations
+
+import time
+
+import numpy as np
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal, Vertical
+from textual.reactive import reactive
+from textual.screen import Screen
+from textual.widgets import Footer, Header, Select, Static, TabbedContent, TabPane
+
+from roomcalc.engine.analysis import RoomResult, compare, distance_curves, evaluate
+from roomcalc.engine.bands import a_weighted_total
+from roomcalc.engine.field import PLACEMENT_Q
+from roomcalc.engine.model import FACES
+from roomcalc.engine.spectra import SPECTRUM_SHAPES
+from roomcalc.io.catalog import Catalog
+from roomcalc.io.errors import RoomFileError
+from roomcalc.io.report import comparison_method
+from roomcalc.io.roomfile import check_room
+from roomcalc.tui.document import Document, convert_units
+from roomcalc.tui.messages import FieldEdited, MaterialWanted, RowAction
+from roomcalc.tui.widgets.plots import DistancePlot, RtPlot
+from roomcalc.tui.widgets.record_table import Column, RecordTable
+from roomcalc.tui.widgets.results import CompareTable, FindingsStrip, ReceiverTable, ReverbTable
+from roomcalc.tui.widgets.room_form import RoomForm, Unparsed
+
+EDIT_TABS = ("room", "surfaces", "objects", "sources", "receivers")
+ROW_HELP = "Enter: edit cell   a: add   c: copy   x: delete   Ctrl+Up/Down: move   m: material"
+
+
+class MainScreen(Screen):
+    """Edit a room and watch what it does. ``document`` is the one piece of state; every
+    change to it goes through :meth:`apply` (with undo) and then :meth:`recompute`."""
+
+    BINDINGS = [
+        Binding("ctrl+z", "undo", "Undo", id="main.undo"),
+        Binding("ctrl+y", "redo", "Redo", id="main.redo"),
+        Binding("ctrl+s", "save", "Save", id="main.save"),
+        Binding("f2", "save_as", "Save as", show=False, id="main.save_as"),
+        Binding("ctrl+o", "open", "Open", show=False, id="main.open"),
+        Binding("ctrl+n", "new", "New", show=False, id="main.new"),
+        Binding("p", "pin", "Pin before", id="main.pin"),
+        Binding("m", "material", "Material", show=False, id="main.material"),
+        Binding("b", "toggle_model", "Reverb model", show=False, id="main.model"),
+        Binding("f1,question_mark", "help", "Help", id="main.help"),
+        Binding("1", "edit_tab('room')", "Room", show=False, id="main.tab.room"),
+        Binding("2", "edit_tab('surfaces')", "Surfaces", show=False, id="main.tab.surfaces"),
+        Binding("3", "edit_tab('objects')", "Objects", show=False, id="main.tab.objects"),
+        Binding("4", "edit_tab('sources')", "Sources", show=False, id="main.tab.sources"),
+        Binding("5", "edit_tab('receivers')", "Receivers", show=False, id="main.tab.receivers"),
+        Binding("f5", "view_tab('v-reverb')", "Reverb", show=False, id="main.view.reverb"),
+        Binding("f6", "view_tab('v-distance')", "Distance", show=False, id="main.view.distance"),
+        Binding("f7", "view_tab('v-receivers')", "Levels", show=False, id="main.view.levels"),
+        Binding("f8", "view_tab('v-compare')", "Before/after", show=False,
+                id="main.view.compare"),
+    ]
+
+    result: reactive[RoomResult | None] = reactive(None, init=False)
+
+    def __init__(self, document: Document, catalog: Catalog) -> None:
+        super().__init__()
+        self.document = document
+        self.catalog = catalog
+        self.problems: list[str] = []
+        self.stale = False
+        self.pinned: RoomResult | None = None
+        self.reverberant_model = "classic"
+        self.last_update_s = 0.0       # engine + check time of the last recompute [s]
+
+    # ------------------------------------------------------------------ layout
+    def compose(self) -> ComposeResult:
+        yield Header()
+        with Horizontal(id="body"):
+            with Vertical(id="left"):
+                with TabbedContent(id="edit", initial="surfaces"):
+                    with TabPane("1 Room", id="room"):
+                        yield RoomForm(id="room-form")
+                    for coll in EDIT_TABS[1:]:
+                        with TabPane(f"{EDIT_TABS.index(coll) + 1} {coll.capitalize()}",
+                                     id=coll):
+                            yield RecordTable(coll, self._columns(coll), help_text=ROW_HELP,
+                                              describe=self._describe, id=f"t-{coll}")
+            with Vertical(id="right"):
+                with TabbedContent(id="view"):
+                    with TabPane("Reverberation", id="v-reverb"):
+                        yield ReverbTable(id="reverb-table")
+                        yield RtPlot(id="rt-plot")
+                    with TabPane("Level vs distance", id="v-distance"):
+                        with Horizontal(id="distance-controls"):
+                            yield Select([], prompt="source", id="dist-source",
+                                         allow_blank=True)
+                            yield Select([], prompt="band", id="dist-band", allow_blank=True)
+                        yield DistancePlot(id="distance-plot")
+                    with TabPane("Receivers", id="v-receivers"):
+                        yield ReceiverTable(id="receiver-table")
+                        yield Static("", id="receiver-note")
+                    with TabPane("Before/after", id="v-compare"):
+                        yield Static("", id="compare-head")
+                        yield CompareTable(id="compare-table")
+                        yield Static("", id="compare-notes")
+        yield FindingsStrip(id="findings")
+        yield Footer()
+
+    def _columns(self, coll: str) -> list[Column]:
+        nb = len(self.document.spec.bands)
+        if coll == "surfaces":
+            return [Column("name", "Name", optional=False),
+                    Column("face", "Face", "choice", choices=FACES, hint=", ".join(FACES)),
+                    Column("area", "Area", "number", show=self._show_area,
+                           hint="empty: the rest of its face"),
+                    Column("count", "n", "int", optional=False, hint="identical surfaces"),
+                    Column("material", "Material", "material", show=self._show_material),
+                    Column("alpha", "alpha per band", "numbers", length=nb,
+                           show=self._show_alpha, hint="one per band; typing here drops the "
+                           "material")]
+        if coll == "objects":
+            return [Column("name", "Name", optional=False),
+                    Column("count", "Count", "number", optional=False),
+                    Column("material", "Kind", "material", show=self._show_material),
+                    Column("absorption", "m^2 per unit, per band", "numbers", length=nb,
+                           show=self._show_absorption)]
+        if coll == "sources":
+            return [Column("name", "Name", optional=False),
+                    Column("sound_power", "Lw per band [dB]", "numbers", length=nb),
+                    Column("sound_power_dba", "LwA [dB(A)]", "number"),
+                    Column("spectrum", "Spectrum", "choice", choices=tuple(SPECTRUM_SHAPES),
+                           hint=", ".join(SPECTRUM_SHAPES)),
+                    Column("directivity", "Q", "number", show=self._show_q),
+                    Column("placement", "Placement", "choice", choices=tuple(PLACEMENT_Q),
+                           hint="free, surface, edge, corner"),
+                    Column("position", "Position x y z", "position")]
+        return [Column("name", "Name", optional=False),
+                Column("position", "Position x y z", "position"),
+                Column("distances", "Distances to sources", "distances",
+                       hint="Source=3.2, Other=5")]
+
+    def on_mount(self) -> None:
+        self._refresh_all()
+        self.recompute()
+        self.query_one("#t-surfaces #table").focus()
+        self._layout_for(self.app.size.width)
+
+    def on_resize(self, event) -> None:
+        self._layout_for(event.size.width)
+
+    def _layout_for(self, width: int) -> None:
+        self.set_class(width < 110, "narrow")
+
+    # ------------------------------------------------------------------ showing the spec
+    def _show_material(self, rec) -> str:
+        if rec.material:
+            return rec.material
+        return "(own values)" if (getattr(rec, "alpha", None) or
+                                  getattr(rec, "absorption", None)) else ""
+
+    def _values_of(self, rec, own):
+        bands = self.document.spec.bands
+        if rec.material:
+            m = self.catalog.get(rec.material) or next(
+                (x for x in self.document.spec.materials if x.id == rec.material), None)
+            if m is None:
+                return "unknown material"
+            return " ".join(f"{m.values[b]:.2f}" if b in m.values else "?" for b in bands)
+        return " ".join(f"{x:.2f}" for x in own) if own else ""
+
+    def _describe(self, coll: str, rec) -> str:
+        """One line about the highlighted row, under its table."""
+        u = self.document.spec.unit_system
+        if coll in ("surfaces", "objects"):
+            own = rec.alpha if coll == "surfaces" else rec.absorption
+            what = "alpha" if coll == "surfaces" else f"{u.area_label} per unit"
+            if rec.material:
+                m = self.catalog.get(rec.material)
+                name = m.name if m else "not in the catalogue"
+                return f"{rec.name}: {name}; {what} {self._values_of(rec, own)}"
+            return f"{rec.name}: own values; {what} {self._values_of(rec, own)}"
+        if coll == "sources":
+            lw = " ".join(f"{x:g}" for x in rec.sound_power) if rec.sound_power else \
+                f"{rec.sound_power_dba} dB(A), {rec.spectrum} spectrum"
+            return f"{rec.name}: Lw {lw}; Q {self._show_q(rec).strip('()')}"
+        res = self.result
+        if res is not None:
+            r = next((x for x in res.receivers if x.name == rec.name), None)
+            if r is not None:
+                return f"{rec.name}: {r.level_dba:.1f} dB(A) (direct {r.direct_dba:.1f}, " \
+                       f"reverberant {r.reverberant_dba:.1f})"
+        return rec.name
+
+    def _show_alpha(self, rec) -> str:
+        return self._values_of(rec, rec.alpha)
+
+    def _show_absorption(self, rec) -> str:
+        return self._values_of(rec, rec.absorption)
+
+    def _show_q(self, rec) -> str:
+        if rec.directivity is not None:
+            return f"{rec.directivity:g}"
+        return f"({PLACEMENT_Q[rec.placement or 'surface']:g})"
+
+    def _show_area(self, rec) -> str:
+        if rec.area is not None:
+            return f"{rec.area:g}"
+        res = self.result
+        if res is not None and not self.stale:
+            try:
+                i = self.document.spec.surfaces.index(rec)
+                s = res.room.surfaces[i]
+                return f"({s.area / self.document.spec.unit_system.area:.2f})"
+            except (ValueError, IndexError):
+                pass
+        return "(rest)"
+
+    def _refresh_tables(self) -> None:
+        nb = len(self.document.spec.bands)
+        for coll in EDIT_TABS[1:]:
+            t = self.query_one(f"#t-{coll}", RecordTable)
+            for c in t.columns:
+                if c.kind == "numbers":
+                    c.length = nb
+            t.set_records(self.document.items(coll))
+
+    def _refresh_all(self) -> None:
+        self.query_one(RoomForm).show(self.document.spec)
+        self._refresh_tables()
+        self._title()
+
+    def _title(self) -> None:
+        doc = self.document
+        self.app.title = f"roomcalc - {doc.spec.title or 'untitled room'}"
+        self.app.sub_title = (f"{doc.path if doc.path else doc.name}"
+                              + ("  (modified)" if doc.modified else ""))
+
+    # ------------------------------------------------------------------ computing
+    def recompute(self) -> None:
+        """Check the room as a file would be checked, evaluate it, and show the result. On a
+        problem the last valid result stays, marked stale."""
+        t0 = time.perf_counter()
+        doc = self.document
+        unparsed = getattr(self, "_unparsed", {})
+        try:
+            room = check_room(doc.spec, self.catalog, doc.name)
+            result = evaluate(room, reverberant_model=self.reverberant_model)
+            self.problems = [f"{k}: '{v}' is not a number" for k, v in unparsed.items()]
+        except RoomFileError as exc:
+            self.problems = [f"{p.where}: {p.message}" if p.where else p.message
+                             for p in exc.problems]
+            self.problems += [f"{k}: '{v}' is not a number" for k, v in unparsed.items()]
+            result = None
+        except ValueError as exc:
+            self.problems = [str(exc)]
+            result = None
+        self.last_update_s = time.perf_counter() - t0
+        self.stale = bool(self.problems)
+        if result is not None:
+            self.result = result          # the watch method shows it
+        else:
+            self._show(self.result)
+
+    def watch_result(self, result: RoomResult | None) -> None:
+        self._show(result)
+
+    def _show(self, res: RoomResult | None) -> None:
+        self.query_one(FindingsStrip).show(res, self.problems, self.stale and res is not None)
+        self._show_table_problems()
+        self.set_class(self.stale, "stale")
+        for pane_id, title in (("v-reverb", "Reverberation"), ("v-distance", "Level vs distance"),
+                               ("v-receivers", "Receivers"), ("v-compare", "Before/after")):
+            tab = self.query_one("#view", TabbedContent).get_tab(pane_id)
+            tab.label = title + (" (stale)" if self.stale and res is not None else "")
+        if res is None:
+            return
+        units = self.document.spec.unit_system
+        self.query_one(ReverbTable).show(res, units)
+        self.query_one(RtPlot).show(res, self.stale)
+        self.query_one(ReceiverTable).show(res)
+        self.query_one("#receiver-note", Static).update(
+            "" if res.receivers else "No receivers with sources yet: add them in the "
+            "Sources and Receivers tabs.")
+        self._fill_distance_controls(res)
+        self._show_distance()
+        self._show_compare()
+        self._refresh_tables()
+        self._title()
+
+    def _show_table_problems(self) -> None:
+        for coll in EDIT_TABS[1:]:
+            mine = [p for p in self.problems if p.startswith(coll + "[")]
+            self.query_one(f"#t-{coll}", RecordTable).show_problems(mine)
+
+    # ------------------------------------------------------------------ level vs distance
+    def _fill_distance_controls(self, res: RoomResult) -> None:
+        src = self.query_one("#dist-source", Select)
+        band = self.query_one("#dist-band", Select)
+        names = [s.name for s in res.sources]
+        with self.prevent(Select.Changed):
+            old = src.value
+            src.set_options([(n, n) for n in names])
+            if names:
+                src.value = old if old in names else names[0]
+            oldb = band.value
+            opts = [("dB(A)", "dBA")] + [(f"{b:g} Hz", str(b)) for b in res.bands_hz]
+            band.set_options(opts)
+            band.value = oldb if oldb in [o[1] for o in opts] else "dBA"
+
+    def on_select_changed(self, event: Select.Changed) -> None:
+        if event.select.id in ("dist-source", "dist-band"):
+            self._show_distance()
+
+    def _show_distance(self) -> None:
+        res = self.result
+        plot = self.query_one(DistancePlot)
+        src = self.query_one("#dist-source", Select).value
+        if res is None or not isinstance(src, str) or src not in [s.name for s in res.sources]:
+            plot.plt.clear_figure()
+            plot.plt.title("Add a source (Sources tab) to see level against distance")
+            plot.refresh()
+            return
+        bval = self.query_one("#dist-band", Select).value
+        bi = None if bval in ("dBA", Select.NULL) else list(res.bands_hz).index(int(bval))
+        curves = distance_curves(res, src, points=120)
+        pts = []
+        for r in res.receivers:
+            lev = r.per_source_db[src]
+            level = float(a_weighted_total(lev, res.bands_hz)) if bi is None else float(lev[bi])
+            pts.append((r.name, r.distances_m[src], level))
+        u = self.document.spec.unit_system
+        plot.show(curves, bi, res.bands_hz, pts, u.length_label, u.length, self.stale, src)
+
+    # ------------------------------------------------------------------ before / after
+    def _show_compare(self) -> None:
+        head = self.query_one("#compare-head", Static)
+        table = self.query_one(CompareTable)
+        notes = self.query_one("#compare-notes", Static)
+        if self.pinned is None or self.result is None:
+            head.update("Press p to pin the room as it is now as \"before\"; then edit it "
+                        "and compare here.")
+            table.display = False
+            notes.update("")
+            return
+        if self.pinned.bands_hz != self.result.bands_hz:
+            head.update("The bands changed since the pin; press p to pin again.")
+            table.display = False
+            return
+        cmp = compare(self.pinned, self.result)
+        method = comparison_method(cmp)
+        table.display = True
+        table.show(cmp, method)
+        head.update(f"Before: pinned room   After: the room now"
+                    f"{'  (stale)' if self.stale else ''}   negative = shorter or quieter")
+        notes.update("\n".join(f"- {n}" for n in cmp.notes))
+
+    def action_pin(self) -> None:
+        if self.result is None or self.stale:
+            self.notify("Fix the room's problems first; only a valid room can be pinned.",
+                        severity="warning")
+            return
+        self.pinned = self.result
+        self._show_compare()
+        self.notify("Pinned as 'before'. Edit the room and see the Before/after tab (F8).")
+
+    # ------------------------------------------------------------------ edits
+    def apply(self, fn, label: str, merge: str | None = None) -> None:
+        self.document.change(fn, label, merge)
+        self.after_change()
+
+    def after_change(self) -> None:
+        self._refresh_all() if self._needs_form_refresh else self._refresh_tables()
+        self._needs_form_refresh = False
+        self.recompute()
+        self.app.schedule_recovery()
+
+    _needs_form_refresh = False
+
+    def on_field_edited(self, msg: FieldEdited) -> None:
+        msg.stop()
+        if msg.collection == "room":
+            self._edit_room(msg.key, msg.value)
+            return
+        coll, i, key, value = msg.collection, msg.index, msg.key, msg.value
+        rec = self.document.items(coll)[i]
+        values = {key: value}
+        # Keys that exclude each other: setting one clears the other.
+        if coll == "surfaces" and key == "alpha" and value is not None:
+            values["material"] = None
+        if coll == "objects" and key == "absorption" and value is not None:
+            values["material"] = None
+        if coll == "sources":
+            if key == "sound_power" and value is not None:
+                values.update(sound_power_dba=None, spectrum=None)
+            elif key == "sound_power_dba" and value is not None:
+                values["sound_power"] = None
+                if rec.spectrum is None:
+                    values["spectrum"] = "pink"
+            elif key == "directivity" and value is not None:
+                values["placement"] = None
+            elif key == "placement" and value is not None:
+                values["directivity"] = None
+        if coll == "sources" and key == "name" and value != rec.name:
+            old = rec.name
+
+            def fn(spec):       # keep receivers' distances pointing at the renamed source
+                setattr(spec.sources[i], "name", value)
+                for r in spec.receivers:
+                    if old in r.distances:
+                        r.distances = {value if k == old else k: v for k, v in r.distances.items()}
+            self.apply(fn, f"rename source '{old}'")
+            return
+
+        def fn(spec):
+            item = getattr(spec, coll)[i]
+            for k, v in values.items():
+                setattr(item, k, v)
+        self.apply(fn, f"{coll[:-1]} '{rec.name}': {key}")
+
+    def _edit_room(self, key: str, value) -> None:
+        unparsed = self.__dict__.setdefault("_unparsed", {})
+        if isinstance(value, Unparsed):
+            unparsed[key] = str(value)
+            self.recompute()
+            return
+        unparsed.pop(key, None)
+        if key == "title":
+            self.apply(lambda spec: setattr(spec, "title", value), "title", merge="title")
+            return
+        if key == "units":
+            if value != self.document.spec.units:
+                self._needs_form_refresh = True
+                self.apply(lambda spec: convert_units(spec, value), f"units: {value}")
+            return
+        if key == "bands_hz":
+            bands = None if value == [125, 250, 500, 1000, 2000, 4000] else value
+            self._needs_form_refresh = False
+
+            def fn(spec):
+                old = list(spec.bands)
+                spec.bands_hz = bands
+                new = list(spec.bands)
+                _rebands(spec, old, new)
+            self.apply(fn, "bands")
+            return
+        group, name = key.split(".")
+        if getattr(getattr(self.document.spec, group), name) == value:
+            self.recompute()
+            return
+        self.apply(lambda spec: setattr(getattr(spec, group), name, value), f"{key}",
+                   merge=key)
+
+    def on_row_action(self, msg: RowAction) -> None:
+        msg.stop()
+        coll, act, i = msg.collection, msg.action, msg.index
+        doc = self.document
+        table = self.query_one(f"#t-{coll}", RecordTable)
+        if act == "add":
+            at = doc.add(coll, i)
+        elif i is None:
+            return
+        elif act == "duplicate":
+            at = doc.duplicate(coll, i)
+        elif act == "delete":
+            doc.delete(coll, i)
+            at = max(0, i - 1)
+        elif act in ("up", "down"):
+            at = doc.move(coll, i, -1 if act == "up" else 1)
+        else:
+            return
+        self.after_change()
+        table.select_row(at)
+
+    def on_material_wanted(self, msg: MaterialWanted) -> None:
+        msg.stop()
+        self._choose_material(msg.collection, msg.index)
+
+    def action_material(self) -> None:
+        tab = self.query_one("#edit", TabbedContent).active
+        if tab in ("surfaces", "objects"):
+            i = self.query_one(f"#t-{tab}", RecordTable).current_row
+            if i is not None:
+                self._choose_material(tab, i)
+
+    def _choose_material(self, coll: str, i: int) -> None:
+        from roomcalc.tui.screens.materials import MaterialChooser
+
+        rec = self.document.items(coll)[i]
+        kind = "surface" if coll == "surfaces" else "object"
+        own = rec.alpha if coll == "surfaces" else rec.absorption
+        cat = self.catalog.with_materials(self.document.spec.materials) \
+            if self.document.spec.materials else self.catalog
+
+        def done(choice) -> None:
+            if choice is None:
+                return
+            what, val = choice
+            if what == "material":
+                values = {"material": val, ("alpha" if coll == "surfaces" else "absorption"): None}
+            else:
+                values = {"material": None, ("alpha" if coll == "surfaces" else "absorption"): val}
+
+            def fn(spec):
+                item = getattr(spec, coll)[i]
+                for k, v in values.items():
+                    setattr(item, k, v)
+            self.apply(fn, f"{coll[:-1]} '{rec.name}': material")
+        self.app.push_screen(MaterialChooser(cat, kind, self.document.spec.bands, rec.material,
+                                             own), done)
+
+    # ------------------------------------------------------------------ actions
+    def action_undo(self) -> None:
+        label = self.document.undo()
+        self.notify(f"Undone: {label}" if label else "Nothing to undo.")
+        self._after_history()
+
+    def action_redo(self) -> None:
+        label = self.document.redo()
+        self.notify(f"Redone: {label}" if label else "Nothing to redo.")
+        self._after_history()
+
+    def _after_history(self) -> None:
+        self._refresh_all()
+        self.recompute()
+        self.app.schedule_recovery()
+
+    def action_toggle_model(self) -> None:
+        self.reverberant_model = "barron-lee" if self.reverberant_model == "classic" \
+            else "classic"
+        self.notify("Reverberant level: " + ("Barron & Lee's revised theory"
+                    if self.reverberant_model == "barron-lee" else "diffuse field, 4/R"))
+        self.recompute()
+
+    def action_edit_tab(self, tab: str) -> None:
+        self.query_one("#edit", TabbedContent).active = tab
+
+    def action_view_tab(self, tab: str) -> None:
+        self.query_one("#view", TabbedContent).active = tab
+
+    def action_help(self) -> None:
+        self.app.action_show_help_screen()
+
+    def action_save(self) -> None:
+        self.app.save_document()
+
+    def action_save_as(self) -> None:
+        self.app.save_document_as()
+
+    def action_open(self) -> None:
+        self.app.ask_open()
+
+    def action_new(self) -> None:
+        self.app.ask_new()
+
+    def replace_document(self, doc: Document) -> None:
+        self.document = doc
+        self.pinned = None
+        self.__dict__["_unparsed"] = {}
+        self._refresh_all()
+        self.recompute()
+
+
+def _rebands(spec, old: list, new: list) -> None:
+    """Keep per-band lists in step with a change of bands: drop removed bands, and for an added
+    band repeat the nearest band's value (shown in the table, so it can be corrected)."""
+    def fix(vals):
+        if vals is None:
+            return None
+        by = dict(zip(old, vals))
+        return [by.get(b, by[min(old, key=lambda o: abs(np.log(o / b)))]) for b in new]
+    for s in spec.surfaces:
+        s.alpha = fix(s.alpha)
+    for o in spec.objects:
+        o.absorption = fix(o.absorption)
+    for s in spec.sources:
+        s.sound_power = fix(s.sound_power)

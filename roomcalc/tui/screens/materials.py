@@ -1,0 +1,168 @@
+"""Choose a material from the catalogue, or type coefficients of your own."""
+
+from __future__ import annotations
+
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal, Vertical
+from textual.screen import ModalScreen
+from textual.widgets import Button, DataTable, Input, Select, Static
+
+from roomcalc.io.catalog import Catalog, Material
+
+
+def material_details(m: Material, bands) -> str:
+    """What the chooser shows of one material: values per band, ratings, source."""
+    unit = "alpha" if m.kind == "surface" else "m^2 per unit"
+    lines = [f"{m.name}", f"id {m.id}  [{m.category}, {m.kind}]", ""]
+    lines.append("  ".join(f"{b:>5}" for b in sorted(m.values)) + "  Hz")
+    lines.append("  ".join(f"{m.values[b]:>5.2f}" for b in sorted(m.values)) + f"  {unit}")
+    missing = [b for b in bands if b not in m.values]
+    if missing:
+        lines.append(f"no value at {', '.join(map(str, missing))} Hz: this room needs them")
+    r = m.ratings()
+    if r:
+        lines += ["", f"NRC {r[0]:.2f}   SAA~ {r[1]:.2f} (octave estimate)   "
+                      f"alpha_w {r[2].label()}  class {r[2].absorption_class}"]
+    lines += ["", f"source: {m.source}"]
+    if m.notes:
+        lines.append(f"notes: {m.notes}")
+    return "\n".join(lines)
+
+
+class MaterialChooser(ModalScreen[tuple | None]):
+    """Search the catalogue by words and category. Dismisses with ("material", id),
+    ("values", [..]) for typed coefficients, or None."""
+
+    DEFAULT_CSS = """
+    MaterialChooser { align: center middle; }
+    MaterialChooser > Vertical { width: 96%; height: 94%; border: thick $primary;
+                                 background: $surface; padding: 0 1; }
+    MaterialChooser #search-row { height: auto; }
+    MaterialChooser #words { width: 1fr; }
+    MaterialChooser #category { width: 30; }
+    MaterialChooser #body { height: 1fr; }
+    MaterialChooser #list { width: 3fr; }
+    MaterialChooser #details { width: 2fr; padding: 0 1; border-left: solid $primary; }
+    MaterialChooser #own-row { height: auto; }
+    MaterialChooser #own { width: 1fr; }
+    MaterialChooser #own-error { color: $error; height: auto; }
+    """
+    BINDINGS = [Binding("escape", "dismiss_none", "Cancel", id="chooser.cancel"),
+                Binding("ctrl+f", "focus_search", "Search", id="chooser.search")]
+
+    def __init__(self, catalog: Catalog, kind: str, bands, current: str | None = None,
+                 current_values: list | None = None) -> None:
+        super().__init__()
+        self.catalog, self.kind, self.bands = catalog, kind, tuple(bands)
+        self.current, self.current_values = current, current_values
+        self._shown: list[Material] = []
+
+    def compose(self) -> ComposeResult:
+        with Vertical():
+            yield Static(f"Choose a {'surface material' if self.kind == 'surface' else 'kind of object'}"
+                         " - type words to search; Enter picks the highlighted row",
+                         id="title")
+            with Horizontal(id="search-row"):
+                yield Input(placeholder="search: words of the name, e.g. wool 50", id="words")
+                cats = sorted({m.category for m in self.catalog.materials.values()
+                               if m.kind == self.kind})
+                yield Select([(c, c) for c in cats], prompt="all categories", id="category")
+            with Horizontal(id="body"):
+                yield DataTable(cursor_type="row", zebra_stripes=True, id="list")
+                yield Static("", id="details")
+            unit = "alpha per band" if self.kind == "surface" else "m^2 per unit per band"
+            with Horizontal(id="own-row"):
+                yield Static(f"Or your own {unit} ({', '.join(map(str, self.bands))} Hz): ")
+                yield Input(" ".join(f"{x:g}" for x in (self.current_values or [])),
+                            placeholder="0.10 0.25 0.60 0.85 0.90 0.90", id="own")
+                yield Button("Use these", id="use-own")
+            yield Static("", id="own-error")
+
+    def on_mount(self) -> None:
+        table = self.query_one("#list", DataTable)
+        table.add_column("id", key="id")
+        table.add_column("name", key="name")
+        if self.kind == "surface":
+            table.add_column("NRC", key="nrc")
+            table.add_column("alpha_w", key="aw")
+        else:
+            table.add_column("500 Hz m^2", key="v500")
+        self._fill()
+        self.query_one("#words", Input).focus()
+
+    def _fill(self) -> None:
+        words = self.query_one("#words", Input).value
+        cat = self.query_one("#category", Select).value
+        category = cat if isinstance(cat, str) else None
+        self._shown = self.catalog.search(words, category, self.kind)
+        table = self.query_one("#list", DataTable)
+        table.clear()
+        for m in self._shown:
+            if self.kind == "surface":
+                r = m.ratings()
+                table.add_row(m.id, m.name, f"{r[0]:.2f}", f"{r[2].label()} {r[2].absorption_class}",
+                              key=m.id)
+            else:
+                table.add_row(m.id, m.name, f"{m.values.get(500, 0):.2f}", key=m.id)
+        if self.current and any(m.id == self.current for m in self._shown):
+            table.move_cursor(row=[m.id for m in self._shown].index(self.current))
+        self._details()
+
+    def _details(self) -> None:
+        table = self.query_one("#list", DataTable)
+        det = self.query_one("#details", Static)
+        if not self._shown:
+            det.update("Nothing matches. Fewer words, or another category.")
+            return
+        m = self._shown[min(table.cursor_row, len(self._shown) - 1)]
+        det.update(material_details(m, self.bands))
+
+    def on_input_changed(self, event: Input.Changed) -> None:
+        if event.input.id == "words":
+            self._fill()
+
+    def on_select_changed(self, event: Select.Changed) -> None:
+        self._fill()
+
+    def on_data_table_row_highlighted(self, event: DataTable.RowHighlighted) -> None:
+        self._details()
+
+    def on_data_table_row_selected(self, event: DataTable.RowSelected) -> None:
+        self.dismiss(("material", str(event.row_key.value)))
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        if event.input.id == "words":
+            if self._shown:
+                table = self.query_one("#list", DataTable)
+                self.dismiss(("material", self._shown[table.cursor_row].id))
+        elif event.input.id == "own":
+            self._use_own()
+
+    def on_button_pressed(self, event: Button.Pressed) -> None:
+        if event.button.id == "use-own":
+            self._use_own()
+
+    def _use_own(self) -> None:
+        text = self.query_one("#own", Input).value
+        err = self.query_one("#own-error", Static)
+        try:
+            vals = [float(x) for x in text.replace(",", " ").split()]
+        except ValueError:
+            err.update("Only numbers, separated by spaces.")
+            return
+        if len(vals) != len(self.bands):
+            err.update(f"{len(vals)} values given; {len(self.bands)} are needed, one per band.")
+            return
+        high = 1.2 if self.kind == "surface" else None
+        bad = [v for v in vals if v < 0 or (high is not None and v > high)]
+        if bad:
+            err.update(f"{bad[0]:g} is outside 0 to 1.2" if high else f"{bad[0]:g} is below 0")
+            return
+        self.dismiss(("values", vals))
+
+    def action_focus_search(self) -> None:
+        self.query_one("#words", Input).focus()
+
+    def action_dismiss_none(self) -> None:
+        self.dismiss(None)

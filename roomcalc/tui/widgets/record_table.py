@@ -1,0 +1,278 @@
+"""A table of records (surfaces, objects, sources, receivers) with an editor line under it.
+
+Columns are described by :class:`Column`. Enter (or a click) on a cell opens the editor line
+with the cell's value; Enter there sends :class:`FieldEdited` up, Escape cancels. A value that
+does not parse (text in a number field) is shown under the editor with the reason and is not
+sent. Range checks happen above, in the room check, and come back through :meth:`show_problems`.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Vertical
+from textual.validation import ValidationResult, Validator
+from textual.widgets import DataTable, Input, Static
+
+from roomcalc.tui.messages import FieldEdited, MaterialWanted, RowAction
+
+
+@dataclass
+class Column:
+    """One column: the record attribute, its heading, and how to show, parse and edit it.
+
+    kind: text, number, int, choice, material, numbers (a list), position, distances.
+    """
+
+    key: str
+    label: str
+    kind: str = "text"
+    choices: tuple = ()
+    width: int | None = None
+    length: int | None = None          # for numbers: how many values
+    optional: bool = True
+    hint: str = ""
+    show: object = None                # callable(record) -> str, overrides the default
+    extra: dict = field(default_factory=dict)
+
+
+def fmt_value(v, kind: str) -> str:
+    if v is None:
+        return ""
+    if kind in ("numbers", "position"):
+        return " ".join(f"{x:g}" for x in v)
+    if kind == "distances":
+        return ", ".join(f"{k}={x:g}" for k, x in v.items())
+    if isinstance(v, float):
+        return f"{v:g}"
+    return str(v)
+
+
+def parse_value(text: str, col: Column):
+    """The typed text as a value for the column; ValueError with the reason when it does not
+    parse. Empty text clears an optional field (None)."""
+    t = text.strip()
+    if not t:
+        if col.optional:
+            return {} if col.kind == "distances" else None
+        raise ValueError(f"{col.label} cannot be empty")
+    if col.kind == "text":
+        return t
+    if col.kind == "number":
+        try:
+            return float(t)
+        except ValueError:
+            raise ValueError(f"'{t}' is not a number") from None
+    if col.kind == "int":
+        try:
+            return int(t)
+        except ValueError:
+            raise ValueError(f"'{t}' is not a whole number") from None
+    if col.kind == "choice":
+        if t not in col.choices:
+            raise ValueError(f"'{t}' is not one of: {', '.join(col.choices)}")
+        return t
+    if col.kind in ("numbers", "position"):
+        parts = t.replace(",", " ").split()
+        try:
+            vals = [float(p) for p in parts]
+        except ValueError:
+            bad = next(p for p in parts if not _is_float(p))
+            raise ValueError(f"'{bad}' is not a number") from None
+        n = 3 if col.kind == "position" else col.length
+        if n is not None and len(vals) != n:
+            raise ValueError(f"{len(vals)} values given; {n} are needed")
+        return vals
+    if col.kind == "distances":
+        out = {}
+        for part in t.split(","):
+            if "=" not in part:
+                raise ValueError(f"'{part.strip()}': write source=distance, e.g. Amp=3.2")
+            k, _, x = part.partition("=")
+            try:
+                out[k.strip()] = float(x)
+            except ValueError:
+                raise ValueError(f"'{x.strip()}' is not a number") from None
+        return out
+    return t
+
+
+def _is_float(p: str) -> bool:
+    try:
+        float(p)
+        return True
+    except ValueError:
+        return False
+
+
+class _ParseValidator(Validator):
+    def __init__(self, col: Column) -> None:
+        super().__init__()
+        self.col = col
+
+    def validate(self, value: str) -> ValidationResult:
+        try:
+            parse_value(value, self.col)
+        except ValueError as exc:
+            return self.failure(str(exc))
+        return self.success()
+
+
+class RecordTable(Vertical):
+    """A table of one collection of the room, with its editor line."""
+
+    DEFAULT_CSS = """
+    RecordTable { height: 1fr; }
+    RecordTable DataTable { height: 1fr; }
+    RecordTable #editor-row { height: auto; display: none; }
+    RecordTable.editing #editor-row { display: block; }
+    RecordTable #editor-label { padding: 0 1; color: $text-muted; }
+    RecordTable #editor { width: 1fr; margin: 0 1; }
+    RecordTable #editor-error { color: $error; height: auto; padding: 0 1; }
+    RecordTable #row-help { color: $text-muted; height: 1; padding: 0 1; }
+    RecordTable #row-detail { height: auto; max-height: 2; padding: 0 1; }
+    RecordTable #problems { color: $error; height: auto; max-height: 4; padding: 0 1; }
+    """
+
+    BINDINGS = [
+        Binding("a", "row('add')", "Add", id="row.add"),
+        Binding("c", "row('duplicate')", "Copy row", id="row.duplicate"),
+        Binding("delete,x", "row('delete')", "Delete", id="row.delete"),
+        Binding("ctrl+up,K", "row('up')", "Move up", show=False, id="row.up"),
+        Binding("ctrl+down,J", "row('down')", "Move down", show=False, id="row.down"),
+        Binding("escape", "cancel_edit", "Cancel", show=False, id="row.cancel"),
+    ]
+
+    def __init__(self, collection: str, columns: list[Column], *, help_text: str = "",
+                 describe=None, id: str | None = None) -> None:
+        super().__init__(id=id)
+        self.describe = describe
+        self.collection = collection
+        self.columns = columns
+        self.records: list = []
+        self.help_text = help_text
+        self._editing: tuple[int, int] | None = None
+
+    def compose(self) -> ComposeResult:
+        table = DataTable(cursor_type="cell", zebra_stripes=True, id="table")
+        yield table
+        with Vertical(id="editor-row"):
+            yield Static("", id="editor-label")
+            yield Input(id="editor", validate_on=["changed", "submitted"], compact=True)
+        yield Static("", id="editor-error")
+        yield Static("", id="problems")
+        yield Static("", id="row-detail")
+        yield Static(self.help_text, id="row-help")
+
+    def on_mount(self) -> None:
+        table = self.query_one("#table", DataTable)
+        for col in self.columns:
+            table.add_column(col.label, key=col.key, width=col.width)
+
+    # ---------------------------------------------------------------- downward
+    def set_records(self, records: list, annotations: dict | None = None) -> None:
+        """Show these records (keeps the cursor where it was when it can)."""
+        self.records = records
+        table = self.query_one("#table", DataTable)
+        coord = table.cursor_coordinate
+        table.clear()
+        for i, rec in enumerate(records):
+            cells = []
+            for col in self.columns:
+                text = col.show(rec) if col.show else fmt_value(getattr(rec, col.key, None),
+                                                                 col.kind)
+                cells.append(text)
+            table.add_row(*cells, key=str(i), label=str(i + 1))
+        if records:
+            row = min(coord.row, len(records) - 1)
+            table.move_cursor(row=row, column=coord.column, animate=False)
+            self._detail(row)
+        else:
+            self.query_one("#row-detail", Static).update(
+                "Nothing here yet: press a to add one.")
+
+    def show_problems(self, lines: list[str]) -> None:
+        self.query_one("#problems", Static).update("\n".join(lines))
+
+    def select_row(self, index: int) -> None:
+        table = self.query_one("#table", DataTable)
+        if 0 <= index < table.row_count:
+            table.move_cursor(row=index, animate=False)
+
+    @property
+    def current_row(self) -> int | None:
+        table = self.query_one("#table", DataTable)
+        return table.cursor_row if table.row_count else None
+
+    def on_data_table_cell_highlighted(self, event: DataTable.CellHighlighted) -> None:
+        event.stop()
+        self._detail(event.coordinate.row)
+
+    def _detail(self, row: int) -> None:
+        text = ""
+        if self.describe is not None and 0 <= row < len(self.records):
+            text = self.describe(self.collection, self.records[row])
+        self.query_one("#row-detail", Static).update(text)
+
+    # ---------------------------------------------------------------- editing
+    def on_data_table_cell_selected(self, event: DataTable.CellSelected) -> None:
+        event.stop()
+        self.start_edit(event.coordinate.row, event.coordinate.column)
+
+    def start_edit(self, row: int, column: int) -> None:
+        if not (0 <= row < len(self.records)):
+            return
+        col = self.columns[column]
+        if col.kind == "material":
+            self.post_message(MaterialWanted(self.collection, row))
+            return
+        rec = self.records[row]
+        self._editing = (row, column)
+        editor = self.query_one("#editor", Input)
+        editor.validators = [_ParseValidator(col)]
+        editor.value = fmt_value(getattr(rec, col.key, None), col.kind)
+        hint = f" ({col.hint})" if col.hint else ""
+        self.query_one("#editor-label", Static).update(
+            f"Edit {getattr(rec, 'name', row + 1)} / {col.label}{hint}  (Enter applies, "
+            "Escape cancels)")
+        self.query_one("#editor-error", Static).update("")
+        self.add_class("editing")
+        editor.focus()
+
+    def on_input_changed(self, event: Input.Changed) -> None:
+        if event.input.id != "editor":
+            return
+        event.stop()
+        res = event.validation_result
+        self.query_one("#editor-error", Static).update(
+            "" if res is None or res.is_valid else "; ".join(res.failure_descriptions))
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        if event.input.id != "editor" or self._editing is None:
+            return
+        event.stop()
+        row, column = self._editing
+        col = self.columns[column]
+        try:
+            value = parse_value(event.value, col)
+        except ValueError as exc:
+            self.query_one("#editor-error", Static).update(str(exc))
+            return
+        self._finish_edit()
+        self.post_message(FieldEdited(self.collection, row, col.key, value))
+
+    def action_cancel_edit(self) -> None:
+        self._finish_edit()
+
+    def _finish_edit(self) -> None:
+        self._editing = None
+        self.remove_class("editing")
+        self.query_one("#editor-error", Static).update("")
+        self.query_one("#table", DataTable).focus()
+
+    def action_row(self, action: str) -> None:
+        if self._editing is not None:
+            return
+        self.post_message(RowAction(self.collection, action, self.current_row))

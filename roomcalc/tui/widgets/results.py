@@ -1,0 +1,144 @@
+"""Widgets that show results: per-band tables, receiver levels, before/after, and the strip of
+warnings and cautions. They are told what to show; they never compute."""
+
+from __future__ import annotations
+
+import math
+
+from rich.text import Text
+from textual.widgets import DataTable, Static
+
+from roomcalc.engine.analysis import METHOD_TITLES, METHODS, Comparison, RoomResult
+from roomcalc.io.units import METRIC, Units
+
+
+def _f(x, nd=2) -> str:
+    return "-" if x is None or not math.isfinite(x) else f"{x:.{nd}f}"
+
+
+class BandTable(DataTable):
+    """A table with one row per quantity and one column per octave band."""
+
+    DEFAULT_CSS = "BandTable { height: auto; max-height: 100%; }"
+
+    def __init__(self, *, extra: str | None = None, id: str | None = None) -> None:
+        super().__init__(cursor_type="row", zebra_stripes=True, id=id)
+        self.extra = extra
+        self._bands: tuple = ()
+
+    def _columns(self, bands, first: str) -> None:
+        if bands == self._bands and self.columns:
+            self.clear()
+            return
+        self.clear(columns=True)
+        self.add_column(first, key="label")
+        for b in bands:
+            self.add_column(f"{b:g}" if b < 1000 else f"{b / 1000:g}k", key=str(b))
+        if self.extra:
+            self.add_column(self.extra, key="extra")
+        self._bands = bands
+
+    def _row(self, label, values, nd=2, extra=None, style: str = "") -> None:
+        cells = [Text(label, style=style)] + [Text(_f(float(v), nd), style=style, justify="right")
+                                              for v in values]
+        if self.extra:
+            cells.append(Text("" if extra is None else _f(extra, 1), style=style,
+                              justify="right"))
+        self.add_row(*cells)
+
+
+class ReverbTable(BandTable):
+    """RT by every method (the recommended one marked), room constant, critical distance,
+    Schroeder frequency."""
+
+    def show(self, res: RoomResult, units: Units = METRIC) -> None:
+        self._columns(res.bands_hz, "RT60 [s]")
+        for k in METHODS:
+            if k in res.rt60_s:
+                rec = k == res.recommended
+                self._row(("> " if rec else "  ") + METHOD_TITLES[k], res.rt60_s[k],
+                          style="bold" if rec else "")
+        self._row(f"R [{units.area_label}]", res.room_constant_m2 / units.area, 1)
+        self._row("mean alpha", res.mean_alpha, 3)
+        for s in res.sources:
+            name = s.name if len(s.name) <= 12 else s.name[:11] + "~"
+            self._row(f"r_c {name} [{units.length_label}]", s.critical_distance_m / units.length)
+        self._row("f_S [Hz]", res.schroeder_hz, 0)
+        self._row("air [dB/km]", res.air_attenuation_db_per_m * 1000.0, 1)
+
+
+class ReceiverTable(BandTable):
+    """Level at each receiver per band and in dB(A), with the direct and reverberant parts."""
+
+    def __init__(self, *, id: str | None = None) -> None:
+        super().__init__(extra="dB(A)", id=id)
+
+    def show(self, res: RoomResult) -> None:
+        self._columns(res.bands_hz, "Lp [dB]")
+        for r in res.receivers:
+            self._row(r.name, r.level_db, 1, r.level_dba, style="bold")
+            self._row("  direct", r.direct_db, 1, r.direct_dba)
+            self._row("  reverberant", r.reverberant_db, 1, r.reverberant_dba)
+
+
+class CompareTable(BandTable):
+    """Before and after: RT by one method, reverberant-field change, receivers' levels."""
+
+    def __init__(self, *, id: str | None = None) -> None:
+        super().__init__(extra="dB(A)", id=id)
+
+    def show(self, cmp: Comparison, method: str) -> None:
+        b, a = cmp.before, cmp.after
+        self._columns(b.bands_hz, "before / after")
+        self._row(f"RT60 {METHOD_TITLES[method]} before [s]", b.rt60_s[method])
+        self._row("  after [s]", a.rt60_s[method], style="bold")
+        self._row("  change [s]", a.rt60_s[method] - b.rt60_s[method])
+        self._row("Reverberant field [dB]", cmp.reverberant_reduction_db, 1)
+        before = {r.name: r for r in b.receivers}
+        after = {r.name: r for r in a.receivers}
+        for c in cmp.receivers:
+            self._row(f"{c.name} before", before[c.name].level_db, 1, before[c.name].level_dba)
+            self._row("  after", after[c.name].level_db, 1, after[c.name].level_dba,
+                      style="bold")
+            self._row("  change", c.level_change_db, 1, c.level_change_dba)
+
+
+SHORT_CAUTION = (
+    "80 dB(A) or more can damage hearing over a working day (EU 2003/10/EC action values 80 and "
+    "85 dB(A), limit 87; OSHA 29 CFR 1910.95 limit 90 dBA, action level 85). Wear hearing "
+    "protection. These estimates do not replace a measurement by a competent person; local "
+    "regulations govern.")
+
+
+class FindingsStrip(Static):
+    """Warnings, cautions and problems with the room, in words, where they cannot be missed."""
+
+    DEFAULT_CSS = """
+    FindingsStrip { height: auto; max-height: 7; padding: 0 1; border-top: solid $warning;
+                    overflow-y: auto; }
+    FindingsStrip.has-caution { border-top: heavy $error; }
+    FindingsStrip.has-problems { border-top: heavy $error; }
+    """
+
+    def show(self, res: RoomResult | None, problems: list[str], stale: bool) -> None:
+        text = Text()
+        if problems:
+            text.append("Not computed: fix " + ("this" if len(problems) == 1 else "these")
+                        + " first" + (" (results shown are from the last valid room)"
+                                      if stale else "") + "\n", style="bold")
+            for p in problems[:6]:
+                text.append(f"  x {p}\n", style="bold")
+            if len(problems) > 6:
+                text.append(f"  ... and {len(problems) - 6} more\n")
+        if res is not None:
+            loud = [c for c in res.cautions if c.startswith("'")]
+            if loud:
+                text.append("CAUTION " + " ".join(c.rstrip(".") + ";" for c in loud).rstrip(";")
+                            + ": " + SHORT_CAUTION + "\n", style="bold")
+            for w in res.warnings:
+                text.append(f"- {w.message}\n")
+        if not text.plain:
+            text.append("No warnings.")
+        self.set_class(bool(problems), "has-problems")
+        self.set_class(bool(res is not None and res.cautions), "has-caution")
+        self.update(text.rstrip() or text)
