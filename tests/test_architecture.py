@@ -95,3 +95,21 @@ def _loaded_after(code: str) -> set[str]:
 def test_no_textual_loaded(code):
     loaded = _loaded_after(code)
     assert not {m for m in loaded if m.split(".")[0] in UI}
+
+
+def test_interface_layers():
+    # Inside tui: widgets never import screens or the app; screens never import the app.
+    bad = []
+    for f in _modules("tui/widgets"):
+        for mod, line in _imports(f):
+            if mod.startswith(("roomcalc.tui.screens", "roomcalc.tui.app")):
+                bad.append(f"widgets/{f.name}:{line} imports {mod}")
+    for f in _modules("tui/screens"):
+        for mod, line in _imports(f):
+            if mod.startswith("roomcalc.tui.app"):
+                bad.append(f"screens/{f.name}:{line} imports {mod}")
+    for f in [PKG / "tui" / "document.py"]:
+        for mod, line in _imports(f):
+            if mod.split(".")[0] in UI:
+                bad.append(f"document.py:{line} imports {mod} (it holds no interface)")
+    assert not bad, bad

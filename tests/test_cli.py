@@ -176,3 +176,11 @@ def test_python_m():
     out = subprocess.run([sys.executable, "-m", "roomcalc", "check", "--demo"],
                          capture_output=True, text=True)
     assert out.returncode == 0 and "ok" in out.stdout
+
+
+def test_interface_needs_a_terminal():
+    # Under pytest stdin is not a terminal: the interface says so instead of drawing garbage.
+    out = subprocess.run([sys.executable, "-m", "roomcalc"], capture_output=True, text=True,
+                         stdin=subprocess.DEVNULL)
+    assert out.returncode == 2 and "needs a terminal" in out.stderr
+    assert "Traceback" not in out.stderr

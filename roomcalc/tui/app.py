@@ -8,7 +8,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 from pathlib import Path
 
-from textual.app import App, SystemCommand
+from textual.app import App, ScreenStackError, SystemCommand
 from textual.binding import Binding
 
 from roomcalc.io.catalog import Catalog
@@ -126,10 +126,10 @@ class RoomApp(App):
             doc.save(path)
         except OSError as exc:
             self.notify(f"Not saved: {path}: {exc.strerror or exc}", severity="error",
-                        timeout=8)
+                        timeout=8, markup=False)
             return
         self.main._title()
-        self.notify(f"Saved {path}")
+        self.notify(f"Saved {path}", markup=False)
 
     def _guard(self, then) -> None:
         """Run ``then`` now, or after asking what to do with unsaved changes."""
@@ -157,6 +157,8 @@ class RoomApp(App):
         self._guard(self._quit_now)
 
     def _quit_now(self) -> None:
+        if self._recovery_timer is not None:     # else it may write the file after all
+            self._recovery_timer.stop()
         if not self.main.document.modified:
             discard_recovery(self.main.document.path)
         self.exit()
@@ -183,10 +185,11 @@ class RoomApp(App):
             doc = Document.open(path)
         except RoomFileError as exc:
             lines = [str(p) for p in exc.problems[:8]]
-            self.notify("Cannot open it:\n" + "\n".join(lines), severity="error", timeout=12)
+            self.notify("Cannot open it:\n" + "\n".join(lines), severity="error", timeout=12,
+                        markup=False)
             return
         except (OSError, UnicodeDecodeError) as exc:
-            self.notify(f"Cannot open {path}: {exc}", severity="error", timeout=8)
+            self.notify(f"Cannot open {path}: {exc}", severity="error", timeout=8, markup=False)
             return
         self._set_document(doc)
         self._offer_recovery(doc)
@@ -239,7 +242,10 @@ class RoomApp(App):
                                               self._write_recovery)
 
     def _write_recovery(self) -> None:
-        doc = self.main.document
+        try:
+            doc = self.main.document
+        except ScreenStackError:                  # closing: the screens are gone
+            return
         if doc.demo:
             return
         if not doc.modified:

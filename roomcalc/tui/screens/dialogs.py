@@ -31,7 +31,7 @@ class Ask(ModalScreen[str | None]):
 
     def compose(self) -> ComposeResult:
         with Vertical(classes="dialog"):
-            yield Static(self.question, classes="question")
+            yield Static(self.question, classes="question", markup=False)
             with Horizontal(classes="buttons"):
                 for bid, label, variant in self.buttons:
                     yield Button(label, id=bid, variant=variant)
@@ -58,7 +58,7 @@ class AskText(ModalScreen[str | None]):
 
     def compose(self) -> ComposeResult:
         with Vertical(classes="dialog"):
-            yield Static(self.question, classes="question")
+            yield Static(self.question, classes="question", markup=False)
             yield Input(self.value, placeholder=self.placeholder, id="text")
             yield Static("Enter to confirm, Escape to cancel.", classes="hint")
 
@@ -91,7 +91,7 @@ class AskBox(ModalScreen[tuple | None]):
 
     def compose(self) -> ComposeResult:
         with Vertical(classes="dialog"):
-            yield Static(self.question, classes="question")
+            yield Static(self.question, classes="question", markup=False)
             with Horizontal(classes="buttons"):
                 for key, label, default in (("length", "Length", "6"), ("width", "Width", "4"),
                                             ("height", "Height", "2.7")):

@@ -6,6 +6,7 @@ from __future__ import annotations
 import time
 
 import numpy as np
+from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical
@@ -102,7 +103,7 @@ class MainScreen(Screen):
                     with TabPane("Before/after", id="v-compare"):
                         yield Static("", id="compare-head")
                         yield CompareTable(id="compare-table")
-                        yield Static("", id="compare-notes")
+                        yield Static("", id="compare-notes", markup=False)
         yield FindingsStrip(id="findings")
         yield Footer()
 
@@ -149,7 +150,7 @@ class MainScreen(Screen):
         self._layout_for(event.size.width)
 
     def _layout_for(self, width: int) -> None:
-        self.set_class(width < 110, "narrow")
+        _toggle(self, width < 110, "narrow")
 
     # ------------------------------------------------------------------ showing the spec
     def _show_material(self, rec) -> str:
@@ -215,9 +216,15 @@ class MainScreen(Screen):
                 pass
         return "(rest)"
 
-    def _refresh_tables(self) -> None:
+    def _refresh_tables(self, every: bool = False) -> None:
+        """Redraw the table of the visible tab (the others when they are shown)."""
         nb = len(self.document.spec.bands)
+        active = self.query_one("#edit", TabbedContent).active
+        self._tables_dirty = set(EDIT_TABS[1:])
         for coll in EDIT_TABS[1:]:
+            if not every and coll != active:
+                continue
+            self._tables_dirty.discard(coll)
             t = self.query_one(f"#t-{coll}", RecordTable)
             for c in t.columns:
                 if c.kind == "numbers":
@@ -231,9 +238,12 @@ class MainScreen(Screen):
 
     def _title(self) -> None:
         doc = self.document
-        self.app.title = f"roomcalc - {doc.spec.title or 'untitled room'}"
-        self.app.sub_title = (f"{doc.path if doc.path else doc.name}"
-                              + ("  (modified)" if doc.modified else ""))
+        title = f"roomcalc - {doc.spec.title or 'untitled room'}"
+        sub = f"{doc.path if doc.path else doc.name}" + ("  (modified)" if doc.modified else "")
+        if self.app.title != title:
+            self.app.title = title
+        if self.app.sub_title != sub:
+            self.app.sub_title = sub
 
     # ------------------------------------------------------------------ computing
     def recompute(self) -> None:
@@ -267,25 +277,46 @@ class MainScreen(Screen):
     def _show(self, res: RoomResult | None) -> None:
         self.query_one(FindingsStrip).show(res, self.problems, self.stale and res is not None)
         self._show_table_problems()
-        self.set_class(self.stale, "stale")
+        _toggle(self.query_one("#right"), self.stale, "stale")   # a small subtree to restyle
         for pane_id, title in (("v-reverb", "Reverberation"), ("v-distance", "Level vs distance"),
                                ("v-receivers", "Receivers"), ("v-compare", "Before/after")):
             tab = self.query_one("#view", TabbedContent).get_tab(pane_id)
-            tab.label = title + (" (stale)" if self.stale and res is not None else "")
+            label = title + (" (stale)" if self.stale and res is not None else "")
+            if str(tab.label) != label:
+                tab.label = label
+        self._views_dirty = {"v-reverb", "v-distance", "v-receivers", "v-compare"}
         if res is None:
             return
-        units = self.document.spec.unit_system
-        self.query_one(ReverbTable).show(res, units)
-        self.query_one(RtPlot).show(res, self.stale)
-        self.query_one(ReceiverTable).show(res)
-        self.query_one("#receiver-note", Static).update(
-            "" if res.receivers else "No receivers with sources yet: add them in the "
-            "Sources and Receivers tabs.")
-        self._fill_distance_controls(res)
-        self._show_distance()
-        self._show_compare()
-        self._refresh_tables()
+        self._show_view(self.query_one("#view", TabbedContent).active)
+        self._refresh_tables()        # areas that fill the rest of a face come from the result
         self._title()
+
+    def _show_view(self, pane: str) -> None:
+        """Draw one result tab (only the visible one is drawn after an edit)."""
+        res = self.result
+        if res is None or pane not in getattr(self, "_views_dirty", ()):
+            return
+        self._views_dirty.discard(pane)
+        if pane == "v-reverb":
+            self.query_one(ReverbTable).show(res, self.document.spec.unit_system)
+            self.query_one(RtPlot).show(res, self.stale)
+        elif pane == "v-distance":
+            self._fill_distance_controls(res)
+            self._show_distance()
+        elif pane == "v-receivers":
+            self.query_one(ReceiverTable).show(res)
+            self.query_one("#receiver-note", Static).update(
+                "" if res.receivers else "No receivers with sources yet: add them in the "
+                "Sources and Receivers tabs.")
+        elif pane == "v-compare":
+            self._show_compare()
+
+    def on_tabbed_content_tab_activated(self, event: TabbedContent.TabActivated) -> None:
+        pane = event.pane.id if event.pane is not None else None
+        if event.tabbed_content.id == "view":
+            self._show_view(pane)
+        elif event.tabbed_content.id == "edit" and pane in getattr(self, "_tables_dirty", ()):
+            self._refresh_tables()
 
     def _show_table_problems(self) -> None:
         for coll in EDIT_TABS[1:]:
@@ -297,9 +328,13 @@ class MainScreen(Screen):
         src = self.query_one("#dist-source", Select)
         band = self.query_one("#dist-band", Select)
         names = [s.name for s in res.sources]
+        key = (tuple(names), res.bands_hz)
+        if getattr(self, "_controls_key", None) == key:
+            return
+        self._controls_key = key
         with self.prevent(Select.Changed):
             old = src.value
-            src.set_options([(n, n) for n in names])
+            src.set_options([(Text(n), n) for n in names])     # a name is not markup
             if names:
                 src.value = old if old in names else names[0]
             oldb = band.value
@@ -511,13 +546,18 @@ class MainScreen(Screen):
     # ------------------------------------------------------------------ actions
     def action_undo(self) -> None:
         label = self.document.undo()
-        self.notify(f"Undone: {label}" if label else "Nothing to undo.")
+        self._say(f"Undone: {label}" if label else "Nothing to undo.")
         self._after_history()
 
     def action_redo(self) -> None:
         label = self.document.redo()
-        self.notify(f"Redone: {label}" if label else "Nothing to redo.")
+        self._say(f"Redone: {label}" if label else "Nothing to redo.")
         self._after_history()
+
+    def _say(self, text: str) -> None:
+        """A short note that replaces the previous one (a pile of notes slows every redraw)."""
+        self.app.clear_notifications()
+        self.notify(text, markup=False, timeout=2)
 
     def _after_history(self) -> None:
         self._refresh_all()
@@ -533,6 +573,8 @@ class MainScreen(Screen):
 
     def action_edit_tab(self, tab: str) -> None:
         self.query_one("#edit", TabbedContent).active = tab
+        if tab != "room":   # the table of the new tab takes the keys (the old one is hidden)
+            self.call_after_refresh(self.query_one(f"#t-{tab} #table").focus)
 
     def action_view_tab(self, tab: str) -> None:
         self.query_one("#view", TabbedContent).active = tab
@@ -558,6 +600,12 @@ class MainScreen(Screen):
         self.__dict__["_unparsed"] = {}
         self._refresh_all()
         self.recompute()
+
+
+def _toggle(widget, on: bool, name: str) -> None:
+    """Add or remove a class only when it changes (a change restyles the whole subtree)."""
+    if widget.has_class(name) != on:
+        widget.set_class(on, name)
 
 
 def _rebands(spec, old: list, new: list) -> None:

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical
@@ -45,6 +46,7 @@ class MaterialChooser(ModalScreen[tuple | None]):
     MaterialChooser #list { width: 3fr; }
     MaterialChooser #details { width: 2fr; padding: 0 1; border-left: solid $primary; }
     MaterialChooser #own-row { height: auto; }
+    MaterialChooser #own-row Static { width: auto; padding: 1 0 0 0; }
     MaterialChooser #own { width: 1fr; }
     MaterialChooser #own-error { color: $error; height: auto; }
     """
@@ -70,7 +72,7 @@ class MaterialChooser(ModalScreen[tuple | None]):
                 yield Select([(c, c) for c in cats], prompt="all categories", id="category")
             with Horizontal(id="body"):
                 yield DataTable(cursor_type="row", zebra_stripes=True, id="list")
-                yield Static("", id="details")
+                yield Static("", id="details", markup=False)
             unit = "alpha per band" if self.kind == "surface" else "m^2 per unit per band"
             with Horizontal(id="own-row"):
                 yield Static(f"Or your own {unit} ({', '.join(map(str, self.bands))} Hz): ")
@@ -101,10 +103,10 @@ class MaterialChooser(ModalScreen[tuple | None]):
         for m in self._shown:
             if self.kind == "surface":
                 r = m.ratings()
-                table.add_row(m.id, m.name, f"{r[0]:.2f}", f"{r[2].label()} {r[2].absorption_class}",
+                table.add_row(m.id, Text(m.name), f"{r[0]:.2f}", f"{r[2].label()} {r[2].absorption_class}",
                               key=m.id)
             else:
-                table.add_row(m.id, m.name, f"{m.values.get(500, 0):.2f}", key=m.id)
+                table.add_row(m.id, Text(m.name), f"{m.values.get(500, 0):.2f}", key=m.id)
         if self.current and any(m.id == self.current for m in self._shown):
             table.move_cursor(row=[m.id for m in self._shown].index(self.current))
         self._details()

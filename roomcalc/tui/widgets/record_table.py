@@ -10,9 +10,11 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
+from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Vertical
+from textual.coordinate import Coordinate
 from textual.validation import ValidationResult, Validator
 from textual.widgets import DataTable, Input, Static
 
@@ -159,17 +161,17 @@ class RecordTable(Vertical):
         table = DataTable(cursor_type="cell", zebra_stripes=True, id="table")
         yield table
         with Vertical(id="editor-row"):
-            yield Static("", id="editor-label")
+            yield Static("", id="editor-label", markup=False)
             yield Input(id="editor", validate_on=["changed", "submitted"], compact=True)
-        yield Static("", id="editor-error")
-        yield Static("", id="problems")
-        yield Static("", id="row-detail")
+        yield Static("", id="editor-error", markup=False)
+        yield Static("", id="problems", markup=False)
+        yield Static("", id="row-detail", markup=False)
         yield Static(self.help_text, id="row-help")
 
     def on_mount(self) -> None:
         table = self.query_one("#table", DataTable)
         for col in self.columns:
-            table.add_column(col.label, key=col.key, width=col.width)
+            table.add_column(Text(col.label), key=col.key, width=col.width)
 
     # ---------------------------------------------------------------- downward
     def set_records(self, records: list, annotations: dict | None = None) -> None:
@@ -177,14 +179,20 @@ class RecordTable(Vertical):
         self.records = records
         table = self.query_one("#table", DataTable)
         coord = table.cursor_coordinate
-        table.clear()
-        for i, rec in enumerate(records):
-            cells = []
-            for col in self.columns:
-                text = col.show(rec) if col.show else fmt_value(getattr(rec, col.key, None),
-                                                                 col.kind)
-                cells.append(text)
-            table.add_row(*cells, key=str(i), label=str(i + 1))
+        rows = [[Text(col.show(rec) if col.show else           # typed names are not markup
+                      fmt_value(getattr(rec, col.key, None), col.kind))
+                 for col in self.columns] for rec in records]
+        if rows and table.row_count == len(rows):
+            # The same rows: change the cells in place. A clear() would lose the row numbers
+            # whenever the table is drawn before it has measured the new rows, and scroll it.
+            for i, cells in enumerate(rows):
+                for j, cell in enumerate(cells):
+                    if str(table.get_cell_at(Coordinate(i, j))) != cell.plain:
+                        table.update_cell_at(Coordinate(i, j), cell, update_width=True)
+        else:
+            table.clear()
+            for i, cells in enumerate(rows):
+                table.add_row(*cells, key=str(i), label=str(i + 1))
         if records:
             row = min(coord.row, len(records) - 1)
             table.move_cursor(row=row, column=coord.column, animate=False)

@@ -8,6 +8,8 @@ import math
 from rich.text import Text
 from textual.widgets import DataTable, Static
 
+from roomcalc.tui.widgets.table_sync import forget, sync_rows
+
 from roomcalc.engine.analysis import METHOD_TITLES, METHODS, Comparison, RoomResult
 from roomcalc.io.units import METRIC, Units
 
@@ -27,11 +29,12 @@ class BandTable(DataTable):
         self._bands: tuple = ()
 
     def _columns(self, bands, first: str) -> None:
+        self._pending: list[list] = []
         if bands == self._bands and self.columns:
-            self.clear()
             return
         self.clear(columns=True)
-        self.add_column(first, key="label")
+        forget(self)
+        self.add_column(Text(first), key="label")   # "[s]" is a unit, not markup
         for b in bands:
             self.add_column(f"{b:g}" if b < 1000 else f"{b / 1000:g}k", key=str(b))
         if self.extra:
@@ -44,7 +47,11 @@ class BandTable(DataTable):
         if self.extra:
             cells.append(Text("" if extra is None else _f(extra, 1), style=style,
                               justify="right"))
-        self.add_row(*cells)
+        self._pending.append(cells)
+
+    def _flush(self) -> None:
+        """Show the rows collected since _columns, changing only the cells that differ."""
+        sync_rows(self, self._pending)
 
 
 class ReverbTable(BandTable):
@@ -65,6 +72,7 @@ class ReverbTable(BandTable):
             self._row(f"r_c {name} [{units.length_label}]", s.critical_distance_m / units.length)
         self._row("f_S [Hz]", res.schroeder_hz, 0)
         self._row("air [dB/km]", res.air_attenuation_db_per_m * 1000.0, 1)
+        self._flush()
 
 
 class ReceiverTable(BandTable):
@@ -79,6 +87,7 @@ class ReceiverTable(BandTable):
             self._row(r.name, r.level_db, 1, r.level_dba, style="bold")
             self._row("  direct", r.direct_db, 1, r.direct_dba)
             self._row("  reverberant", r.reverberant_db, 1, r.reverberant_dba)
+        self._flush()
 
 
 class CompareTable(BandTable):
@@ -93,7 +102,9 @@ class CompareTable(BandTable):
         self._row(f"RT60 {METHOD_TITLES[method]} before [s]", b.rt60_s[method])
         self._row("  after [s]", a.rt60_s[method], style="bold")
         self._row("  change [s]", a.rt60_s[method] - b.rt60_s[method])
-        self._row("Reverberant field [dB]", cmp.reverberant_reduction_db, 1)
+        # A change like the rows around it (negative = quieter), not the reduction (+0.0 so
+        # that no change shows as 0.0, not -0.0).
+        self._row("Reverberant field change [dB]", -cmp.reverberant_reduction_db + 0.0, 1)
         before = {r.name: r for r in b.receivers}
         after = {r.name: r for r in a.receivers}
         for c in cmp.receivers:
@@ -101,6 +112,7 @@ class CompareTable(BandTable):
             self._row("  after", after[c.name].level_db, 1, after[c.name].level_dba,
                       style="bold")
             self._row("  change", c.level_change_db, 1, c.level_change_dba)
+        self._flush()
 
 
 SHORT_CAUTION = (
@@ -139,6 +151,11 @@ class FindingsStrip(Static):
                 text.append(f"- {w.message}\n")
         if not text.plain:
             text.append("No warnings.")
-        self.set_class(bool(problems), "has-problems")
-        self.set_class(bool(res is not None and res.cautions), "has-caution")
-        self.update(text.rstrip() or text)
+        for on, name in ((bool(problems), "has-problems"),
+                         (bool(res is not None and res.cautions), "has-caution")):
+            if self.has_class(name) != on:
+                self.set_class(on, name)
+        text.rstrip()
+        if text.plain != getattr(self, "_last_plain", None):
+            self._last_plain = text.plain
+            self.update(text)

@@ -49,6 +49,7 @@ class RoomForm(VerticalScroll):
     def __init__(self, *, id: str | None = None) -> None:
         super().__init__(id=id)
         self._units = {}
+        self._shown_units: str | None = None
 
     def compose(self) -> ComposeResult:
         with Grid():
@@ -67,7 +68,7 @@ class RoomForm(VerticalScroll):
                             tooltip=label)
                 u = Static("", classes="unit", id="u-" + key.replace(".", "-"))
                 yield u
-        yield Static("", classes="field-error", id="form-error")
+        yield Static("", classes="field-error", id="form-error", markup=False)
         yield Label("Bands: 125 to 4000 Hz always; add")
         yield Checkbox("63 Hz", id="f-63")
         yield Checkbox("8000 Hz", id="f-8000")
@@ -77,6 +78,7 @@ class RoomForm(VerticalScroll):
         u = spec.unit_system
         labels = {"length": u.length_label, "volume": u.volume_label,
                   "temperature": u.temperature_label, "%": "%", "kPa": "kPa"}
+        self._shown_units = spec.units
         with self.prevent(Input.Changed, Select.Changed, Checkbox.Changed):
             self.query_one("#f-title", Input).value = spec.title
             self.query_one("#f-units", Select).value = spec.units
@@ -109,8 +111,13 @@ class RoomForm(VerticalScroll):
 
     def on_select_changed(self, event: Select.Changed) -> None:
         event.stop()
-        if event.select.id == "f-units" and event.value in ("metric", "imperial"):
-            self.post_message(FieldEdited("room", None, "units", event.value))
+        # The Select posts Changed with its default ("metric") when it is mounted, which can
+        # arrive before or after show(): only a value that differs from the room shown is an
+        # edit (else an imperial room would be converted to metric on opening).
+        value = event.select.value
+        if event.select.id == "f-units" and value in ("metric", "imperial") and \
+                self._shown_units is not None and value != self._shown_units:
+            self.post_message(FieldEdited("room", None, "units", value))
 
     def on_checkbox_changed(self, event: Checkbox.Changed) -> None:
         event.stop()

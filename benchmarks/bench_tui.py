@@ -1,0 +1,154 @@
+"""Speed of the terminal interface: edit to updated screen, and start-up to the first screen.
+
+Run from the project root:
+
+    python benchmarks/bench_tui.py
+
+(1) Edit latency: in a headless Pilot session (120 x 40) a key press that edits the room (``c``
+copies the highlighted surface, ``x`` deletes the copy again), timed from the press until the
+app has processed it and refreshed (``pilot.pause()``), median over 50 edits; for the demo room and
+for a room of 100 surfaces and 10 sources. It also prints the share of that time spent in the
+room check and the engine (the screen's ``last_update_s``).
+(2) Start-up: ``roomcalc open FILE`` in a real terminal (tmux, 120 x 40), from the command's start
+until the reverberation table is on the screen (capture-pane polled every 10 ms), median of 5.
+
+Targets: the screen is updated within 50 ms of an edit for the 100-surface room; start-up under
+1 s. Printed, never asserted: this is a measurement, not a test.
+"""
+
+from __future__ import annotations
+
+import asyncio
+import os
+import shutil
+import statistics
+import subprocess
+import sys
+import tempfile
+import time
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parent.parent
+if str(ROOT) not in sys.path:
+    sys.path.insert(0, str(ROOT))
+
+from roomcalc.io.catalog import load_catalog  # noqa: E402
+from roomcalc.io.roomfile import (ReceiverSpec, RoomSpec, ShapeSpec, SourceSpec,  # noqa: E402
+                                  SurfaceSpec, save_spec)
+from roomcalc.tui.app import AppConfig, make_app  # noqa: E402
+from roomcalc.tui.document import Document  # noqa: E402
+
+FACES = ("floor", "ceiling", "front", "back", "left", "right")
+
+
+def big_room(path: Path) -> Path:
+    """100 surfaces, 10 sources, 10 receivers in a 20 x 15 x 6 m box (an invented test room)."""
+    cat = load_catalog(include_user=False)
+    mats = cat.ids("surface")[:25]
+    L, W, H = 20.0, 15.0, 6.0
+    face_area = {"floor": L * W, "ceiling": L * W, "front": W * H, "back": W * H,
+                 "left": L * H, "right": L * H}
+    spec = RoomSpec(title="Benchmark hall, 100 surfaces", shape=ShapeSpec(L, W, H))
+    for i in range(100):
+        face = FACES[i % 6]
+        n_on_face = len([j for j in range(100) if j % 6 == i % 6])
+        spec.surfaces.append(SurfaceSpec(name=f"S{i}", face=face, material=mats[i % 25],
+                                         area=round(face_area[face] / n_on_face, 4)))
+    for k in range(10):
+        spec.sources.append(SourceSpec(name=f"Src{k}", sound_power_dba=85.0 + k,
+                                       spectrum="pink", placement="surface",
+                                       position=[1.0 + k * 1.8, 2.0 + k, 1.0]))
+        spec.receivers.append(ReceiverSpec(name=f"Rec{k}", position=[2.0 + k * 1.7, 12.0 - k, 1.2]))
+    save_spec(spec, path)
+    return path
+
+
+async def edit_latency(doc: Document, edits: int = 50, row: int = 0):
+    """Median time of an edit key and of a key that edits nothing (cursor down/up), and the
+    median check+engine time, on surface ``row`` (one with its own area, so that its copy is a
+    valid room)."""
+    app = make_app(doc, load_catalog(), AppConfig(recovery_delay_s=3600))
+    times, engine, idle = [], [], []
+    async with app.run_test(size=(120, 40)) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        for _ in range(row):
+            await pilot.press("down")
+        await pilot.pause()
+        for i in range(20):
+            t0 = time.perf_counter()
+            await pilot.press("down" if i % 2 == 0 else "up")
+            await pilot.pause()
+            idle.append(time.perf_counter() - t0)
+        for i in range(edits):
+            key = "c" if i % 2 == 0 else "x"     # copy the row, then delete the copy
+            t0 = time.perf_counter()
+            await pilot.press(key)
+            await pilot.pause()
+            times.append(time.perf_counter() - t0)
+            engine.append(screen.last_update_s)
+        assert not screen.stale, screen.problems
+    return statistics.median(times), statistics.median(engine), statistics.median(idle)
+
+
+def startup(path: Path, runs: int = 5):
+    if shutil.which("tmux") is None:
+        return None
+    out = []
+    env = dict(os.environ)
+    with tempfile.TemporaryDirectory() as data:
+        env["ROOMCALC_DATA_DIR"] = data
+        for k in range(runs):
+            sock = f"rcbench{os.getpid()}{k}"
+            cmd = f"{sys.executable} -m roomcalc open {path}"
+            t0 = time.perf_counter()
+            subprocess.run(["tmux", "-L", sock, "new-session", "-d", "-x", "120", "-y", "40",
+                            cmd], env=env, check=True, cwd=ROOT)
+            seen = None
+            while time.perf_counter() - t0 < 20:
+                screen = subprocess.run(["tmux", "-L", sock, "capture-pane", "-p"],
+                                        capture_output=True, text=True).stdout
+                if "Sabine" in screen and "f_S [Hz]" in screen:
+                    seen = time.perf_counter() - t0
+                    break
+                time.sleep(0.01)
+            subprocess.run(["tmux", "-L", sock, "kill-server"], capture_output=True)
+            if seen is not None:
+                out.append(seen)
+    return statistics.median(out) if out else None
+
+
+def main() -> int:
+    with tempfile.TemporaryDirectory() as tmp:
+        tmp = Path(tmp)
+        os.environ.setdefault("ROOMCALC_DATA_DIR", str(tmp / "data"))
+        demo = tmp / "garage-studio.toml"
+        shutil.copy(ROOT / "example_rooms" / "garage-studio.toml", demo)
+        big = big_room(tmp / "big.toml")
+        rows = []
+        for label, path, row in (("demo room (7 surfaces, 2 sources)", demo, 4),
+                                 ("100 surfaces, 10 sources", big, 0)):
+            t, e, idle = asyncio.run(edit_latency(Document.open(path), row=row))
+            rows.append((label, t, e, idle))
+        t_start = startup(demo)
+        print("edit -> screen updated (median of 50 edits, headless 120 x 40)")
+        print(f"{'room':36} {'edit':>9} {'no-edit key':>12} {'check+engine':>13} {'share':>6}"
+              "  target")
+        for label, t, e, idle in rows:
+            target = "< 50 ms" if "100" in label else ""
+            met = "" if not target else ("  met" if t < 0.05 else "  NOT met")
+            print(f"{label:36} {t * 1e3:6.1f} ms {idle * 1e3:9.1f} ms {e * 1e3:10.2f} ms "
+                  f"{100 * e / t:5.1f} %  {target}{met}")
+        print("  no-edit key: cursor down/up, the cost of a key press and a redraw in Pilot "
+              "itself on this machine")
+        if t_start is None:
+            print("start-up: tmux not available")
+        else:
+            print(f"start-up of 'roomcalc open' to the first full screen (median of 5): "
+                  f"{t_start * 1e3:.0f} ms  target < 1000 ms  "
+                  f"{'met' if t_start < 1.0 else 'NOT met'}")
+    return 0
+
+
+if __name__ == "__main__":
+    raise SystemExit(main())

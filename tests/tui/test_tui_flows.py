@@ -1,0 +1,407 @@
+"""Flow tests: open an example room, edit it with the keyboard as a user would, and check the
+numbers the screen shows against the engine run on the same room written as a file.
+
+Every expected number comes from ``read_room`` + ``evaluate`` on the edited room (see
+conftest.py), never from a constant in this file.
+"""
+
+from __future__ import annotations
+
+import os
+
+from roomcalc.io.roomfile import parse_spec, spec_to_toml
+from roomcalc.tui.app import AppConfig, make_app
+from roomcalc.tui.document import Document, convert_units, find_recovery, recovery_path
+from roomcalc.tui.screens.dialogs import Ask
+from roomcalc.tui.screens.main import MainScreen
+from roomcalc.tui.screens.materials import MaterialChooser
+
+SIZE = (120, 40)
+MATERIAL_COL, AREA_COL = 4, 2          # columns of the surfaces table
+
+
+def _app(path, catalog, **config):
+    config.setdefault("offer_recovery", False)
+    config.setdefault("theme", "textual-dark")
+    return make_app(Document.open(path), catalog, AppConfig(**config))
+
+
+def _surfaces(app):
+    return app.screen.query_one("#t-surfaces")
+
+
+def _assert_reverb_matches(reverb, res, engine):
+    """The recommended row and every band of it, and each method's 500 Hz value."""
+    title, by_band = reverb["recommended"]
+    assert title == engine.titles[res.recommended]
+    for b in res.bands_hz:
+        assert by_band[b] == engine.rt_text(res, b), b
+    for k in res.rt60_s:
+        assert reverb["rows"][engine.titles[k]][500] == engine.rt_text(res, 500, k), k
+
+
+def _index(doc, name):
+    return [s.name for s in doc.spec.surfaces].index(name)
+
+
+async def test_material_change_through_chooser(room_file, catalog, engine, screen_tables,
+                                               pilot_keys):
+    path = room_file("classroom.toml")
+    app = _app(path, catalog)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.pause()
+        doc = app.screen.document
+
+        # As opened: the numbers of the file itself.
+        res = engine.result(parse_spec(path.read_text(encoding="utf-8")))
+        reverb = screen_tables.reverb(app)
+        _assert_reverb_matches(reverb, res, engine)
+        before = reverb["recommended"][1][500]
+        # Headings keep their units (a "[s]" must not be eaten as markup).
+        assert reverb["headings"][0] == "RT60 [s]"
+        assert reverb["headings"][1:] == [f"{b:g}" if b < 1000 else f"{b / 1000:g}k"
+                                          for b in res.bands_hz]
+        # Critical distance of the one source at 500 Hz [m].
+        rc = [v for k, v in reverb["rows"].items() if k.startswith("r_c ")]
+        assert len(rc) == len(res.sources) == 1
+        assert rc[0][500] == f"{res.sources[0].critical_distance_m[2]:.2f}"
+        assert not app.screen.query_one("#right").has_class("stale")
+        # A surface that fills the rest of its face shows the area the engine gives it [m^2].
+        floor = _index(doc, "Floor")
+        assert doc.spec.surfaces[floor].area is None
+        assert screen_tables.records(app, "surfaces")[floor][AREA_COL] == \
+            f"({res.room.surfaces[floor].area:.2f})"
+
+        # Enter on the Material cell of the ceiling opens the chooser; words filter the list.
+        ceiling = _index(doc, "Ceiling")
+        await pilot_keys.edit_cell(pilot, _surfaces(app), ceiling, MATERIAL_COL, None)
+        assert isinstance(app.screen, MaterialChooser)
+        lst = app.screen.query_one("#list", screen_tables.DataTable)
+        assert lst.row_count == len(catalog.ids("surface"))
+        words = "cork"
+        await pilot_keys.type_words(pilot, words)
+        expected = [m.id for m in catalog.search(words, None, "surface")]
+        assert lst.row_count == len(expected) == 1
+        await pilot.press("enter")
+        await pilot.pause()
+        assert isinstance(app.screen, MainScreen)
+        assert doc.spec.surfaces[ceiling].material == expected[0]
+        assert doc.modified and "(modified)" in app.sub_title
+        assert screen_tables.records(app, "surfaces")[ceiling][MATERIAL_COL] == expected[0]
+        res = engine.result(doc.spec)
+        reverb = screen_tables.reverb(app)
+        _assert_reverb_matches(reverb, res, engine)
+        assert reverb["recommended"][1][500] != before   # the change did reach the table
+
+        # Key m on another row; the first of several matches is taken.
+        back = _index(doc, "Back wall")
+        _surfaces(app).select_row(back)
+        await pilot.press("m")
+        await pilot.pause()
+        assert isinstance(app.screen, MaterialChooser)
+        words = "vel"
+        await pilot_keys.type_words(pilot, words)
+        expected = [m.id for m in catalog.search(words, None, "surface")]
+        lst = app.screen.query_one("#list", screen_tables.DataTable)
+        assert [str(lst.get_row_at(i)[0]) for i in range(lst.row_count)] == expected
+        assert len(expected) > 1
+        await pilot.press("enter")
+        await pilot.pause()
+        assert doc.spec.surfaces[back].material == expected[0]
+        _assert_reverb_matches(screen_tables.reverb(app), engine.result(doc.spec), engine)
+
+
+async def test_add_undo_redo(room_file, catalog, engine, screen_tables, pilot_keys):
+    path = room_file("classroom.toml")
+    app = _app(path, catalog)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.pause()
+        doc = app.screen.document
+        original = spec_to_toml(doc.spec)
+        n = len(doc.spec.surfaces)
+        shown = screen_tables.reverb(app)
+
+        await pilot.press("a")
+        await pilot.pause()
+        assert len(doc.spec.surfaces) == n + 1
+        rows = screen_tables.records(app, "surfaces")
+        assert len(rows) == n + 1
+        added = doc.spec.surfaces[1]         # added after the highlighted (first) row
+        assert rows[1][0] == added.name and rows[1][MATERIAL_COL] == added.material
+        assert _surfaces(app).current_row == 1
+        res_added = engine.result(doc.spec)
+        _assert_reverb_matches(screen_tables.reverb(app), res_added, engine)
+
+        await pilot.press("ctrl+z")
+        await pilot.pause()
+        assert spec_to_toml(doc.spec) == original
+        assert len(screen_tables.records(app, "surfaces")) == n
+        assert screen_tables.reverb(app) == shown
+        assert not doc.modified and "(modified)" not in app.sub_title
+
+        await pilot.press("ctrl+y")
+        await pilot.pause()
+        assert len(screen_tables.records(app, "surfaces")) == n + 1
+        assert doc.spec.surfaces[1].name == added.name and doc.modified
+        _assert_reverb_matches(screen_tables.reverb(app), res_added, engine)
+
+        # The tab keys hand the keys to that tab's table. A name like "[/x]" is text, not
+        # markup: shown as typed in the table, under it and in the distance view's source
+        # list, and nothing crashes.
+        m = len(doc.spec.sources)
+        await pilot.press("4")
+        await pilot.pause()
+        assert app.screen.query_one("#edit").active == "sources"
+        name = "[/x]"
+        await pilot_keys.edit_cell(pilot, app.screen.query_one("#t-sources"), 0, 0, name)
+        assert app.is_running and doc.spec.sources[0].name == name
+        assert screen_tables.records(app, "sources")[0][0] == name
+        assert screen_tables.text(app, "#t-sources #row-detail").startswith(name + ":")
+        await pilot.press("f6")
+        await pilot.pause()
+        assert app.screen.query_one("#dist-source").value == name
+        _assert_reverb_matches(screen_tables.reverb(app), engine.result(doc.spec), engine)
+
+        # a adds a source; with no position it has no distances yet, which the room check
+        # reports (and the results go stale until it gets them).
+        app.screen.query_one("#t-sources #table").focus()
+        await pilot.press("a")
+        await pilot.pause()
+        assert len(doc.spec.sources) == m + 1
+        assert len(screen_tables.records(app, "sources")) == m + 1
+        findings = screen_tables.text(app, "#findings")
+        assert all(p.message in findings for p in engine.problems(doc.spec))
+        assert app.screen.stale
+
+
+async def test_bad_values(room_file, catalog, engine, screen_tables, pilot_keys):
+    """An area out of range is taken, refused by the room check and shown, the old results
+    stay (stale); text in a number field is refused where it is typed and changes nothing."""
+    path = room_file("classroom.toml")
+    app = _app(path, catalog)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.pause()
+        screen, doc = app.screen, app.screen.document
+        text = spec_to_toml(doc.spec)
+        good = engine.result(doc.spec)
+        shown = screen_tables.reverb(app)
+        windows = _index(doc, "Windows")
+
+        await pilot_keys.edit_cell(pilot, _surfaces(app), windows, AREA_COL, "-5")
+        assert doc.spec.surfaces[windows].area == -5.0
+        want = engine.problems(doc.spec)
+        assert want and all(p.where.startswith(f"surfaces[{windows}].area") for p in want)
+        findings = screen_tables.text(app, "#findings")
+        under = screen_tables.text(app, "#t-surfaces #problems")
+        assert "Not computed" in findings
+        for p in want:
+            assert p.message in findings and p.where in findings
+            assert p.message in under and p.where in under
+        # The last valid results stay, marked stale.
+        assert screen_tables.reverb(app) == shown
+        _assert_reverb_matches(shown, good, engine)
+        assert screen.stale and screen.query_one("#right").has_class("stale")
+        tabs = screen.query_one("#view")
+        for pane in ("v-reverb", "v-distance", "v-receivers", "v-compare"):
+            assert str(tabs.get_tab(pane).label).endswith("(stale)"), pane
+        # Undo clears the problem and the marks.
+        await pilot.press("ctrl+z")
+        await pilot.pause()
+        assert spec_to_toml(doc.spec) == text
+        assert not screen.stale and not screen.query_one("#right").has_class("stale")
+        assert "(stale)" not in str(tabs.get_tab("v-reverb").label)
+        assert screen_tables.text(app, "#t-surfaces #problems").strip() == ""
+        assert screen_tables.reverb(app) == shown
+
+        # Text in a number cell: the reason under the editor line, nothing sent.
+        doc.undo_stack.clear()
+        doc.redo_stack.clear()
+        door = _index(doc, "Door")
+        await pilot_keys.edit_cell(pilot, _surfaces(app), door, AREA_COL, "abc")
+        table = _surfaces(app)
+        assert table.has_class("editing")               # the editor line stays open
+        assert "'abc' is not a number" in screen_tables.text(app, "#t-surfaces #editor-error")
+        assert spec_to_toml(doc.spec) == text and not doc.undo_stack and not doc.modified
+        assert screen_tables.reverb(app) == shown and not screen.stale
+        await pilot.press("escape")
+        await pilot.pause()
+        assert not table.has_class("editing")
+        assert spec_to_toml(doc.spec) == text and not doc.undo_stack
+
+
+async def test_save_reopen_and_quit(room_file, catalog, engine, screen_tables):
+    path = room_file("garage-studio.toml")
+    original_bytes = path.read_bytes()
+    app = _app(path, catalog)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.pause()
+        doc = app.screen.document
+        # An unmodified opened file saves byte for byte as it was.
+        await pilot.press("ctrl+s")
+        await pilot.pause()
+        assert path.read_bytes() == original_bytes
+        # Edit and save.
+        await pilot.press("m")
+        await pilot.pause()
+        await pilot.press(*"cork", "enter")
+        await pilot.pause()
+        assert doc.spec.surfaces[0].material == "cork-tiles-on-concrete"
+        assert doc.modified and "(modified)" in app.sub_title
+        await pilot.press("ctrl+s")
+        await pilot.pause()
+        assert not doc.modified and "(modified)" not in app.sub_title
+        assert spec_to_toml(Document.open(path).spec) == spec_to_toml(doc.spec)
+        # One more edit; quitting asks, and "Save" saves it and quits.
+        await pilot.press("a")
+        await pilot.pause()
+        edited = spec_to_toml(doc.spec)
+        shown = screen_tables.reverb(app)
+        await pilot.press("ctrl+q")
+        await pilot.pause()
+        assert isinstance(app.screen, Ask)
+        await pilot.click("#save")
+        await pilot.pause()
+    assert app.return_code == 0
+    reopened = Document.open(path)
+    assert spec_to_toml(reopened.spec) == edited
+    # The comment lines at the top of the file are kept.
+    head = [ln for ln in original_bytes.decode().splitlines() if ln.startswith("#")]
+    assert path.read_text(encoding="utf-8").splitlines()[:len(head)] == head
+    assert find_recovery(path) is None
+
+    # Reopened: the same room, the same numbers; with nothing changed, quit does not ask.
+    app = _app(path, catalog)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.pause()
+        assert screen_tables.reverb(app) == shown
+        _assert_reverb_matches(shown, engine.result(reopened.spec), engine)
+        await pilot.press("ctrl+q")
+        await pilot.pause()
+        assert not isinstance(app.screen, Ask)
+    assert app.return_code == 0
+
+
+async def test_quit_with_unsaved_changes_asks(room_file, catalog):
+    path = room_file("classroom.toml")
+    original = path.read_bytes()
+    app = _app(path, catalog)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.pause()
+        await pilot.press("a")
+        await pilot.pause()
+        await pilot.press("ctrl+q")
+        await pilot.pause()
+        assert isinstance(app.screen, Ask)
+        labels = {str(b.id): str(b.label) for b in app.screen.query("Button")}
+        assert labels == {"save": "Save", "discard": "Don't save", "cancel": "Cancel"}
+        await pilot.click("#cancel")
+        await pilot.pause()
+        assert isinstance(app.screen, MainScreen) and app.is_running
+        assert app.return_code is None and app.screen.document.modified
+
+        await pilot.press("ctrl+q")
+        await pilot.pause()
+        assert isinstance(app.screen, Ask)
+        await pilot.click("#discard")
+        await pilot.pause()
+    assert app.return_code == 0
+    assert path.read_bytes() == original             # "Don't save" wrote nothing
+
+
+async def test_recovery_offered_after_crash(room_file, catalog, engine, screen_tables):
+    path = room_file("classroom.toml")
+    # What a crashed session left: the ceiling changed, in a recovery file newer than the room.
+    crashed = Document.open(path)
+    crashed.spec.surfaces[_index(crashed, "Ceiling")].material = "mineral-wool-50mm-48kg"
+    rec = crashed.write_recovery()
+    assert rec == recovery_path(path)
+    old = rec.stat().st_mtime - 60
+    os.utime(path, (old, old))
+    assert find_recovery(path) == rec
+    as_file = spec_to_toml(Document.open(path).spec)
+
+    app = _app(path, catalog, offer_recovery=True)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.pause()
+        assert isinstance(app.screen, Ask)
+        assert str(path) in screen_tables.text(app, ".question")
+        assert {str(b.label) for b in app.screen.query("Button")} == \
+            {"Restore", "Discard them", "Not now"}
+        await pilot.click("#restore")
+        await pilot.pause()
+        assert isinstance(app.screen, MainScreen)
+        doc = app.screen.document
+        assert spec_to_toml(doc.spec) == spec_to_toml(crashed.spec) != as_file
+        assert doc.modified
+        _assert_reverb_matches(screen_tables.reverb(app), engine.result(crashed.spec), engine)
+        await pilot.press("ctrl+z")              # one undo step takes it back
+        await pilot.pause()
+        assert spec_to_toml(doc.spec) == as_file
+
+
+async def test_app_writes_its_recovery_file(room_file, catalog):
+    """After an edit the app keeps the unsaved room in a recovery file newer than the room
+    (what a later start offers); quitting with "Don't save" removes it."""
+    path = room_file("classroom.toml")
+    old = path.stat().st_mtime - 60
+    os.utime(path, (old, old))
+    app = _app(path, catalog, recovery_delay_s=0.05)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.pause()
+        await pilot.press("a")
+        await pilot.pause()
+        edited = spec_to_toml(app.screen.document.spec)
+        for _ in range(100):                 # written a moment later, by a worker thread
+            await pilot.pause(0.05)
+            await app.workers.wait_for_complete()
+            if recovery_path(path).exists():
+                break
+        assert find_recovery(path) == recovery_path(path)
+        assert spec_to_toml(Document.open(recovery_path(path)).spec) == edited
+        await pilot.press("ctrl+q")
+        await pilot.pause()
+        await pilot.click("#discard")
+        await pilot.pause()
+    assert app.return_code == 0
+    assert not recovery_path(path).exists()
+
+
+async def test_imperial_room_opens_unchanged(room_file, catalog, engine, screen_tables,
+                                             tmp_path):
+    """An imperial room stays imperial and unmodified when opened (it used to be converted
+    to metric by the units field's first Changed message), and shows feet."""
+    spec = parse_spec(room_file("classroom.toml").read_text(encoding="utf-8"))
+    convert_units(spec, "imperial")
+    path = tmp_path / "imperial.toml"
+    path.write_text(spec_to_toml(spec), encoding="utf-8")
+    original = path.read_bytes()
+    app = _app(path, catalog)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.pause()
+        doc = app.screen.document
+        assert doc.spec.units == "imperial" and not doc.modified and not doc.undo_stack
+        res = engine.result(doc.spec)
+        reverb = screen_tables.reverb(app)
+        _assert_reverb_matches(reverb, res, engine)
+        # The room constant in ft^2: 1 ft = 0.3048 m exactly (international foot).
+        assert reverb["rows"]["R [ft^2]"][500] == f"{res.room_constant_m2[2] / 0.3048 ** 2:.1f}"
+        await pilot.press("ctrl+q")
+        await pilot.pause()
+        assert not isinstance(app.screen, Ask)
+    assert app.return_code == 0 and path.read_bytes() == original
+
+
+async def test_quit_right_after_an_edit(room_file, catalog):
+    """Quitting with "Don't save" before the recovery file is due leaves no recovery file,
+    and the recovery timer firing while the app closes does not fail."""
+    path = room_file("classroom.toml")
+    app = _app(path, catalog, recovery_delay_s=0.5)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.pause()
+        await pilot.press("a", "ctrl+q")
+        await pilot.pause()
+        await pilot.click("#discard")
+        await pilot.pause()
+    assert app.return_code == 0
+    app._write_recovery()          # what the timer would run if it fired during the close
+    assert not recovery_path(path).exists()

@@ -1,0 +1,103 @@
+"""Smoke test in a real terminal: ``roomcalc open`` on the workshop example inside a detached
+tmux session (its own socket, 120x40), read back with capture-pane, quit with Ctrl+Q.
+
+Skipped only when tmux is not installed.
+"""
+
+from __future__ import annotations
+
+import os
+import re
+import shlex
+import shutil
+import subprocess
+import sys
+import time
+import uuid
+from pathlib import Path
+
+import pytest
+
+from roomcalc.engine.analysis import METHOD_TITLES, evaluate
+from roomcalc.io.roomfile import read_room
+
+EXAMPLES = Path(__file__).resolve().parents[2] / "example_rooms"
+TMUX = shutil.which("tmux")
+NUMBER = re.compile(r"-?\d+\.\d+")
+
+
+def _command() -> list[str]:
+    exe = Path(sys.executable).with_name("roomcalc")
+    if exe.exists():
+        return [str(exe)]
+    found = shutil.which("roomcalc")
+    return [found] if found else [sys.executable, "-m", "roomcalc"]
+
+
+def _row(screen: str, label: str) -> list[str]:
+    """The numbers on the line of the reverberation table that starts with ``label``."""
+    for line in screen.splitlines():
+        right = line.split("│")[-1] if "│" in line else line
+        if right.strip().lstrip("> ").startswith(label):
+            return NUMBER.findall(right[right.index(label) + len(label):])
+    return []
+
+
+@pytest.mark.skipif(TMUX is None, reason="tmux is not installed")
+def test_roomcalc_open_in_a_real_terminal(tmp_path, catalog):
+    room = tmp_path / "workshop.toml"
+    shutil.copyfile(EXAMPLES / "workshop.toml", room)
+    data = tmp_path / "data"
+    exit_file = tmp_path / "exit.txt"
+    _, r = read_room(room, catalog)
+    res = evaluate(r)
+
+    sock = f"roomcalc-test-{uuid.uuid4().hex[:12]}"
+    tmux = [TMUX, "-L", sock, "-f", os.devnull]
+    # COLUMNS and LINES can reach the pane from tmux (80x24 when it was started without a
+    # terminal); they would override the pane's real size.
+    inner = (f"env -u COLUMNS -u LINES ROOMCALC_DATA_DIR={shlex.quote(str(data))} "
+             f"{' '.join(shlex.quote(c) for c in _command())} open {shlex.quote(str(room))}; "
+             f"echo EXIT=$? > {shlex.quote(str(exit_file))}")
+
+    def capture() -> str:
+        return subprocess.run(tmux + ["capture-pane", "-p", "-t", "rc"], capture_output=True,
+                              text=True, timeout=10).stdout
+
+    # remain-on-exit: the pane stays after the program ends, to look for a traceback.
+    subprocess.run(tmux + ["new-session", "-d", "-s", "rc", "-x", "120", "-y", "40",
+                           "sh", "-c", inner, ";", "set-option", "-t", "rc",
+                           "remain-on-exit", "on"], check=True, timeout=10, cwd=tmp_path,
+                   stdin=subprocess.DEVNULL)
+    try:
+        screen, deadline = "", time.monotonic() + 15
+        last = res.sources[-1].name
+        while time.monotonic() < deadline:
+            screen = capture()
+            if f"r_c {last}" in screen and "Sabine" in screen:
+                break
+            time.sleep(0.3)
+        assert f"r_c {last}" in screen, screen
+
+        # RT by Sabine at every band, and the critical distance of each source, as the engine
+        # computes them from the same file.
+        want = [f"{float(x):.2f}" for x in res.rt60_s["sabine"]]
+        assert _row(screen, METHOD_TITLES["sabine"]) == want, screen
+        for s in res.sources:
+            label = f"r_c {s.name if len(s.name) <= 12 else s.name[:11] + '~'} [m]"
+            assert _row(screen, label) == [f"{float(x):.2f}" for x in s.critical_distance_m], \
+                screen
+        # A loud workshop: the hearing caution is on the screen.
+        assert "CAUTION" in screen and "hearing" in screen
+
+        subprocess.run(tmux + ["send-keys", "-t", "rc", "C-q"], check=True, timeout=10)
+        deadline = time.monotonic() + 10
+        while time.monotonic() < deadline and not exit_file.exists():
+            time.sleep(0.2)
+        assert exit_file.exists(), capture()
+        assert exit_file.read_text().strip() == "EXIT=0"
+        after = capture()
+        assert "Traceback" not in after and "Error" not in after, after
+        assert not (data / "recovery").exists() or not any((data / "recovery").iterdir())
+    finally:
+        subprocess.run(tmux + ["kill-server"], capture_output=True, timeout=10)
