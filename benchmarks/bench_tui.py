@@ -118,6 +118,16 @@ def startup(path: Path, runs: int = 5):
     return statistics.median(out) if out else None
 
 
+def bare_textual(runs: int = 5) -> float:
+    """Median wall time of ``python -c "import textual.app"``: the floor under any start-up."""
+    out = []
+    for _ in range(runs):
+        t0 = time.perf_counter()
+        subprocess.run([sys.executable, "-c", "import textual.app"], check=True)
+        out.append(time.perf_counter() - t0)
+    return statistics.median(out)
+
+
 def main() -> int:
     with tempfile.TemporaryDirectory() as tmp:
         tmp = Path(tmp)
@@ -131,6 +141,7 @@ def main() -> int:
             t, e, idle = asyncio.run(edit_latency(Document.open(path), row=row))
             rows.append((label, t, e, idle))
         t_start = startup(demo)
+        t_bare = bare_textual()
         print("edit -> screen updated (median of 50 edits, headless 120 x 40)")
         print(f"{'room':36} {'edit':>9} {'no-edit key':>12} {'check+engine':>13} {'share':>6}"
               "  target")
@@ -147,6 +158,8 @@ def main() -> int:
             print(f"start-up of 'roomcalc open' to the first full screen (median of 5): "
                   f"{t_start * 1e3:.0f} ms  target < 1000 ms  "
                   f"{'met' if t_start < 1.0 else 'NOT met'}")
+            print(f"  for scale: python -c 'import textual.app' alone takes {t_bare * 1e3:.0f} ms "
+                  f"(ratio {t_start / t_bare:.2f})")
     return 0
 
 

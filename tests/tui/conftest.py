@@ -21,7 +21,6 @@ from roomcalc.io.errors import RoomFileError
 from roomcalc.io.roomfile import check_room, read_room, spec_to_toml
 
 EXAMPLES = Path(__file__).resolve().parents[2] / "example_rooms"
-SIZE = (120, 40)
 
 
 @pytest.hookimpl(tryfirst=True)
