@@ -15,7 +15,6 @@ from roomcalc.io.catalog import Catalog
 from roomcalc.io.errors import RoomFileError
 from roomcalc.tui.document import Document, discard_recovery, find_recovery
 from roomcalc.tui.screens.dialogs import Ask, AskBox, AskText
-from roomcalc.tui.screens.help import HelpScreen
 from roomcalc.tui.screens.main import MainScreen
 
 RECOVERY_DELAY_S = 1.0
@@ -91,6 +90,8 @@ class RoomApp(App):
             yield SystemCommand(title, help_, cb)
 
     def action_show_help_screen(self) -> None:
+        from roomcalc.tui.screens.help import HelpScreen   # Markdown is slow to import
+
         self.push_screen(HelpScreen())
 
     # ------------------------------------------------------------------ files
