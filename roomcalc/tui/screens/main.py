@@ -11,6 +11,8 @@ from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical
 from textual.reactive import reactive
+from textual.css.query import NoMatches
+from textual.lazy import Lazy
 from textual.screen import Screen
 from textual.widgets import Footer, Header, Select, Static, TabbedContent, TabPane
 
@@ -79,31 +81,38 @@ class MainScreen(Screen):
         with Horizontal(id="body"):
             with Vertical(id="left"):
                 with TabbedContent(id="edit", initial="surfaces"):
+                    # Hidden tabs are mounted just after the first screen is drawn (Lazy), so
+                    # the room appears sooner; each is filled when it is first shown.
                     with TabPane("1 Room", id="room"):
-                        yield RoomForm(id="room-form")
+                        yield Lazy(RoomForm(id="room-form"))
                     for coll in EDIT_TABS[1:]:
                         with TabPane(f"{EDIT_TABS.index(coll) + 1} {coll.capitalize()}",
                                      id=coll):
-                            yield RecordTable(coll, self._columns(coll), help_text=ROW_HELP,
-                                              describe=self._describe, id=f"t-{coll}")
+                            table = RecordTable(coll, self._columns(coll), help_text=ROW_HELP,
+                                                describe=self._describe, id=f"t-{coll}")
+                            yield table if coll == "surfaces" else Lazy(table)
             with Vertical(id="right"):
                 with TabbedContent(id="view"):
                     with TabPane("Reverberation", id="v-reverb"):
                         yield ReverbTable(id="reverb-table")
                         yield RtPlot(id="rt-plot")
                     with TabPane("Level vs distance", id="v-distance"):
-                        with Horizontal(id="distance-controls"):
-                            yield Select([], prompt="source", id="dist-source",
-                                         allow_blank=True)
-                            yield Select([], prompt="band", id="dist-band", allow_blank=True)
-                        yield DistancePlot(id="distance-plot")
+                        yield Lazy(Vertical(
+                            Horizontal(Select([], prompt="source", id="dist-source",
+                                              allow_blank=True),
+                                       Select([], prompt="band", id="dist-band",
+                                              allow_blank=True),
+                                       id="distance-controls"),
+                            DistancePlot(id="distance-plot"), classes="pane-body"))
                     with TabPane("Receivers", id="v-receivers"):
-                        yield ReceiverTable(id="receiver-table")
-                        yield Static("", id="receiver-note")
+                        yield Lazy(Vertical(ReceiverTable(id="receiver-table"),
+                                            Static("", id="receiver-note"),
+                                            classes="pane-body"))
                     with TabPane("Before/after", id="v-compare"):
-                        yield Static("", id="compare-head")
-                        yield CompareTable(id="compare-table")
-                        yield Static("", id="compare-notes", markup=False)
+                        yield Lazy(Vertical(Static("", id="compare-head"),
+                                            CompareTable(id="compare-table"),
+                                            Static("", id="compare-notes", markup=False),
+                                            classes="pane-body"))
         yield FindingsStrip(id="findings")
         yield Footer()
 
@@ -224,15 +233,20 @@ class MainScreen(Screen):
         for coll in EDIT_TABS[1:]:
             if not every and coll != active:
                 continue
+            t = self._opt(f"#t-{coll}", RecordTable)
+            if t is None:
+                continue
             self._tables_dirty.discard(coll)
-            t = self.query_one(f"#t-{coll}", RecordTable)
             for c in t.columns:
                 if c.kind == "numbers":
                     c.length = nb
             t.set_records(self.document.items(coll))
 
     def _refresh_all(self) -> None:
-        self.query_one(RoomForm).show(self.document.spec)
+        form = self._opt("#room-form", RoomForm)
+        self._form_dirty = form is None
+        if form is not None:
+            form.show(self.document.spec)
         self._refresh_tables()
         self._title()
 
@@ -296,6 +310,8 @@ class MainScreen(Screen):
         res = self.result
         if res is None or pane not in getattr(self, "_views_dirty", ()):
             return
+        if pane != "v-reverb" and self._opt(f"#{pane} .pane-body") is None:
+            return          # not mounted yet: drawn when it is
         self._views_dirty.discard(pane)
         if pane == "v-reverb":
             self.query_one(ReverbTable).show(res, self.document.spec.unit_system)
@@ -315,13 +331,26 @@ class MainScreen(Screen):
         pane = event.pane.id if event.pane is not None else None
         if event.tabbed_content.id == "view":
             self._show_view(pane)
-        elif event.tabbed_content.id == "edit" and pane in getattr(self, "_tables_dirty", ()):
-            self._refresh_tables()
+        elif event.tabbed_content.id == "edit":
+            if pane in getattr(self, "_tables_dirty", ()):
+                self._refresh_tables()
+                self._show_table_problems()
+            if pane == "room" and getattr(self, "_form_dirty", False):
+                self._refresh_all()
+
+    def _opt(self, selector: str, kind=None):
+        """The widget, or None while its tab is not mounted yet."""
+        try:
+            return self.query_one(selector, kind) if kind else self.query_one(selector)
+        except NoMatches:
+            return None
 
     def _show_table_problems(self) -> None:
         for coll in EDIT_TABS[1:]:
             mine = [p for p in self.problems if p.startswith(coll + "[")]
-            self.query_one(f"#t-{coll}", RecordTable).show_problems(mine)
+            t = self._opt(f"#t-{coll}", RecordTable)
+            if t is not None:
+                t.show_problems(mine)
 
     # ------------------------------------------------------------------ level vs distance
     def _fill_distance_controls(self, res: RoomResult) -> None:

@@ -189,6 +189,7 @@ class RecordTable(Vertical):
                 for j, cell in enumerate(cells):
                     if str(table.get_cell_at(Coordinate(i, j))) != cell.plain:
                         table.update_cell_at(Coordinate(i, j), cell, update_width=True)
+            table.check_idle()      # re-measure the columns now, not at its next message
         else:
             table.clear()
             for i, cells in enumerate(rows):
