@@ -30,6 +30,11 @@ async def _settle(pilot):
     await pilot.pause(0.2)
     for inp in pilot.app.screen.query(Input):
         inp.cursor_blink = False
+    # A table that re-measured its columns (a cell got shorter) can still be drawn with the
+    # old widths until something else repaints it: repaint them all now.
+    for table in pilot.app.screen.query(DataTable):
+        table.refresh(layout=True)
+    await pilot.pause()
     pilot.app.clear_notifications()
     await pilot.wait_for_scheduled_animations()
     await pilot.pause()
@@ -103,6 +108,10 @@ def test_compare_view(snap_compare, catalog, engine):
         assert screen.query_one("#view").active == "v-compare"
         table = screen.query_one("#compare-table", DataTable)
         rows = [[str(c) for c in table.get_row_at(i)] for i in range(table.row_count)]
+        # Every column is as wide as its longest cell: no number is cut off ("-0.0" for -0.02).
+        for key, column in table.columns.items():
+            longest = max(len(str(c)) for c in [column.label, *table.get_column(key)])
+            assert column.content_width >= longest, (str(column.label), column.content_width)
         method = comparison_method(compare(before, after))
         col = 1 + list(before.bands_hz).index(500)
         assert rows[0][0] == f"RT60 {engine.titles[method]} before [s]"

@@ -121,7 +121,7 @@ class MainScreen(Screen):
         if coll == "surfaces":
             return [Column("name", "Name", optional=False),
                     Column("face", "Face", "choice", choices=FACES, hint=", ".join(FACES)),
-                    Column("area", "Area", "number", show=self._show_area,
+                    Column("area", "Area", "number", show=self._show_area, width=8,
                            hint="empty: the rest of its face"),
                     Column("count", "n", "int", optional=False, hint="identical surfaces"),
                     Column("material", "Material", "material", show=self._show_material),

@@ -26,12 +26,13 @@ def sync_rows(table: DataTable, rows: list[list], labels: list[str] | None = Non
     for i in range(n_common):
         for j, (a, b) in enumerate(zip(old[i], rows[i])):
             if _plain(a) != _plain(b) or getattr(a, "style", None) != getattr(b, "style", None):
-                table.update_cell(str(i), columns[j], b)
+                table.update_cell(str(i), columns[j], b, update_width=True)   # else cut off
     for i in range(len(old) - 1, n_common - 1, -1):
         table.remove_row(str(i))
     for i in range(n_common, len(rows)):
         table.add_row(*rows[i], key=str(i), label=labels[i] if labels else None)
     table._synced_rows = [list(r) for r in rows]
+    table.check_idle()          # re-measure the columns now, not at the table's next message
 
 
 def forget(table: DataTable) -> None:
