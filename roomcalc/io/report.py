@@ -278,7 +278,8 @@ def _compare_tables(cmp: Comparison):
     rt.add("before", b.rt60_s[k])
     rt.add("after", a.rt60_s[k])
     rt.add("change", a.rt60_s[k] - b.rt60_s[k])
-    rt.add("reverberant field [dB]", cmp.reverberant_reduction_db, 1)
+    # A change like the rows around it (negative = quieter): -10 lg(R2/R1); +0.0 avoids "-0.0".
+    rt.add("reverb. field change [dB]", -cmp.reverberant_reduction_db + 0.0, 1)
     lv = None
     if cmp.receivers:
         before = {r.name: r for r in b.receivers}

@@ -327,7 +327,8 @@ async def test_imperial_room_opens_unchanged(room_file, catalog, engine, screen_
         res = engine.result(doc.spec)
         reverb = screen_tables.reverb(app)
         _assert_reverb_matches(reverb, res, engine)
-        # The room constant in ft^2: 1 ft = 0.3048 m exactly (international foot).
+        # The room constant in ft^2. Source: international yard and pound agreement (1959),
+        # 1 ft = 0.3048 m exactly.
         assert reverb["rows"]["R [ft^2]"][500] == f"{res.room_constant_m2[2] / 0.3048 ** 2:.1f}"
         await pilot.press("ctrl+q")
         await pilot.pause()

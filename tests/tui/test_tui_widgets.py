@@ -6,6 +6,7 @@ from __future__ import annotations
 from pathlib import Path
 
 from textual.app import App
+from textual.coordinate import Coordinate
 from textual.widgets import DataTable
 
 from roomcalc.io.roomfile import SurfaceSpec, parse_spec
@@ -82,9 +83,9 @@ async def test_record_table_sends_parsed_values():
         await pilot.pause()
         editor = rt.query_one("#editor")
         assert rt.has_class("editing") and editor.has_focus and editor.value == "20"
-        await pilot.press("ctrl+u", *"12.5", "enter")
+        await pilot.press("ctrl+u", *"9.5", "enter")
         await pilot.pause()
-        assert _edits(got) == [("surfaces", 0, "area", 12.5)]
+        assert _edits(got) == [("surfaces", 0, "area", 9.5)]
         assert isinstance(_edits(got)[0][3], float)
         assert not rt.has_class("editing") and table.has_focus
 
@@ -106,13 +107,13 @@ async def test_record_table_sends_parsed_values():
 
         # A list per band: the wrong count is refused, commas or spaces both work.
         got.clear()
-        await _edit(pilot, rt, 0, ALPHA, "0.1 0.2")
+        await _edit(pilot, rt, 0, ALPHA, "1 2")
         assert _edits(got) == []
         assert f"2 values given; {len(BANDS)} are needed" in \
             str(rt.query_one("#editor-error").render())
-        await pilot.press(*",.3 .4,.5 .6", "enter")      # appended to "0.1 0.2"
+        await pilot.press(*",3 4,5 6", "enter")          # appended to "1 2"
         await pilot.pause()
-        assert _edits(got) == [("surfaces", 0, "alpha", [0.1, 0.2, 0.3, 0.4, 0.5, 0.6])]
+        assert _edits(got) == [("surfaces", 0, "alpha", [1.0, 2.0, 3.0, 4.0, 5.0, 6.0])]
 
         # Enter on the material cell asks for the chooser instead of editing.
         table.move_cursor(row=1, column=MATERIAL, animate=False)
@@ -163,6 +164,34 @@ async def test_record_table_row_actions():
         await pilot.press("a")
         await pilot.pause()
         assert [(m.action, m.index) for m in got if isinstance(m, RowAction)] == [("add", None)]
+
+
+async def test_record_table_updates_cells_in_place():
+    """New values for the same rows change the cells in place: row numbers stay and each
+    column is re-measured, growing and shrinking with its longest cell."""
+    app = TableApp()
+    async with app.run_test(size=SIZE) as pilot:
+        rt = app.query_one(RecordTable)
+        records = _records()
+        rt.set_records(records)
+        await pilot.pause()
+        table = rt.query_one("#table", DataTable)
+        records[0].name = "A much longer name for the floor"
+        records[1].area = 12345.5
+        rt.set_records(records)
+        await pilot.pause()
+        assert [str(c) for c in table.get_column("name")] == [r.name for r in records]
+        assert str(table.get_cell_at(Coordinate(1, AREA))) == "12345.5"
+        assert [str(row.label) for row in table.rows.values()] == ["1", "2"]
+        assert table.columns["name"].content_width == len(records[0].name)
+        records[0].name = "Floor"
+        rt.set_records(records)
+        await pilot.pause()
+        assert table.columns["name"].content_width == len("Panel [/x]")
+        # A row fewer: rebuilt, numbered again.
+        rt.set_records(records[1:])
+        await pilot.pause()
+        assert table.row_count == 1 and [str(r.label) for r in table.rows.values()] == ["1"]
 
 
 class ChooserApp(App):
