@@ -101,12 +101,3 @@ class Room:
     @property
     def surface_area(self) -> float:
         return float(sum(s.total_area for s in self.surfaces))
-
-    def distance(self, receiver: Receiver, source: Source) -> float:
-        """Distance from a source to a receiver [m]: given, or from the two positions."""
-        if source.name in receiver.distances:
-            return float(receiver.distances[source.name])
-        if receiver.position is None or source.position is None:
-            raise ValueError(f"receiver {receiver.name!r}: no distance to source {source.name!r} "
-                             "and no positions to compute it from")
-        return float(np.linalg.norm(np.subtract(receiver.position, source.position)))

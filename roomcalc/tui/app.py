@@ -252,11 +252,8 @@ class RoomApp(App):
         if not doc.modified:
             discard_recovery(doc.path)
             return
-        text_doc = Document(spec=doc.spec, path=doc.path)
-        import copy
-
-        text_doc.spec = copy.deepcopy(doc.spec)
-        self.run_worker(lambda: text_doc.write_recovery(), thread=True, exclusive=True,
+        text = doc.text          # made here, so the thread only writes it
+        self.run_worker(lambda: doc.write_recovery(text), thread=True, exclusive=True,
                         group="recovery", exit_on_error=False)
 
 

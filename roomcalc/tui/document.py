@@ -114,20 +114,6 @@ class Document:
     def items(self, collection: str) -> list:
         return getattr(self.spec, collection)
 
-    def set_value(self, collection: str, index: int, key: str, value) -> None:
-        item_name = getattr(self.items(collection)[index], "name", "")
-
-        def fn(spec):
-            setattr(getattr(spec, collection)[index], key, value)
-        self.change(fn, f"{collection[:-1]} '{item_name}': {key}")
-
-    def set_values(self, collection: str, index: int, values: dict, label: str) -> None:
-        def fn(spec):
-            item = getattr(spec, collection)[index]
-            for k, v in values.items():
-                setattr(item, k, v)
-        self.change(fn, label)
-
     def add(self, collection: str, index: int | None = None) -> int:
         items = self.items(collection)
         names = {getattr(x, "name", "") for x in items}
@@ -209,10 +195,12 @@ class Document:
         return cls(spec=spec, path=Path(path) if path else None)
 
     # ------------------------------------------------------------------ recovery
-    def write_recovery(self) -> Path:
+    def write_recovery(self, text: str | None = None) -> Path:
+        """Keep unsaved changes beside the user's data (``text``: the room's text, if already
+        made, so a background thread need not touch the spec)."""
         p = recovery_path(self.path)
         p.parent.mkdir(parents=True, exist_ok=True)
-        write_text_atomic(p, self.text)
+        write_text_atomic(p, self.text if text is None else text)
         return p
 
 

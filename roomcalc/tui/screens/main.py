@@ -74,6 +74,12 @@ class MainScreen(Screen):
         self.pinned: RoomResult | None = None
         self.reverberant_model = "classic"
         self.last_update_s = 0.0       # engine + check time of the last recompute [s]
+        self._unparsed: dict[str, str] = {}    # room-form fields holding text, not a number
+        self._needs_form_refresh = False       # the next change rewrites the room form too
+        self._form_dirty = False               # the room form waits for its tab to be shown
+        self._tables_dirty: set[str] = set()   # tables waiting for their tab to be shown
+        self._views_dirty: set[str] = set()    # result tabs waiting to be shown
+        self._controls_key = None              # sources and bands the distance selects show
 
     # ------------------------------------------------------------------ layout
     def compose(self) -> ComposeResult:
@@ -265,7 +271,7 @@ class MainScreen(Screen):
         problem the last valid result stays, marked stale."""
         t0 = time.perf_counter()
         doc = self.document
-        unparsed = getattr(self, "_unparsed", {})
+        unparsed = self._unparsed
         try:
             room = check_room(doc.spec, self.catalog, doc.name)
             result = evaluate(room, reverberant_model=self.reverberant_model)
@@ -308,7 +314,7 @@ class MainScreen(Screen):
     def _show_view(self, pane: str) -> None:
         """Draw one result tab (only the visible one is drawn after an edit)."""
         res = self.result
-        if res is None or pane not in getattr(self, "_views_dirty", ()):
+        if res is None or pane not in self._views_dirty:
             return
         if pane != "v-reverb" and self._opt(f"#{pane} .pane-body") is None:
             return          # not mounted yet: drawn when it is
@@ -332,10 +338,10 @@ class MainScreen(Screen):
         if event.tabbed_content.id == "view":
             self._show_view(pane)
         elif event.tabbed_content.id == "edit":
-            if pane in getattr(self, "_tables_dirty", ()):
+            if pane in self._tables_dirty:
                 self._refresh_tables()
                 self._show_table_problems()
-            if pane == "room" and getattr(self, "_form_dirty", False):
+            if pane == "room" and self._form_dirty:
                 self._refresh_all()
 
     def _opt(self, selector: str, kind=None):
@@ -358,7 +364,7 @@ class MainScreen(Screen):
         band = self.query_one("#dist-band", Select)
         names = [s.name for s in res.sources]
         key = (tuple(names), res.bands_hz)
-        if getattr(self, "_controls_key", None) == key:
+        if self._controls_key == key:
             return
         self._controls_key = key
         with self.prevent(Select.Changed):
@@ -438,8 +444,6 @@ class MainScreen(Screen):
         self.recompute()
         self.app.schedule_recovery()
 
-    _needs_form_refresh = False
-
     def on_field_edited(self, msg: FieldEdited) -> None:
         msg.stop()
         if msg.collection == "room":
@@ -482,7 +486,7 @@ class MainScreen(Screen):
         self.apply(fn, f"{coll[:-1]} '{rec.name}': {key}")
 
     def _edit_room(self, key: str, value) -> None:
-        unparsed = self.__dict__.setdefault("_unparsed", {})
+        unparsed = self._unparsed
         if isinstance(value, Unparsed):
             unparsed[key] = str(value)
             self.recompute()
@@ -498,7 +502,6 @@ class MainScreen(Screen):
             return
         if key == "bands_hz":
             bands = None if value == [125, 250, 500, 1000, 2000, 4000] else value
-            self._needs_form_refresh = False
 
             def fn(spec):
                 old = list(spec.bands)
@@ -626,7 +629,7 @@ class MainScreen(Screen):
     def replace_document(self, doc: Document) -> None:
         self.document = doc
         self.pinned = None
-        self.__dict__["_unparsed"] = {}
+        self._unparsed = {}
         self._refresh_all()
         self.recompute()
 
