@@ -30,6 +30,19 @@ _A_WEIGHT_TABLE_DB = {
 
 def _index_of(nominal_hz: np.ndarray) -> np.ndarray:
     nominal = np.asarray(nominal_hz, dtype=float)
+    if nominal.ndim == 1:       # the usual case, asked once per source and receiver: kept
+        return _index_of_bands(tuple(nominal.tolist()))
+    return _index_of_any(nominal)
+
+
+@lru_cache(maxsize=64)
+def _index_of_bands(nominal: tuple[float, ...]) -> np.ndarray:
+    idx = _index_of_any(np.asarray(nominal, dtype=float))
+    idx.setflags(write=False)
+    return idx
+
+
+def _index_of_any(nominal: np.ndarray) -> np.ndarray:
     table = np.asarray(NOMINAL_OCTAVES_HZ, dtype=float)
     idx = np.argmin(np.abs(np.log(nominal[..., None] / table)), axis=-1)
     if not np.allclose(table[idx], nominal, rtol=1e-6):

@@ -11,7 +11,6 @@ import math
 from dataclasses import dataclass, field
 from pathlib import Path
 
-import numpy as np
 import tomli_w
 
 from roomcalc.engine.bands import ALLOWED_BANDS_HZ, DEFAULT_BANDS_HZ
@@ -463,7 +462,7 @@ def resolve(spec: RoomSpec, catalog: Catalog, filename: str = "<room>") -> Room:
         receivers.append(Receiver(r.name, pos, {k: v * u.length for k, v in r.distances.items()}))
         for s in sources:  # the engine needs a distance above 0 (its own norm, in SI)
             if s.name not in r.distances and pos is not None and s.position is not None and \
-                    not float(np.linalg.norm(np.subtract(pos, s.position))) > 0:
+                    not math.dist(pos, s.position) > 0:
                 chk.add(f"receivers[{i}].position", f"{r.position} is where source "
                         f"'{s.name}' is; a receiver must be some distance from each source")
     if chk.problems:

@@ -5,6 +5,7 @@
 
 from __future__ import annotations
 
+import gc
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -18,6 +19,7 @@ from roomcalc.tui.screens.dialogs import Ask, AskBox, AskText
 from roomcalc.tui.screens.main import MainScreen
 
 RECOVERY_DELAY_S = 1.0
+SETTLE_DELAY_S = 1.0      # after start-up, the objects made so far leave the garbage collector
 
 
 @dataclass
@@ -43,20 +45,39 @@ class RoomApp(App):
         self.catalog = catalog
         self.config = config or AppConfig()
         self._recovery_timer = None
+        self.settled = False
         if self.config.theme:
             self.theme = self.config.theme
 
     @property
     def main(self) -> MainScreen:
-        return self.get_screen("main") if "main" in self._installed_screens else self.screen
+        return self._main
+
+    def get_default_screen(self) -> MainScreen:
+        # The editor is the bottom screen itself: no blank screen is drawn before it.
+        self._main = MainScreen(self.document, self.catalog)
+        return self._main
 
     def on_mount(self) -> None:
-        self.install_screen(MainScreen(self.document, self.catalog), "main")
-        self.push_screen("main")
+        self.set_timer(SETTLE_DELAY_S, self._settle)
         if self.config.offer_recovery:
             self._offer_recovery(self.document)
         if self.config.ask_box_size:
             self._ask_size()
+
+    def _settle(self) -> None:
+        """Move everything made at start-up (widgets, styles, the catalogue) out of the
+        collector's view. Those objects live as long as the app, yet Python's full collections
+        walk them all: about 100,000 objects, some 100 ms, every few edits, which is a
+        pause a user sees. New objects (results, edits) are collected as usual."""
+        gc.enable()             # the command line switches it off for the start-up
+        gc.collect()
+        gc.freeze()
+        self.settled = True
+
+    def on_unmount(self) -> None:
+        if self.settled:
+            gc.unfreeze()        # an app run inside another program (the tests) gives them back
 
     def _ask_size(self) -> None:
         doc = self.document

@@ -82,13 +82,13 @@ def _cells(table, row: int) -> list[str]:
 @pytest.fixture
 def screen_tables():
     """Readers of what the screen shows."""
-    from textual.widgets import DataTable
+    from roomcalc.tui.widgets.grid import CellGrid
 
     def reverb(app) -> dict:
         """The reverberation table: {"recommended": (title, {band: text}), "rows": {label:
         {band: text}}, "headings": [...]}."""
-        t = app.screen.query_one("#reverb-table", DataTable)
-        keys = [str(k.value) for k in t.columns]
+        t = app.screen.query_one("#reverb-table", CellGrid)
+        keys = list(t.columns)
         rows, rec = {}, None
         for i in range(t.row_count):
             cells = _cells(t, i)
@@ -102,13 +102,14 @@ def screen_tables():
                 "headings": [str(c.label) for c in t.columns.values()]}
 
     def records(app, coll: str) -> list[list[str]]:
-        t = app.screen.query_one(f"#t-{coll} #table", DataTable)
+        t = app.screen.query_one(f"#t-{coll} #table", CellGrid)
         return [_cells(t, i) for i in range(t.row_count)]
 
     def text(app, selector: str) -> str:
         return str(app.screen.query_one(selector).render())
 
-    return SimpleNamespace(reverb=reverb, records=records, text=text, DataTable=DataTable)
+    return SimpleNamespace(reverb=reverb, records=records, text=text, CellGrid=CellGrid,
+                           title=lambda app: str(app.screen.query_one("#titlebar").content))
 
 
 @pytest.fixture

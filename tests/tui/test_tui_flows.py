@@ -76,7 +76,7 @@ async def test_material_change_through_chooser(room_file, catalog, engine, scree
         ceiling = _index(doc, "Ceiling")
         await pilot_keys.edit_cell(pilot, _surfaces(app), ceiling, MATERIAL_COL, None)
         assert isinstance(app.screen, MaterialChooser)
-        lst = app.screen.query_one("#list", screen_tables.DataTable)
+        lst = app.screen.query_one("#list", screen_tables.CellGrid)
         assert lst.row_count == len(catalog.ids("surface"))
         words = "cork"
         await pilot_keys.type_words(pilot, words)
@@ -86,7 +86,7 @@ async def test_material_change_through_chooser(room_file, catalog, engine, scree
         await pilot.pause()
         assert isinstance(app.screen, MainScreen)
         assert doc.spec.surfaces[ceiling].material == expected[0]
-        assert doc.modified and "(modified)" in app.sub_title
+        assert doc.modified and "(modified)" in screen_tables.title(app)
         assert screen_tables.records(app, "surfaces")[ceiling][MATERIAL_COL] == expected[0]
         res = engine.result(doc.spec)
         reverb = screen_tables.reverb(app)
@@ -102,7 +102,7 @@ async def test_material_change_through_chooser(room_file, catalog, engine, scree
         words = "vel"
         await pilot_keys.type_words(pilot, words)
         expected = [m.id for m in catalog.search(words, None, "surface")]
-        lst = app.screen.query_one("#list", screen_tables.DataTable)
+        lst = app.screen.query_one("#list", screen_tables.CellGrid)
         assert [str(lst.get_row_at(i)[0]) for i in range(lst.row_count)] == expected
         assert len(expected) > 1
         await pilot.press("enter")
@@ -137,7 +137,7 @@ async def test_add_undo_redo(room_file, catalog, engine, screen_tables, pilot_ke
         assert spec_to_toml(doc.spec) == original
         assert len(screen_tables.records(app, "surfaces")) == n
         assert screen_tables.reverb(app) == shown
-        assert not doc.modified and "(modified)" not in app.sub_title
+        assert not doc.modified and "(modified)" not in screen_tables.title(app)
 
         await pilot.press("ctrl+y")
         await pilot.pause()
@@ -244,10 +244,10 @@ async def test_save_reopen_and_quit(room_file, catalog, engine, screen_tables):
         await pilot.press("a", "c")
         await pilot.pause()
         assert doc.spec.surfaces[2].name == doc.spec.surfaces[1].name + " (2)"
-        assert doc.modified and "(modified)" in app.sub_title
+        assert doc.modified and "(modified)" in screen_tables.title(app)
         await pilot.press("ctrl+s")
         await pilot.pause()
-        assert not doc.modified and "(modified)" not in app.sub_title
+        assert not doc.modified and "(modified)" not in screen_tables.title(app)
         assert spec_to_toml(Document.open(path).spec) == spec_to_toml(doc.spec)
         # One more edit; quitting asks, and "Save" saves it and quits.
         await pilot.press("x")

@@ -10,12 +10,13 @@ from __future__ import annotations
 
 import math
 
-from textual.widgets import DataTable, Input
+from textual.widgets import Input
 
 from roomcalc.engine.analysis import compare
 from roomcalc.io.report import comparison_method
 from roomcalc.tui.app import AppConfig, make_app
 from roomcalc.tui.screens.materials import MaterialChooser
+from roomcalc.tui.widgets.grid import CellGrid
 
 SIZE = (120, 40)
 
@@ -32,7 +33,7 @@ async def _settle(pilot):
         inp.cursor_blink = False
     # A table that re-measured its columns (a cell got shorter) can still be drawn with the
     # old widths until something else repaints it: repaint them all now.
-    for table in pilot.app.screen.query(DataTable):
+    for table in pilot.app.screen.query(CellGrid):
         table.refresh(layout=True)
     await pilot.pause()
     pilot.app.clear_notifications()
@@ -106,7 +107,7 @@ def test_compare_view(snap_compare, catalog, engine):
         await pilot.press("f8")
         await pilot.pause()
         assert screen.query_one("#view").active == "v-compare"
-        table = screen.query_one("#compare-table", DataTable)
+        table = screen.query_one("#compare-table", CellGrid)
         rows = [[str(c) for c in table.get_row_at(i)] for i in range(table.row_count)]
         # Every column is as wide as its longest cell: no number is cut off ("-0.0" for -0.02).
         for key, column in table.columns.items():

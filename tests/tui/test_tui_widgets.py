@@ -7,7 +7,7 @@ from pathlib import Path
 
 from textual.app import App
 from textual.coordinate import Coordinate
-from textual.widgets import DataTable
+from roomcalc.tui.widgets.grid import CellGrid
 
 from roomcalc.io.roomfile import SurfaceSpec, parse_spec
 from roomcalc.tui.document import convert_units
@@ -50,7 +50,7 @@ def _collector():
 
 
 async def _edit(pilot, table, row, column, text):
-    table.query_one("#table", DataTable).move_cursor(row=row, column=column, animate=False)
+    table.query_one("#table", CellGrid).move_cursor(row=row, column=column, animate=False)
     await pilot.pause()
     await pilot.press("enter")
     await pilot.pause()
@@ -69,7 +69,7 @@ async def test_record_table_sends_parsed_values():
         rt = app.query_one(RecordTable)
         rt.set_records(_records())
         await pilot.pause()
-        table = rt.query_one("#table", DataTable)
+        table = rt.query_one("#table", CellGrid)
         assert table.row_count == 2
         # The cells as typed, a name with brackets too; headings with their units.
         assert [str(c) for c in table.get_row_at(1)] == ["Panel [/x]", "2.5", "3", "",
@@ -130,7 +130,7 @@ async def test_record_table_row_actions():
     async with app.run_test(size=SIZE, message_hook=hook) as pilot:
         rt = app.query_one(RecordTable)
         rt.set_records(_records())
-        table = rt.query_one("#table", DataTable)
+        table = rt.query_one("#table", CellGrid)
         table.focus()
         await pilot.pause()
         table.move_cursor(row=1, column=0, animate=False)
@@ -175,14 +175,14 @@ async def test_record_table_updates_cells_in_place():
         records = _records()
         rt.set_records(records)
         await pilot.pause()
-        table = rt.query_one("#table", DataTable)
+        table = rt.query_one("#table", CellGrid)
         records[0].name = "A much longer name for the floor"
         records[1].area = 12345.5
         rt.set_records(records)
         await pilot.pause()
         assert [str(c) for c in table.get_column("name")] == [r.name for r in records]
         assert str(table.get_cell_at(Coordinate(1, AREA))) == "12345.5"
-        assert [str(row.label) for row in table.rows.values()] == ["1", "2"]
+        assert table.row_labels == ["1", "2"]
         assert table.columns["name"].content_width == len(records[0].name)
         records[0].name = "Floor"
         rt.set_records(records)
@@ -191,7 +191,7 @@ async def test_record_table_updates_cells_in_place():
         # A row fewer: rebuilt, numbered again.
         rt.set_records(records[1:])
         await pilot.pause()
-        assert table.row_count == 1 and [str(r.label) for r in table.rows.values()] == ["1"]
+        assert table.row_count == 1 and table.row_labels == ["1"]
 
 
 class ChooserApp(App):
@@ -209,7 +209,7 @@ async def test_material_chooser_filters_and_picks(catalog):
     app = ChooserApp(catalog)
     async with app.run_test(size=SIZE) as pilot:
         await pilot.pause()
-        lst = app.screen.query_one("#list", DataTable)
+        lst = app.screen.query_one("#list", CellGrid)
         surfaces = catalog.search("", None, "surface")
         assert lst.row_count == len(surfaces) > 20
         # Objects are not offered for a surface.
@@ -237,7 +237,7 @@ async def test_material_chooser_row_and_category(catalog):
     app = ChooserApp(catalog, current="heavy-velour-flat")
     async with app.run_test(size=SIZE) as pilot:
         await pilot.pause()
-        lst = app.screen.query_one("#list", DataTable)
+        lst = app.screen.query_one("#list", CellGrid)
         # The current material is highlighted.
         assert str(lst.get_row_at(lst.cursor_row)[0]) == "heavy-velour-flat"
         await pilot.press(*"vel")
@@ -253,7 +253,7 @@ async def test_material_chooser_row_and_category(catalog):
     app = ChooserApp(catalog, kind="object")
     async with app.run_test(size=SIZE) as pilot:
         await pilot.pause()
-        lst = app.screen.query_one("#list", DataTable)
+        lst = app.screen.query_one("#list", CellGrid)
         assert lst.row_count == len(catalog.ids("object"))
         category = sorted({catalog[i].category for i in catalog.ids("object")})[0]
         app.screen.query_one("#category").value = category

@@ -14,7 +14,7 @@ from textual.reactive import reactive
 from textual.css.query import NoMatches
 from textual.lazy import Lazy
 from textual.screen import Screen
-from textual.widgets import Footer, Header, Select, Static, TabbedContent, TabPane
+from textual.widgets import Select, Static, TabbedContent, TabPane
 
 from roomcalc.engine.analysis import RoomResult, compare, distance_curves, evaluate
 from roomcalc.engine.bands import a_weighted_total
@@ -27,6 +27,7 @@ from roomcalc.io.report import comparison_method
 from roomcalc.io.roomfile import check_room
 from roomcalc.tui.document import Document, convert_units
 from roomcalc.tui.messages import FieldEdited, MaterialWanted, RowAction
+from roomcalc.tui.widgets.keystrip import KeyStrip
 from roomcalc.tui.widgets.plots import DistancePlot, RtPlot
 from roomcalc.tui.widgets.record_table import Column, RecordTable
 from roomcalc.tui.widgets.results import CompareTable, FindingsStrip, ReceiverTable, ReverbTable
@@ -63,7 +64,9 @@ class MainScreen(Screen):
                 id="main.view.compare"),
     ]
 
-    result: reactive[RoomResult | None] = reactive(None, init=False)
+    # repaint=False: a reactive on the screen would otherwise repaint the whole screen on each
+    # change; the widgets that show the result refresh themselves.
+    result: reactive[RoomResult | None] = reactive(None, init=False, repaint=False)
 
     def __init__(self, document: Document, catalog: Catalog) -> None:
         super().__init__()
@@ -79,11 +82,14 @@ class MainScreen(Screen):
         self._form_dirty = False               # the room form waits for its tab to be shown
         self._tables_dirty: set[str] = set()   # tables waiting for their tab to be shown
         self._views_dirty: set[str] = set()    # result tabs waiting to be shown
+        self._surface_index: dict[int, int] = {}   # id(surface spec) -> its row
+        self._tables_drawn = False
+        self._catalog_values: dict[tuple, str] = {}   # (material id, bands) -> its alphas
         self._controls_key = None              # sources and bands the distance selects show
 
     # ------------------------------------------------------------------ layout
     def compose(self) -> ComposeResult:
-        yield Header()
+        yield Static("", id="titlebar", markup=False)
         with Horizontal(id="body"):
             with Vertical(id="left"):
                 with TabbedContent(id="edit", initial="surfaces"):
@@ -120,7 +126,7 @@ class MainScreen(Screen):
                                             Static("", id="compare-notes", markup=False),
                                             classes="pane-body"))
         yield FindingsStrip(id="findings")
-        yield Footer()
+        yield KeyStrip(id="keys")
 
     def _columns(self, coll: str) -> list[Column]:
         nb = len(self.document.spec.bands)
@@ -177,11 +183,19 @@ class MainScreen(Screen):
     def _values_of(self, rec, own):
         bands = self.document.spec.bands
         if rec.material:
-            m = self.catalog.get(rec.material) or next(
-                (x for x in self.document.spec.materials if x.id == rec.material), None)
+            key = (rec.material, bands)
+            text = self._catalog_values.get(key)
+            if text is not None:
+                return text
+            m = self.catalog.get(rec.material)
+            if m is None:
+                m = next((x for x in self.document.spec.materials if x.id == rec.material), None)
             if m is None:
                 return "unknown material"
-            return " ".join(f"{m.values[b]:.2f}" if b in m.values else "?" for b in bands)
+            text = " ".join(f"{m.values[b]:.2f}" if b in m.values else "?" for b in bands)
+            if self.catalog.get(rec.material) is m:       # the catalogue does not change
+                self._catalog_values[key] = text
+            return text
         return " ".join(f"{x:.2f}" for x in own) if own else ""
 
     def _describe(self, coll: str, rec) -> str:
@@ -222,13 +236,9 @@ class MainScreen(Screen):
         if rec.area is not None:
             return f"{rec.area:g}"
         res = self.result
-        if res is not None and not self.stale:
-            try:
-                i = self.document.spec.surfaces.index(rec)
-                s = res.room.surfaces[i]
-                return f"({s.area / self.document.spec.unit_system.area:.2f})"
-            except (ValueError, IndexError):
-                pass
+        i = self._surface_index.get(id(rec))
+        if res is not None and not self.stale and i is not None and i < len(res.room.surfaces):
+            return f"({res.room.surfaces[i].area / self.document.spec.unit_system.area:.2f})"
         return "(rest)"
 
     def _refresh_tables(self, every: bool = False) -> None:
@@ -246,7 +256,11 @@ class MainScreen(Screen):
             for c in t.columns:
                 if c.kind == "numbers":
                     c.length = nb
-            t.set_records(self.document.items(coll))
+            items = self.document.items(coll)
+            if coll == "surfaces":
+                self._surface_index = {id(rec): i for i, rec in enumerate(items)}
+            t.set_records(items)
+        self._tables_drawn = True
 
     def _refresh_all(self) -> None:
         form = self._opt("#room-form", RoomForm)
@@ -260,10 +274,14 @@ class MainScreen(Screen):
         doc = self.document
         title = f"roomcalc - {doc.spec.title or 'untitled room'}"
         sub = f"{doc.path if doc.path else doc.name}" + ("  (modified)" if doc.modified else "")
+        # Our own title line: App.title and App.sub_title are reactives that repaint the whole
+        # screen, which an edit that only flips "(modified)" should not cost.
         if self.app.title != title:
-            self.app.title = title
-        if self.app.sub_title != sub:
-            self.app.sub_title = sub
+            self.app.title = title          # the terminal window's title
+        line = f"{title}  -  {sub}"
+        bar = self.query_one("#titlebar", Static)
+        if str(bar.content) != line:
+            bar.update(line, layout=False)
 
     # ------------------------------------------------------------------ computing
     def recompute(self) -> None:
@@ -386,9 +404,7 @@ class MainScreen(Screen):
         plot = self.query_one(DistancePlot)
         src = self.query_one("#dist-source", Select).value
         if res is None or not isinstance(src, str) or src not in [s.name for s in res.sources]:
-            plot.plt.clear_figure()
-            plot.plt.title("Add a source (Sources tab) to see level against distance")
-            plot.refresh()
+            plot.show_message("Add a source (Sources tab) to see level against distance")
             return
         bval = self.query_one("#dist-band", Select).value
         bi = None if bval in ("dBA", Select.NULL) else list(res.bands_hz).index(int(bval))
@@ -439,9 +455,17 @@ class MainScreen(Screen):
         self.after_change()
 
     def after_change(self) -> None:
-        self._refresh_all() if self._needs_form_refresh else self._refresh_tables()
+        if self._needs_form_refresh:
+            form = self._opt("#room-form", RoomForm)
+            self._form_dirty = form is None
+            if form is not None:
+                form.show(self.document.spec)
         self._needs_form_refresh = False
-        self.recompute()
+        self._tables_drawn = False
+        self.recompute()                # a new result redraws the tables (areas come from it)
+        if not self._tables_drawn:
+            self._refresh_tables()
+        self._title()
         self.app.schedule_recovery()
 
     def on_field_edited(self, msg: FieldEdited) -> None:

@@ -2,14 +2,14 @@
 
 from __future__ import annotations
 
-from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical
 from textual.screen import ModalScreen
-from textual.widgets import Button, DataTable, Input, Select, Static
+from textual.widgets import Button, Input, Select, Static
 
 from roomcalc.io.catalog import Catalog, Material
+from roomcalc.tui.widgets.grid import CellGrid
 
 
 def material_details(m: Material, bands) -> str:
@@ -59,6 +59,7 @@ class MaterialChooser(ModalScreen[tuple | None]):
         self.catalog, self.kind, self.bands = catalog, kind, tuple(bands)
         self.current, self.current_values = current, current_values
         self._shown: list[Material] = []
+        self._rows: dict[str, list] = {}
 
     def compose(self) -> ComposeResult:
         with Vertical():
@@ -71,7 +72,8 @@ class MaterialChooser(ModalScreen[tuple | None]):
                                if m.kind == self.kind})
                 yield Select([(c, c) for c in cats], prompt="all categories", id="category")
             with Horizontal(id="body"):
-                yield DataTable(cursor_type="row", zebra_stripes=True, id="list")
+                yield CellGrid(cursor_type="row", zebra_stripes=True, show_row_labels=False,
+                               id="list")
                 yield Static("", id="details", markup=False)
             unit = "alpha per band" if self.kind == "surface" else "m^2 per unit per band"
             with Horizontal(id="own-row"):
@@ -82,14 +84,14 @@ class MaterialChooser(ModalScreen[tuple | None]):
             yield Static("", id="own-error")
 
     def on_mount(self) -> None:
-        table = self.query_one("#list", DataTable)
+        table = self.query_one("#list", CellGrid)
         table.add_column("id", key="id")
         table.add_column("name", key="name")
         if self.kind == "surface":
-            table.add_column("NRC", key="nrc")
+            table.add_column("NRC", key="nrc", justify="right")
             table.add_column("alpha_w", key="aw")
         else:
-            table.add_column("500 Hz m^2", key="v500")
+            table.add_column("500 Hz m^2", key="v500", justify="right")
         self._fill()
         self.query_one("#words", Input).focus()
 
@@ -98,21 +100,27 @@ class MaterialChooser(ModalScreen[tuple | None]):
         cat = self.query_one("#category", Select).value
         category = cat if isinstance(cat, str) else None
         self._shown = self.catalog.search(words, category, self.kind)
-        table = self.query_one("#list", DataTable)
-        table.clear()
-        for m in self._shown:
-            if self.kind == "surface":
-                r = m.ratings()
-                table.add_row(m.id, Text(m.name), f"{r[0]:.2f}", f"{r[2].label()} {r[2].absorption_class}",
-                              key=m.id)
-            else:
-                table.add_row(m.id, Text(m.name), f"{m.values.get(500, 0):.2f}", key=m.id)
+        table = self.query_one("#list", CellGrid)
+        table.set_rows([self._row(m) for m in self._shown], keys=[m.id for m in self._shown])
+        table.move_cursor(row=0)
         if self.current and any(m.id == self.current for m in self._shown):
             table.move_cursor(row=[m.id for m in self._shown].index(self.current))
         self._details()
 
+    def _row(self, m: Material) -> list:
+        """The list's cells for a material (ratings computed once per material)."""
+        row = self._rows.get(m.id)
+        if row is None:
+            if self.kind == "surface":
+                nrc, _saa, aw = m.ratings()
+                row = [m.id, m.name, f"{nrc:.2f}", f"{aw.label()} {aw.absorption_class}"]
+            else:
+                row = [m.id, m.name, f"{m.values.get(500, 0):.2f}"]
+            self._rows[m.id] = row
+        return row
+
     def _details(self) -> None:
-        table = self.query_one("#list", DataTable)
+        table = self.query_one("#list", CellGrid)
         det = self.query_one("#details", Static)
         if not self._shown:
             det.update("Nothing matches. Fewer words, or another category.")
@@ -127,16 +135,16 @@ class MaterialChooser(ModalScreen[tuple | None]):
     def on_select_changed(self, event: Select.Changed) -> None:
         self._fill()
 
-    def on_data_table_row_highlighted(self, event: DataTable.RowHighlighted) -> None:
+    def on_cell_grid_row_highlighted(self, event: CellGrid.RowHighlighted) -> None:
         self._details()
 
-    def on_data_table_row_selected(self, event: DataTable.RowSelected) -> None:
-        self.dismiss(("material", str(event.row_key.value)))
+    def on_cell_grid_row_selected(self, event: CellGrid.RowSelected) -> None:
+        self.dismiss(("material", str(event.row_key)))
 
     def on_input_submitted(self, event: Input.Submitted) -> None:
         if event.input.id == "words":
             if self._shown:
-                table = self.query_one("#list", DataTable)
+                table = self.query_one("#list", CellGrid)
                 self.dismiss(("material", self._shown[table.cursor_row].id))
         elif event.input.id == "own":
             self._use_own()

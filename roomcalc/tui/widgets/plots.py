@@ -3,45 +3,38 @@
 from __future__ import annotations
 
 import numpy as np
-from textual_plotext import PlotextPlot
 
 from roomcalc.engine.analysis import METHOD_TITLES, METHODS, RoomResult
+from roomcalc.tui.widgets.chart import Chart, ChartData, Series
 
 
-class RtPlot(PlotextPlot):
-    """RT60 against band for every method; the recommended one drawn heavier."""
+def band_label(b: float) -> str:
+    return f"{b:g}" if b < 1000 else f"{b / 1000:g}k"
 
-    DEFAULT_CSS = "RtPlot { height: 1fr; min-height: 8; }"
+
+class RtPlot(Chart):
+    """RT60 against band for every method; the method used drawn heavier."""
 
     def show(self, res: RoomResult, stale: bool = False) -> None:
-        plt = self.plt
-        plt.clear_figure()
         x = list(range(len(res.bands_hz)))
-        for k in METHODS:
-            if k in res.rt60_s:
-                rec = k == res.recommended
-                plt.plot(x, [float(v) for v in res.rt60_s[k]],
-                         label=METHOD_TITLES[k] + (" (used)" if rec else ""),
-                         marker="braille" if not rec else "hd")
-        plt.xticks(x, [f"{b:g}" for b in res.bands_hz])
-        plt.xlabel("band [Hz]")
-        plt.ylabel("RT60 [s]")
-        plt.title("Reverberation time" + ("  (stale)" if stale else ""))
-        plt.ylim(0, max(float(np.max(v)) for v in res.rt60_s.values()) * 1.15)
-        self.refresh()
+        series = [Series(METHOD_TITLES[k] + (" (used)" if k == res.recommended else ""), x,
+                         [float(v) for v in res.rt60_s[k]], heavy=k == res.recommended)
+                  for k in METHODS if k in res.rt60_s]
+        top = max(float(np.max(v)) for v in res.rt60_s.values()) * 1.15
+        self.show_data(ChartData(
+            title="Reverberation time" + ("  (stale)" if stale else ""),
+            series=series, x_ticks=[(i, band_label(b)) for i, b in zip(x, res.bands_hz)],
+            x_label="band [Hz]", y_label="RT60 [s]",
+            x_range=(-0.3, len(x) - 0.7), y_range=(0.0, top if top > 0 else 1.0)))
 
 
-class DistancePlot(PlotextPlot):
+class DistancePlot(Chart):
     """Direct, reverberant and total level against distance for one source and one band (or
     dB(A)); the critical distance as a vertical line and each receiver as a point."""
-
-    DEFAULT_CSS = "DistancePlot { height: 1fr; min-height: 8; }"
 
     def show(self, curves: dict, band_index: int | None, bands, receivers: list,
              length_label: str = "m", length_factor: float = 1.0, stale: bool = False,
              source: str = "") -> None:
-        plt = self.plt
-        plt.clear_figure()
         r = curves["distance_m"] / length_factor
         if band_index is None:
             tot, dr, rv = curves["total_dba"], curves["direct_dba"], curves["reverberant_dba"]
@@ -55,18 +48,17 @@ class DistancePlot(PlotextPlot):
             what, unit = f"{bands[band_index]:g} Hz", "dB"
             rc = float(curves["critical_distance_m"][band_index])
         rc /= length_factor
-        plt.xscale("log")
-        plt.plot(r.tolist(), tot.tolist(), label="total")
-        plt.plot(r.tolist(), dr.tolist(), label="direct")
-        plt.plot(r.tolist(), rv.tolist(), label="reverberant")
-        lo, hi = float(np.min(rv)) - 15.0, float(np.max(tot[r >= r[0]])) + 3.0
-        plt.ylim(lo, hi)
-        plt.vline(rc)
-        plt.text(f"r_c {rc:.2f} {length_label}", rc, hi - 1.0)
-        for name, dist, level in receivers:
-            plt.scatter([dist / length_factor], [level], marker="x")
-            plt.text(name, dist / length_factor, level + 1.0)
-        plt.xlabel(f"distance from {source} [{length_label}]")
-        plt.ylabel(f"Lp [{unit}]")
-        plt.title(f"Level against distance, {what}" + ("  (stale)" if stale else ""))
-        self.refresh()
+        lo, hi = float(np.min(rv)) - 15.0, float(np.max(tot)) + 3.0
+        xs = r.tolist()
+        self.show_data(ChartData(
+            title=f"Level against distance, {what}" + ("  (stale)" if stale else ""),
+            series=[Series("total", xs, tot.tolist(), heavy=True),
+                    Series("direct", xs, dr.tolist()),
+                    Series("reverberant", xs, rv.tolist())],
+            x_log=True, x_range=(float(r[0]), float(r[-1])), y_range=(lo, hi),
+            x_label=f"distance from {source} [{length_label}]", y_label=f"Lp [{unit}]",
+            vlines=[(rc, f"r_c {rc:.2f} {length_label}")],
+            points=[(dist / length_factor, level, name) for name, dist, level in receivers]))
+
+    def show_message(self, text: str) -> None:
+        self.show_data(ChartData(message=text))

@@ -10,15 +10,14 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
-from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Vertical
-from textual.coordinate import Coordinate
 from textual.validation import ValidationResult, Validator
-from textual.widgets import DataTable, Input, Static
+from textual.widgets import Input, Static
 
 from roomcalc.tui.messages import FieldEdited, MaterialWanted, RowAction
+from roomcalc.tui.widgets.grid import CellGrid
 
 
 @dataclass
@@ -127,15 +126,16 @@ class RecordTable(Vertical):
 
     DEFAULT_CSS = """
     RecordTable { height: 1fr; }
-    RecordTable DataTable { height: 1fr; }
+    RecordTable CellGrid { height: 1fr; }
     RecordTable #editor-row { height: auto; display: none; }
     RecordTable.editing #editor-row { display: block; }
     RecordTable #editor-label { padding: 0 1; color: $text-muted; }
     RecordTable #editor { width: 1fr; margin: 0 1; }
-    RecordTable #editor-error { color: $error; height: auto; padding: 0 1; }
+    RecordTable #editor-error { color: $error; height: auto; padding: 0 1; display: none; }
     RecordTable #row-help { color: $text-muted; height: 1; padding: 0 1; }
-    RecordTable #row-detail { height: auto; max-height: 2; padding: 0 1; }
-    RecordTable #problems { color: $error; height: auto; max-height: 4; padding: 0 1; }
+    RecordTable #row-detail { height: 2; padding: 0 1; }
+    RecordTable #problems { color: $error; height: auto; max-height: 4; padding: 0 1;
+                            display: none; }
     """
 
     BINDINGS = [
@@ -158,7 +158,7 @@ class RecordTable(Vertical):
         self._editing: tuple[int, int] | None = None
 
     def compose(self) -> ComposeResult:
-        table = DataTable(cursor_type="cell", zebra_stripes=True, id="table")
+        table = CellGrid(cursor_type="cell", zebra_stripes=True, id="table")
         yield table
         with Vertical(id="editor-row"):
             yield Static("", id="editor-label", markup=False)
@@ -169,31 +169,22 @@ class RecordTable(Vertical):
         yield Static(self.help_text, id="row-help")
 
     def on_mount(self) -> None:
-        table = self.query_one("#table", DataTable)
+        table = self.query_one("#table", CellGrid)
+        table.cursor_moved = lambda coordinate: self._detail(coordinate.row)
         for col in self.columns:
-            table.add_column(Text(col.label), key=col.key, width=col.width)
+            table.add_column(col.label, key=col.key, width=col.width)
 
     # ---------------------------------------------------------------- downward
     def set_records(self, records: list, annotations: dict | None = None) -> None:
         """Show these records (keeps the cursor where it was when it can)."""
         self.records = records
-        table = self.query_one("#table", DataTable)
+        table = self.query_one("#table", CellGrid)
         coord = table.cursor_coordinate
-        rows = [[Text(col.show(rec) if col.show else           # typed names are not markup
-                      fmt_value(getattr(rec, col.key, None), col.kind))
+        # Plain strings: the grid never reads them as markup.
+        rows = [[col.show(rec) if col.show else fmt_value(getattr(rec, col.key, None), col.kind)
                  for col in self.columns] for rec in records]
-        if rows and table.row_count == len(rows):
-            # The same rows: change the cells in place. A clear() would lose the row numbers
-            # whenever the table is drawn before it has measured the new rows, and scroll it.
-            for i, cells in enumerate(rows):
-                for j, cell in enumerate(cells):
-                    if str(table.get_cell_at(Coordinate(i, j))) != cell.plain:
-                        table.update_cell_at(Coordinate(i, j), cell, update_width=True)
-            table.check_idle()      # re-measure the columns now, not at its next message
-        else:
-            table.clear()
-            for i, cells in enumerate(rows):
-                table.add_row(*cells, key=str(i), label=str(i + 1))
+        # Only rows that differ are drawn again.
+        table.set_rows(rows, labels=[str(i + 1) for i in range(len(rows))])
         if records:
             row = min(coord.row, len(records) - 1)
             table.move_cursor(row=row, column=coord.column, animate=False)
@@ -202,20 +193,32 @@ class RecordTable(Vertical):
             self.query_one("#row-detail", Static).update(
                 "Nothing here yet: press a to add one.")
 
+    def _say_error(self, text: str) -> None:
+        """The reason a typed value cannot be used, under the editor line (hidden when none)."""
+        err = self.query_one("#editor-error", Static)
+        if str(err.content) != text:
+            err.update(text)
+            err.display = bool(text)
+
     def show_problems(self, lines: list[str]) -> None:
-        self.query_one("#problems", Static).update("\n".join(lines))
+        text = "\n".join(lines)
+        problems = self.query_one("#problems", Static)
+        if str(problems.content) != text:
+            problems.update(text)
+            problems.display = bool(text)       # no blank line when all is well
 
     def select_row(self, index: int) -> None:
-        table = self.query_one("#table", DataTable)
+        table = self.query_one("#table", CellGrid)
         if 0 <= index < table.row_count:
             table.move_cursor(row=index, animate=False)
+            self._detail(index)         # now, in this update, not after the table's message
 
     @property
     def current_row(self) -> int | None:
-        table = self.query_one("#table", DataTable)
+        table = self.query_one("#table", CellGrid)
         return table.cursor_row if table.row_count else None
 
-    def on_data_table_cell_highlighted(self, event: DataTable.CellHighlighted) -> None:
+    def on_cell_grid_cell_highlighted(self, event: CellGrid.CellHighlighted) -> None:
         event.stop()
         self._detail(event.coordinate.row)
 
@@ -223,10 +226,12 @@ class RecordTable(Vertical):
         text = ""
         if self.describe is not None and 0 <= row < len(self.records):
             text = self.describe(self.collection, self.records[row])
-        self.query_one("#row-detail", Static).update(text)
+        detail = self.query_one("#row-detail", Static)
+        if str(detail.content) != text:
+            detail.update(text, layout=False)       # a fixed height: no layout needed
 
     # ---------------------------------------------------------------- editing
-    def on_data_table_cell_selected(self, event: DataTable.CellSelected) -> None:
+    def on_cell_grid_cell_selected(self, event: CellGrid.CellSelected) -> None:
         event.stop()
         self.start_edit(event.coordinate.row, event.coordinate.column)
 
@@ -246,7 +251,7 @@ class RecordTable(Vertical):
         self.query_one("#editor-label", Static).update(
             f"Edit {getattr(rec, 'name', row + 1)} / {col.label}{hint}  (Enter applies, "
             "Escape cancels)")
-        self.query_one("#editor-error", Static).update("")
+        self._say_error("")
         self.add_class("editing")
         editor.focus()
 
@@ -255,7 +260,7 @@ class RecordTable(Vertical):
             return
         event.stop()
         res = event.validation_result
-        self.query_one("#editor-error", Static).update(
+        self._say_error(
             "" if res is None or res.is_valid else "; ".join(res.failure_descriptions))
 
     def on_input_submitted(self, event: Input.Submitted) -> None:
@@ -267,7 +272,7 @@ class RecordTable(Vertical):
         try:
             value = parse_value(event.value, col)
         except ValueError as exc:
-            self.query_one("#editor-error", Static).update(str(exc))
+            self._say_error(str(exc))
             return
         self._finish_edit()
         self.post_message(FieldEdited(self.collection, row, col.key, value))
@@ -278,8 +283,8 @@ class RecordTable(Vertical):
     def _finish_edit(self) -> None:
         self._editing = None
         self.remove_class("editing")
-        self.query_one("#editor-error", Static).update("")
-        self.query_one("#table", DataTable).focus()
+        self._say_error("")
+        self.query_one("#table", CellGrid).focus()
 
     def action_row(self, action: str) -> None:
         if self._editing is not None:

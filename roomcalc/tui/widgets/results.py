@@ -6,9 +6,9 @@ from __future__ import annotations
 import math
 
 from rich.text import Text
-from textual.widgets import DataTable, Static
+from textual.widgets import Static
 
-from roomcalc.tui.widgets.table_sync import forget, sync_rows
+from roomcalc.tui.widgets.grid import CellGrid
 
 from roomcalc.engine.analysis import METHOD_TITLES, METHODS, Comparison, RoomResult
 from roomcalc.io.units import METRIC, Units
@@ -18,40 +18,40 @@ def _f(x, nd=2) -> str:
     return "-" if x is None or not math.isfinite(x) else f"{x:.{nd}f}"
 
 
-class BandTable(DataTable):
+class BandTable(CellGrid):
     """A table with one row per quantity and one column per octave band."""
 
     DEFAULT_CSS = "BandTable { height: auto; max-height: 100%; }"
 
     def __init__(self, *, extra: str | None = None, id: str | None = None) -> None:
-        super().__init__(cursor_type="row", zebra_stripes=True, id=id)
+        super().__init__(cursor_type="row", zebra_stripes=True, show_row_labels=False, id=id)
         self.extra = extra
         self._bands: tuple = ()
 
     def _columns(self, bands, first: str) -> None:
-        self._pending: list[list] = []
+        self._pending: list[list[str]] = []
+        self._pending_styles: list[str] = []
         if bands == self._bands and self.columns:
             return
         self.clear(columns=True)
-        forget(self)
-        self.add_column(Text(first), key="label")   # "[s]" is a unit, not markup
+        self.add_column(first, key="label")
         for b in bands:
-            self.add_column(f"{b:g}" if b < 1000 else f"{b / 1000:g}k", key=str(b))
+            self.add_column(f"{b:g}" if b < 1000 else f"{b / 1000:g}k", key=str(b),
+                            justify="right")
         if self.extra:
-            self.add_column(self.extra, key="extra")
+            self.add_column(self.extra, key="extra", justify="right")
         self._bands = bands
 
     def _row(self, label, values, nd=2, extra=None, style: str = "") -> None:
-        cells = [Text(label, style=style)] + [Text(_f(float(v), nd), style=style, justify="right")
-                                              for v in values]
+        cells = [label] + [_f(float(v), nd) for v in values]
         if self.extra:
-            cells.append(Text("" if extra is None else _f(extra, 1), style=style,
-                              justify="right"))
+            cells.append("" if extra is None else _f(extra, 1))
         self._pending.append(cells)
+        self._pending_styles.append(style)
 
     def _flush(self) -> None:
-        """Show the rows collected since _columns, changing only the cells that differ."""
-        sync_rows(self, self._pending)
+        """Show the rows collected since _columns; only rows that differ are drawn again."""
+        self.set_rows(self._pending, styles=self._pending_styles)
 
 
 class ReverbTable(BandTable):
@@ -158,4 +158,9 @@ class FindingsStrip(Static):
         text.rstrip()
         if text.plain != getattr(self, "_last_plain", None):
             self._last_plain = text.plain
-            self.update(text)
+            # A layout of the screen only when the strip's height changes.
+            width = self.size.width
+            lines = min(7, len(text.wrap(self.app.console, width))) if width else None
+            same = lines is not None and lines == getattr(self, "_last_lines", None)
+            self._last_lines = lines
+            self.update(text, layout=not same)
