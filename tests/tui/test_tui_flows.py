@@ -26,6 +26,22 @@ def _app(path, catalog, **config):
     return make_app(Document.open(path), catalog, AppConfig(**config))
 
 
+async def _ready(pilot, tries: int = 100):
+    """Wait until the first result is on screen (a loaded machine can take more than one
+    pause to get there)."""
+    from roomcalc.tui.screens.main import MainScreen
+
+    for _ in range(tries):
+        await pilot.pause()
+        screen = pilot.app.screen
+        if not isinstance(screen, MainScreen):
+            return              # a question is asked first (recovery, box size)
+        table = screen.query("#reverb-table")
+        if screen.result is not None and table and table.first().row_count:
+            return
+    raise AssertionError("the first result never reached the screen")
+
+
 def _surfaces(app):
     return app.screen.query_one("#t-surfaces")
 
@@ -49,7 +65,7 @@ async def test_material_change_through_chooser(room_file, catalog, engine, scree
     path = room_file("classroom.toml")
     app = _app(path, catalog)
     async with app.run_test(size=SIZE) as pilot:
-        await pilot.pause()
+        await _ready(pilot)
         doc = app.screen.document
 
         # As opened: the numbers of the file itself.
@@ -115,7 +131,7 @@ async def test_add_undo_redo(room_file, catalog, engine, screen_tables, pilot_ke
     path = room_file("classroom.toml")
     app = _app(path, catalog)
     async with app.run_test(size=SIZE) as pilot:
-        await pilot.pause()
+        await _ready(pilot)
         doc = app.screen.document
         original = spec_to_toml(doc.spec)
         n = len(doc.spec.surfaces)
@@ -180,7 +196,7 @@ async def test_bad_values(room_file, catalog, engine, screen_tables, pilot_keys)
     path = room_file("classroom.toml")
     app = _app(path, catalog)
     async with app.run_test(size=SIZE) as pilot:
-        await pilot.pause()
+        await _ready(pilot)
         screen, doc = app.screen, app.screen.document
         text = spec_to_toml(doc.spec)
         good = engine.result(doc.spec)
@@ -234,7 +250,7 @@ async def test_save_reopen_and_quit(room_file, catalog, engine, screen_tables):
     original_bytes = path.read_bytes()
     app = _app(path, catalog)
     async with app.run_test(size=SIZE) as pilot:
-        await pilot.pause()
+        await _ready(pilot)
         doc = app.screen.document
         # An unmodified opened file saves byte for byte as it was.
         await pilot.press("ctrl+s")
@@ -270,7 +286,7 @@ async def test_save_reopen_and_quit(room_file, catalog, engine, screen_tables):
     # Reopened: the same room, the same numbers; with nothing changed, quit does not ask.
     app = _app(path, catalog)
     async with app.run_test(size=SIZE) as pilot:
-        await pilot.pause()
+        await _ready(pilot)
         assert screen_tables.reverb(app) == shown
         _assert_reverb_matches(shown, engine.result(reopened.spec), engine)
         await pilot.press("ctrl+q")
@@ -293,7 +309,7 @@ async def test_recovery_offered_after_crash(room_file, catalog, engine, screen_t
 
     app = _app(path, catalog, offer_recovery=True)
     async with app.run_test(size=SIZE) as pilot:
-        await pilot.pause()
+        await _ready(pilot)
         assert isinstance(app.screen, Ask)
         assert str(path) in screen_tables.text(app, ".question")
         assert {str(b.label) for b in app.screen.query("Button")} == \
@@ -321,7 +337,7 @@ async def test_imperial_room_opens_unchanged(room_file, catalog, engine, screen_
     original = path.read_bytes()
     app = _app(path, catalog)
     async with app.run_test(size=SIZE) as pilot:
-        await pilot.pause()
+        await _ready(pilot)
         doc = app.screen.document
         assert doc.spec.units == "imperial" and not doc.modified and not doc.undo_stack
         res = engine.result(doc.spec)
@@ -346,7 +362,7 @@ async def test_quit_with_unsaved_changes_asks(room_file, catalog):
     os.utime(path, (old, old))
     app = _app(path, catalog, recovery_delay_s=0.05)
     async with app.run_test(size=SIZE) as pilot:
-        await pilot.pause()
+        await _ready(pilot)
         await pilot.press("a")
         await pilot.pause()
         edited = spec_to_toml(app.screen.document.spec)
