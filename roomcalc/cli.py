@@ -60,6 +60,16 @@ def _parser() -> argparse.ArgumentParser:
                                                      "a box size")
     n.add_argument("file", nargs="?", help="where to save it (asked on saving if not given)")
 
+    pl = sub.add_parser("plan", parents=[common],
+                        help="the cheapest treatment that brings a room to its [target]")
+    pl.add_argument("file", help="room file (.toml) with [target] and [[candidates]]")
+    pl.add_argument("--objective", choices=("cost", "area"),
+                    help="least cost (default, or the file's [target] objective) or least area")
+    pl.add_argument("--format", choices=("text", "json"), default="text",
+                    help="output format (json is in SI units)")
+    pl.add_argument("--write", metavar="TREATED.toml",
+                    help="also write the treated room as a new room file")
+
     m = sub.add_parser("materials", parents=[common, fmt], help="search the material catalogue")
     m.add_argument("words", nargs="*", help="words that must all appear (id, name, notes)")
     m.add_argument("--category", help="only this category (part of its name is enough)")
@@ -133,6 +143,9 @@ def _run(args) -> int:
         sys.stdout.write(report.materials_text(mats, args.format))
         return EXIT_OK
 
+    if args.command == "plan":
+        return _plan(args, catalog)
+
     if args.command in ("report", "check"):
         if args.demo:
             path = paths.demo_room_path()
@@ -150,9 +163,29 @@ def _run(args) -> int:
             print(f"{shown}: ok ({counts})")
             for w in result.warnings:
                 print(report._wrap(w.message, "  warning: ", "    "))
+            sys.stdout.write(_extras_text(spec, room, result, str(path)))
             return EXIT_OK
         result = evaluate(room, reverberant_model=args.reverberant, method=args.method)
+        if args.format == "json":
+            import json
+
+            from roomcalc.io import targets
+
+            data = report.result_dict(result)
+            check = targets.target_check(spec, room, result, filename=str(path))
+            if check is not None:
+                data["target"] = targets.target_dict(check)
+            days = targets.exposures(spec, result)
+            if days:
+                data["exposure"] = targets.exposure_dict(days)
+            sys.stdout.write(json.dumps(data, indent=2) + "\n")
+            return EXIT_OK
         sys.stdout.write(report.REPORTERS[args.format](result, shown, spec.unit_system))
+        if args.format in ("text", "markdown"):
+            extra = _extras_text(spec, room, result, str(path))
+            if extra:
+                sys.stdout.write(("\n```\n" + extra + "```\n") if args.format == "markdown"
+                                 else "\n" + extra)
         return EXIT_OK
 
     if args.command == "compare":
@@ -170,6 +203,56 @@ def _run(args) -> int:
         sys.stdout.write(report.compare_text(compare(rb, ra), names, args.format))
         return EXIT_OK
     return EXIT_INPUT  # pragma: no cover - argparse rejects unknown commands
+
+
+def _extras_text(spec, room, result, filename: str) -> str:
+    """The target check and the daily exposure, when the room file asks for them."""
+    from roomcalc.io import targets
+
+    out = ""
+    check = targets.target_check(spec, room, result, filename=filename)
+    if check is not None:
+        out += targets.target_text(check)
+    days = targets.exposures(spec, result)
+    if days:
+        out += targets.exposure_text(days)
+    return out
+
+
+def _plan(args, catalog) -> int:
+    import json
+
+    from roomcalc.engine.analysis import evaluate
+    from roomcalc.io import targets
+    from roomcalc.io.planning import apply_plan, resolve_goals
+    from roomcalc.io.roomfile import save_spec
+
+    spec, room = _load(args.file, catalog)
+    if spec.target is None:
+        print(f"roomcalc plan: {args.file} has no [target] table: say what the room must "
+              "reach (criterion = \"<id>\", or rt60_max = [...], or max_level_dba = {...})",
+              file=sys.stderr)
+        return EXIT_INPUT
+    run = targets.make_plan(spec, room, catalog, objective=args.objective, filename=args.file)
+    goals = resolve_goals(spec, room, filename=args.file)
+    treated = None
+    if args.write:
+        treated = apply_plan(spec, run.plan, list(run.candidates))
+        save_spec(treated, Path(args.write))
+    if args.format == "json":
+        data = targets.plan_dict(run, spec.unit_system)
+        if args.write:
+            data["written"] = str(args.write)
+        sys.stdout.write(json.dumps(data, indent=2) + "\n")
+    else:
+        sys.stdout.write(targets.plan_text(run, spec.unit_system, targets.window_of(goals)))
+        days_before = targets.exposures(spec, run.before)
+        if days_before:
+            after = targets.exposures(spec, evaluate(run.after_room))
+            sys.stdout.write(targets.exposure_text(days_before, after))
+        if args.write:
+            print(f"Treated room written to {args.write}")
+    return EXIT_OK if run.plan.feasible else 1
 
 
 def _interface(args, catalog) -> int:

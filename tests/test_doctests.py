@@ -8,7 +8,8 @@ import importlib
 import pytest
 
 MODULES = ["roomcalc.engine.bands", "roomcalc.engine.air", "roomcalc.engine.reverb",
-           "roomcalc.engine.field", "roomcalc.engine.ratings", "roomcalc.engine.spectra"]
+           "roomcalc.engine.field", "roomcalc.engine.ratings", "roomcalc.engine.spectra",
+           "roomcalc.engine.exposure", "roomcalc.engine.criteria"]
 
 
 @pytest.mark.parametrize("name", MODULES)

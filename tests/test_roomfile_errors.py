@@ -17,7 +17,8 @@ import pytest
 from roomcalc import cli
 from roomcalc.io.catalog import load_catalog
 from roomcalc.io.errors import RoomFileError
-from roomcalc.io.roomfile import parse_spec, read_room, resolve, spec_to_dict, spec_to_toml
+from roomcalc.io.roomfile import (check_room, parse_spec, read_room, resolve, spec_to_dict,
+                                  spec_to_toml)
 
 from conftest import EXAMPLES
 
@@ -349,7 +350,8 @@ def test_file_not_utf8_and_missing_file(tmp_path, catalog):
     ('name = "Fan"', 'name = "Fan"\nsoundpower = 80',
      "sources[0].soundpower: unknown key 'soundpower'; did you mean 'sound_power'?"),
     ('name = "Desk"', 'name = "Desk"\nqqq = 1',
-     "receivers[0].qqq: unknown key 'qqq'; known keys: name, position, distances"),
+     "receivers[0].qqq: unknown key 'qqq'; known keys: name, position, distances, hours, "
+     "source_hours"),
 ])
 def test_unknown_key_names_the_nearest_known_one(tmp_path, catalog, old, new, expected):
     got = problems(tmp_path, catalog, edit((old, new)))
@@ -750,3 +752,260 @@ def test_round_trip_keeps_imperial_units_and_inline_materials(catalog):
                                                                             0.9, 0.9]
     assert math.dist(a.receivers[0].position, a.sources[0].position) == \
         pytest.approx(math.dist((4.0, 3.0, 1.2), (1.0, 1.0, 1.0)) * 0.3048)
+
+
+# ----------------------------------------------------------------------------- planning keys
+
+# GOOD with a working pattern, a [target] and one candidate of each kind (the issue's example).
+PLAN = GOOD.replace("position = [4.0, 3.0, 1.2]\n",
+                    "position = [4.0, 3.0, 1.2]\nhours = 8.0\nsource_hours = { Fan = 2.5 }\n") + """
+[target]
+method = "eyring"
+rt60_max = [1.0, 0.7, 0.6, 0.6, 0.6, 0.6]
+max_level_dba = { "Desk" = 80.0 }
+
+[[candidates]]
+name = "Wall panel, 50 mm wool"
+surface = "Walls and ceiling"
+alpha = [0.20, 0.55, 0.95, 1.00, 0.95, 0.90]
+max_area = 40.0
+cost_per_m2 = 65.0
+
+[[candidates]]
+name = "Hanging baffle"
+absorption = [0.30, 0.60, 1.10, 1.40, 1.40, 1.30]
+max_count = 40
+cost_each = 55.0
+"""
+
+ALL_CRITERIA = ("ansi-s12.60-2010-core, din-18041-2016-a1, din-18041-2016-a2, din-18041-2016-a3, "
+                "din-18041-2016-a4, din-18041-2016-a5, bb93-primary-new, bb93-secondary-new, "
+                "bb93-hearing-impaired, ebu-tech-3276-listening")
+
+
+def test_the_good_planning_file_is_good(tmp_path, catalog):
+    path = tmp_path / "room.toml"
+    path.write_text(PLAN)
+    spec, room = read_room(path, catalog)
+    assert spec.target.rt60_max == [1.0, 0.7, 0.6, 0.6, 0.6, 0.6]
+    assert spec.target.max_level_dba == {"Desk": 80.0}
+    assert [c.name for c in spec.candidates] == ["Wall panel, 50 mm wool", "Hanging baffle"]
+    assert (spec.receivers[0].hours, spec.receivers[0].source_hours) == (8.0, {"Fan": 2.5})
+    # The planning keys change nothing of the room itself.
+    plain = resolve(parse_spec(GOOD), catalog)
+    assert [s.total_area for s in room.surfaces] == [s.total_area for s in plain.surfaces]
+    text = spec_to_toml(spec)
+    assert parse_spec(text) == spec and spec_to_toml(parse_spec(text)) == text
+
+
+@pytest.mark.parametrize("old, new, expected", [
+    # unknown keys name the nearest known key
+    ("rt60_max = [1.0,", "rt60max = [1.0,",
+     "target.rt60max: unknown key 'rt60max'; did you mean 'rt60_max'?"),
+    ("max_count = 40", "max_count = 40\nareaeach = 1.0",
+     "candidates[1].areaeach: unknown key 'areaeach'; did you mean 'area_each'?"),
+    ('method = "eyring"', 'method = "eyring"\nzzz = 1',
+     "target.zzz: unknown key 'zzz'; known keys: method, objective, currency, criterion, "
+     "rt60_max, rt60_min, max_level_dba, max_level_db"),
+    # a surface that does not exist lists the surfaces
+    ('surface = "Walls and ceiling"', 'surface = "Walls"',
+     "candidates[0].surface: 'Walls' is not a surface of this room (surfaces: Floor, Walls and "
+     "ceiling)"),
+    ('surface = "Walls and ceiling"', 'surface = "Walls and ceilings"',
+     "candidates[0].surface: 'Walls and ceilings' is not a surface of this room; did you mean "
+     "'Walls and ceiling'? (surfaces: Floor, Walls and ceiling)"),
+    # band counts say how many
+    ("alpha = [0.20, 0.55, 0.95, 1.00, 0.95, 0.90]", "alpha = [0.20, 0.55, 0.95, 1.00, 0.95]",
+     f"candidates[0].alpha: has 5 values; 6 are needed ({SIX})"),
+    ("1.40, 1.40, 1.30]", "1.40, 1.40, 1.30, 1.2]",
+     f"candidates[1].absorption: has 7 values; 6 are needed ({SIX})"),
+    ("rt60_max = [1.0, 0.7, 0.6, 0.6, 0.6, 0.6]", "rt60_max = [1.0, 0.7, 0.6]",
+     f"target.rt60_max: has 3 values; 6 are needed ({SIX})"),
+    # ranges
+    # A candidate's alpha is 0 to 1, the planner's range (a surface's may reach 1.2).
+    ("alpha = [0.20, 0.55,", "alpha = [0.20, 1.05,", "candidates[0].alpha[1]: 1.05 is outside 0 to 1"),
+    ("alpha = [0.20, 0.55,", "alpha = [0.20, 1.55,", "candidates[0].alpha[1]: 1.55 is outside 0 to 1"),
+    ("alpha = [0.20,", "alpha = [-0.20,", "candidates[0].alpha[0]: -0.2 is outside 0 to 1"),
+    ("cost_per_m2 = 65.0", "cost_per_m2 = -65.0",
+     "candidates[0].cost_per_m2: -65 is outside the allowed range: at least 0 per m^2"),
+    ("cost_each = 55.0", "cost_each = -55.0",
+     "candidates[1].cost_each: -55 is outside the allowed range: at least 0 per unit"),
+    ("max_area = 40.0", "max_area = -40.0",
+     "candidates[0].max_area: -40 is outside the allowed range: at least 0 m^2"),
+    ("max_count = 40", "max_count = -40",
+     "candidates[1].max_count: -40 is outside the allowed range: at least 0 units"),
+    ("max_area = 40.0", "max_area = 40.0\nstep = 0.0",
+     "candidates[0].step: 0 is outside the allowed range: above 0 m^2"),
+    ('{ "Desk" = 80.0 }', '{ "Desk" = -80.0 }',
+     "target.max_level_dba.Desk: -80 is outside 0 to 200 dB(A)"),
+    ("rt60_max = [1.0,", "rt60_max = [0.0,",
+     "target.rt60_max[0]: 0 is outside the allowed range: above 0 and up to 20 s"),
+    ("hours = 8.0", "hours = 25.0", "receivers[0].hours: 25 is outside 0 to 24 h per day"),
+    ("{ Fan = 2.5 }", "{ Fan = 9.0 }",
+     "receivers[0].source_hours.Fan: 9 h is more than hours (8 h): a source runs at most as long "
+     "as the receiver is there"),
+    ("hours = 8.0\n", "",
+     "receivers[0].source_hours: needs hours (the hours per day at this position), which no "
+     "source's hours may exceed"),
+    # names that do not exist
+    ('{ "Desk" = 80.0 }', '{ "Dsk" = 80.0 }',
+     "target.max_level_dba.Dsk: 'Dsk' is not a receiver of this room (receivers: Desk)"),
+    ("{ Fan = 2.5 }", "{ Fna = 2.5 }",
+     "receivers[0].source_hours.Fna: 'Fna' is not a source of this room (sources: Fan)"),
+    # which keys go together
+    ('method = "eyring"', 'method = "eyring"\ncriterion = "din-18041-2016-a3"',
+     "target: give either criterion or rt60_max, not both: keep criterion to plan to its "
+     "published window, or keep rt60_max (and remove criterion) to plan to your own"),
+    ("rt60_max = [1.0, 0.7, 0.6, 0.6, 0.6, 0.6]",
+     "rt60_max = [1.0, 0.7, 0.6, 0.6, 0.6, 0.6]\nrt60_min = { 500 = 0.8 }",
+     "target.rt60_min: 0.8 s at 500 Hz is above rt60_max (0.6 s); the window would be empty"),
+    ("rt60_max = [1.0, 0.7, 0.6, 0.6, 0.6, 0.6]", "rt60_max = 0.6\nrt60_min = 0.7",
+     "target.rt60_min: 0.7 s is above rt60_max (0.6 s); the window would be empty"),
+    ("rt60_max = [1.0, 0.7, 0.6, 0.6, 0.6, 0.6]", "rt60_max = { 630 = 0.6 }",
+     "target.rt60_max.630: '630' is not a band of this room (125, 250, 500, 1000, 2000, 4000 Hz)"),
+    ("rt60_max = [1.0, 0.7, 0.6, 0.6, 0.6, 0.6]", 'rt60_max = "short"',
+     f"target.rt60_max: must be a number (every band), a list ({SIX}) or a table by band such "
+     "as { 500 = ..., 1000 = ... } (only those bands), not text"),
+    ('method = "eyring"', 'method = "millington"',
+     "target.method: 'millington' is not one of sabine, eyring"),
+    ("max_area = 40.0", "max_area = 40.0\nmax_count = 3",
+     "candidates[0].max_count: only goes with a candidate added as units (one without "
+     "surface); this one covers a surface"),
+    ("max_count = 40", "max_count = 40\nstep = 0.72",
+     "candidates[1].step: only goes with a candidate that covers a surface: give surface (one "
+     "of Floor, Walls and ceiling), or leave it out to add the candidate as units"),
+    ("cost_per_m2 = 65.0", "cost_per_ft2 = 65.0",
+     "candidates[0].cost_per_ft2: a metric file gives areas in m^2, so the cost per m^2: use "
+     "cost_per_m2"),
+    ("max_count = 40", "max_count = 2.5",
+     "candidates[1].max_count: must be a whole number for whole units, not 2.5 (or set "
+     "whole = false)"),
+    ("max_count = 40", "max_count = 40\nwhole = 0",
+     "candidates[1].whole: must be true or false, not a number"),
+    ('name = "Hanging baffle"', 'name = "Wall panel, 50 mm wool"',
+     "candidates[1].name: 'Wall panel, 50 mm wool' is used by another candidate; names must "
+     "differ"),
+    ('absorption = [0.30, 0.60, 1.10, 1.40, 1.40, 1.30]\n', '',
+     "candidates[1]: give either material (a catalogue id of kind object) or absorption (m^2 "
+     f"per unit, {SIX}); or surface, to cover part of a surface"),
+])
+def test_planning_key_problems(tmp_path, catalog, old, new, expected):
+    assert only(tmp_path, catalog, edit((old, new), text=PLAN)) == expected
+
+
+def test_planning_whole_units_limit_may_be_written_as_a_float(tmp_path, catalog):
+    # 40.0 is a whole number (the interface types numbers as floats); 2.5 is not (above).
+    path = tmp_path / "room.toml"
+    path.write_text(edit(("max_count = 40", "max_count = 40.0"), text=PLAN))
+    spec, _ = read_room(path, catalog)
+    assert spec.candidates[1].max_count == 40.0 and spec.candidates[1].whole is None
+
+
+def test_planning_costs_and_goals_are_needed_to_plan_not_to_read(tmp_path, catalog):
+    # A room file may be a planning draft: a [target] without a goal yet, candidates without
+    # costs. The room reads and evaluates; planning it says what is missing.
+    from roomcalc.io.planning import resolve_candidates, resolve_goals
+
+    text = edit(("rt60_max = [1.0, 0.7, 0.6, 0.6, 0.6, 0.6]\n", ""),
+                ('max_level_dba = { "Desk" = 80.0 }\n', ""), ("cost_per_m2 = 65.0\n", ""),
+                ("cost_each = 55.0\n", ""), text=PLAN)
+    path = tmp_path / "draft.toml"
+    path.write_text(text)
+    spec, room = read_room(path, catalog)
+    with pytest.raises(RoomFileError) as info:
+        resolve_goals(spec, room, filename=str(path))
+    assert str(info.value) == (f"{path}: target: sets no goal: give criterion, rt60_max or "
+                               "rt60_min, max_level_dba or max_level_db")
+    with pytest.raises(RoomFileError) as info:
+        resolve_candidates(spec, room, catalog, filename=str(path))
+    assert [f"{p.where}: {p.message}" for p in info.value.problems] == [
+        "candidates[0].cost_per_m2: is required to plan for the least cost: the cost of 1 m^2 "
+        "covered, 0 or more",
+        "candidates[1].cost_each: is required to plan for the least cost: the cost of one "
+        "unit, 0 or more"]
+    # The least area needs no cost, but what one unit counts for.
+    with pytest.raises(RoomFileError) as info:
+        resolve_candidates(spec, room, catalog, objective="area")
+    assert [f"{p.where}: {p.message}" for p in info.value.problems] == [
+        "candidates[1].area_each: is required to plan for the least area: the area one unit "
+        "counts for (m^2), above 0"]
+    spec.candidates[1].area_each = 0.72
+    panel, baffle = resolve_candidates(spec, room, catalog, objective="area")
+    assert (panel.cost, baffle.cost, baffle.area_each) == (0.0, 0.0, 0.72)
+
+
+def test_planning_unknown_criterion_lists_the_known(tmp_path, catalog):
+    text = edit(("rt60_max = [1.0, 0.7, 0.6, 0.6, 0.6, 0.6]", 'criterion = "din-18041-a3"'),
+                text=PLAN)
+    assert only(tmp_path, catalog, text) == (
+        "target.criterion: unknown criterion 'din-18041-a3'; did you mean 'din-18041-2016-a3'? "
+        f"(known: {ALL_CRITERIA})")
+
+
+@pytest.mark.parametrize("old, new, expected", [
+    ('alpha = [0.20, 0.55, 0.95, 1.00, 0.95, 0.90]', 'material = "person-seated"',
+     "candidates[0].material: 'person-seated' is a material of kind object; a candidate that "
+     "covers a surface needs kind surface"),
+    ('absorption = [0.30, 0.60, 1.10, 1.40, 1.40, 1.30]', 'material = "plaster-on-masonry"',
+     "candidates[1].material: 'plaster-on-masonry' is a material of kind surface; a candidate "
+     "added as units (without surface) needs kind object"),
+    ('absorption = [0.30, 0.60, 1.10, 1.40, 1.40, 1.30]', 'material = "person-sated"',
+     "candidates[1].material: unknown material 'person-sated'; did you mean 'person-seated'? "
+     "(search with: roomcalc materials WORDS)"),
+])
+def test_planning_material_of_the_wrong_kind(tmp_path, catalog, old, new, expected):
+    assert only(tmp_path, catalog, edit((old, new), text=PLAN)) == expected
+    # check_room (the interface's path) says the same.
+    with pytest.raises(RoomFileError) as info:
+        check_room(parse_spec(edit((old, new), text=PLAN)), catalog)
+    assert [f"{p.where}: {p.message}" for p in info.value.problems] == [expected]
+
+
+def test_planning_imperial_costs_are_per_square_foot(tmp_path, catalog):
+    text = edit(('units = "metric"', 'units = "imperial"'), text=PLAN)
+    assert only(tmp_path, catalog, text) == ("candidates[0].cost_per_m2: an imperial file gives "
+                                             "areas in ft^2, so the cost per ft^2: use "
+                                             "cost_per_ft2")
+    path = tmp_path / "ok.toml"
+    path.write_text(text.replace("cost_per_m2", "cost_per_ft2"))
+    spec, _ = read_room(path, catalog)
+    assert spec.candidates[0].cost_per_ft2 == 65.0
+    assert "cost_per_ft2 = 65.0" in spec_to_toml(spec)
+
+
+def test_planning_surface_named_twice(tmp_path, catalog):
+    text = edit(('name = "Floor"', 'name = "Walls and ceiling"'), text=PLAN)
+    assert only(tmp_path, catalog, text) == (
+        "candidates[0].surface: 'Walls and ceiling' names 2 surfaces (surfaces[0], "
+        "surfaces[1]); give them different names so that one can be treated")
+
+
+def test_planning_problems_all_reported_with_the_rest(tmp_path, catalog):
+    text = edit(("area = 74.0", "area = -74.0"),
+                ("rt60_max = [1.0, 0.7, 0.6, 0.6, 0.6, 0.6]", 'criterion = "no-such"'),
+                ('{ "Desk" = 80.0 }', '{ "Dsk" = 80.0 }'),
+                ("hours = 8.0", "hours = 30"),
+                ("alpha = [0.20, 0.55, 0.95, 1.00, 0.95, 0.90]", 'material = "person-seated"'),
+                ("cost_each = 55.0", "cost_each = -1"), text=PLAN)
+    assert problems(tmp_path, catalog, text) == [
+        "surfaces[1].area: -74 is outside the allowed range: above 0 m^2",
+        "receivers[0].hours: 30 is outside 0 to 24 h per day",
+        "target.max_level_dba.Dsk: 'Dsk' is not a receiver of this room (receivers: Desk)",
+        "candidates[1].cost_each: -1 is outside the allowed range: at least 0 per unit",
+        # What the catalogue and the criteria library say comes in the same report.
+        "candidates[0].material: 'person-seated' is a material of kind object; a candidate "
+        "that covers a surface needs kind surface",
+        f"target.criterion: unknown criterion 'no-such' (known: {ALL_CRITERIA})",
+    ]
+
+
+def test_planning_cli_check(tmp_path, capsys):
+    path = tmp_path / "plan.toml"
+    path.write_text(PLAN)
+    assert cli.main(["check", str(path)]) == 0
+    capsys.readouterr()
+    path.write_text(edit(("max_count = 40", "max_count = -40"), text=PLAN))
+    assert cli.main(["check", str(path)]) == 2
+    out, err = capsys.readouterr()
+    assert out == "" and err.splitlines()[0] == (
+        f"{path}: candidates[1].max_count: -40 is outside the allowed range: at least 0 units")

@@ -15,11 +15,11 @@ from pathlib import Path
 
 from roomcalc.io import paths
 from roomcalc.io.atomic import write_text_atomic
-from roomcalc.io.roomfile import (ObjectSpec, ReceiverSpec, RoomSpec, ShapeSpec, SourceSpec,
-                                  SurfaceSpec, parse_spec, spec_to_toml)
+from roomcalc.io.roomfile import (CandidateSpec, ObjectSpec, ReceiverSpec, RoomSpec, ShapeSpec,
+                                  SourceSpec, SurfaceSpec, parse_spec, spec_to_toml)
 from roomcalc.io.units import UNITS
 
-COLLECTIONS = ("surfaces", "objects", "sources", "receivers")
+COLLECTIONS = ("surfaces", "objects", "sources", "receivers", "candidates")
 NEW_ITEM = {
     "surfaces": lambda n: SurfaceSpec(name=f"Surface {n}", area=1.0,
                                       material="plaster-on-masonry"),
@@ -27,6 +27,11 @@ NEW_ITEM = {
     "sources": lambda n: SourceSpec(name=f"Source {n}", sound_power_dba=80.0, spectrum="pink",
                                     placement="surface"),
     "receivers": lambda n: ReceiverSpec(name=f"Receiver {n}"),
+    # A treatment the planner may use: units by default (no surface); give it a surface to
+    # make it cover part of that surface instead.
+    "candidates": lambda n: CandidateSpec(name=f"Treatment {n}",
+                                          material="corner-trap-porous-floor-to-ceiling",
+                                          max_count=4),        # cost: the user gives it
 }
 HISTORY_LIMIT = 500
 
@@ -305,4 +310,7 @@ def convert_units(spec: RoomSpec, to: str) -> None:
         if r.position is not None:
             r.position = [L(x) for x in r.position]
         r.distances = {k: L(v) for k, v in r.distances.items()}
+    from roomcalc.io.planning import convert_candidate_units
+
+    convert_candidate_units(spec, to)       # areas, costs per area, absorption per unit
     spec.units = to

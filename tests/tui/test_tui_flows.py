@@ -271,7 +271,11 @@ async def test_save_reopen_and_quit(room_file, catalog, engine, screen_tables):
         edited = spec_to_toml(doc.spec)
         shown = screen_tables.reverb(app)
         await pilot.press("ctrl+q")
-        await pilot.pause()
+        for _ in range(50):             # the question is up and laid out
+            await pilot.pause()
+            if isinstance(app.screen, Ask) and app.screen.query("#save") and \
+                    app.screen.query_one("#save").region:
+                break
         assert isinstance(app.screen, Ask)
         await pilot.click("#save")
         await pilot.pause()

@@ -15,8 +15,8 @@ HELP = """\
 | Key | What it does |
 |---|---|
 | Tab / Shift+Tab | move between panels |
-| 1 to 5 | the Room, Surfaces, Objects, Sources, Receivers tabs |
-| F5 to F8 | the result tabs: reverberation, level vs distance, receivers, before/after |
+| 1 to 6 | the Room, Surfaces, Objects, Sources, Receivers, Treatments tabs |
+| F5 to F9 | the result tabs: reverberation, level vs distance, receivers, before/after, plan |
 | Enter or click on a cell | edit it (a material cell opens the material chooser) |
 | Enter / Escape in the editor line | apply / cancel |
 | a | add a row after the highlighted one |
@@ -26,6 +26,7 @@ HELP = """\
 | m | choose a material for the highlighted surface or object |
 | p | pin the room as it is now as "before"; the before/after tab compares with it |
 | b | change the reverberant model: diffuse field (4/R) or Barron & Lee |
+| r / Space (in the plan tab) | make the plan / tick a treatment in or out |
 | Ctrl+Z / Ctrl+Y | undo / redo |
 | Ctrl+S / F2 | save / save as |
 | Ctrl+O / Ctrl+N | open / new room |
@@ -46,6 +47,12 @@ HELP = """\
   parts shown; dB(A) with IEC 61672-1 weights.
 - **Schroeder f_S**: `2000 sqrt(T / V)`; below it room modes dominate and these figures are rough.
 - **NRC, SAA~, alpha_w**: single-number ratings of a material (ASTM C423, ISO 11654).
+- **Plan** (F9): the cheapest (or smallest) set of treatments from tab 6 that brings RT60 per
+  band into the target window (a criterion such as DIN 18041 or ANSI S12.60, or the room file's
+  own limits) and levels at receivers under their limits, by linear programming (whole units and
+  panels by mixed-integer programming). "Apply to the room" makes it one undoable edit.
+- **Daily exposure**: receivers with hours per day get LEX,8h (ISO 9612), the EU 2003/10/EC
+  action values and the OSHA and NIOSH doses in the report (`roomcalc report`).
 - **(stale)**: the room has a problem (shown in the strip at the bottom); the results are the
   last valid ones until it is fixed.
 

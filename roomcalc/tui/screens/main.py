@@ -28,12 +28,14 @@ from roomcalc.io.roomfile import check_room
 from roomcalc.tui.document import Document, convert_units
 from roomcalc.tui.messages import FieldEdited, MaterialWanted, RowAction
 from roomcalc.tui.widgets.keystrip import KeyStrip
+from roomcalc.tui.widgets.plan_view import PlanView
 from roomcalc.tui.widgets.plots import DistancePlot, RtPlot
 from roomcalc.tui.widgets.record_table import Column, RecordTable
 from roomcalc.tui.widgets.results import CompareTable, FindingsStrip, ReceiverTable, ReverbTable
 from roomcalc.tui.widgets.room_form import RoomForm, Unparsed
 
-EDIT_TABS = ("room", "surfaces", "objects", "sources", "receivers")
+EDIT_TABS = ("room", "surfaces", "objects", "sources", "receivers", "candidates")
+TAB_TITLES = {"candidates": "Treatments"}
 ROW_HELP = "Enter: edit cell   a: add   c: copy   x: delete   Ctrl+Up/Down: move   m: material"
 
 
@@ -57,11 +59,14 @@ class MainScreen(Screen):
         Binding("3", "edit_tab('objects')", "Objects", show=False, id="main.tab.objects"),
         Binding("4", "edit_tab('sources')", "Sources", show=False, id="main.tab.sources"),
         Binding("5", "edit_tab('receivers')", "Receivers", show=False, id="main.tab.receivers"),
+        Binding("6", "edit_tab('candidates')", "Treatments", show=False,
+                id="main.tab.candidates"),
         Binding("f5", "view_tab('v-reverb')", "Reverb", show=False, id="main.view.reverb"),
         Binding("f6", "view_tab('v-distance')", "Distance", show=False, id="main.view.distance"),
         Binding("f7", "view_tab('v-receivers')", "Levels", show=False, id="main.view.levels"),
         Binding("f8", "view_tab('v-compare')", "Before/after", show=False,
                 id="main.view.compare"),
+        Binding("f9", "view_tab('v-plan')", "Plan", show=False, id="main.view.plan"),
     ]
 
     # repaint=False: a reactive on the screen would otherwise repaint the whole screen on each
@@ -85,6 +90,8 @@ class MainScreen(Screen):
         self._surface_index: dict[int, int] = {}   # id(surface spec) -> its row
         self._tables_drawn = False
         self._catalog_values: dict[tuple, str] = {}   # (material id, bands) -> its alphas
+        self._criteria = None                  # the criteria library, read when first needed
+        self._plan_run = None                  # the plan last made (roomcalc.io.targets)
         self._controls_key = None              # sources and bands the distance selects show
 
     # ------------------------------------------------------------------ layout
@@ -98,7 +105,8 @@ class MainScreen(Screen):
                     with TabPane("1 Room", id="room"):
                         yield Lazy(RoomForm(id="room-form"))
                     for coll in EDIT_TABS[1:]:
-                        with TabPane(f"{EDIT_TABS.index(coll) + 1} {coll.capitalize()}",
+                        with TabPane(f"{EDIT_TABS.index(coll) + 1} "
+                                     f"{TAB_TITLES.get(coll, coll.capitalize())}",
                                      id=coll):
                             table = RecordTable(coll, self._columns(coll), help_text=ROW_HELP,
                                                 describe=self._describe, id=f"t-{coll}")
@@ -125,6 +133,8 @@ class MainScreen(Screen):
                                             CompareTable(id="compare-table"),
                                             Static("", id="compare-notes", markup=False),
                                             classes="pane-body"))
+                    with TabPane("Plan", id="v-plan"):
+                        yield Lazy(Vertical(PlanView(id="plan-view"), classes="pane-body"))
         yield FindingsStrip(id="findings")
         yield KeyStrip(id="keys")
 
@@ -156,10 +166,34 @@ class MainScreen(Screen):
                     Column("placement", "Placement", "choice", choices=tuple(PLACEMENT_Q),
                            hint="free, surface, edge, corner"),
                     Column("position", "Position x y z", "position")]
+        if coll == "candidates":
+            area = self.document.spec.unit_system.area_label
+            return [Column("name", "Name", optional=False),
+                    Column("surface", "Covers surface", "text",
+                           hint="a surface's name; empty: added as units"),
+                    Column("material", "Material", "material", show=self._show_material),
+                    Column("alpha", "alpha (cover)", "numbers", length=nb,
+                           show=lambda r: self._show_alpha(r) if r.surface else "",
+                           hint="one per band; typing here drops the material"),
+                    Column("absorption", f"{area} per unit", "numbers", length=nb,
+                           show=lambda r: "" if r.surface else self._show_absorption(r),
+                           hint="units: absorption area per unit"),
+                    Column("max_area", f"Up to [{area}]", "number",
+                           hint="cover: empty = the whole surface"),
+                    Column("max_count", "Up to [units]", "number", hint="units"),
+                    Column("cost_per_m2" if self.document.spec.units == "metric"
+                           else "cost_per_ft2", f"Cost per {area}", "number"),
+                    Column("cost_each", "Cost each", "number"),
+                    Column("step", f"Panel [{area}]", "number",
+                           hint="cover: whole panels of this area, e.g. 0.72")]
         return [Column("name", "Name", optional=False),
                 Column("position", "Position x y z", "position"),
                 Column("distances", "Distances to sources", "distances",
-                       hint="Source=3.2, Other=5")]
+                       hint="Source=3.2, Other=5"),
+                Column("hours", "Hours/day", "number",
+                       hint="working pattern: hours per day here (for daily exposure)"),
+                Column("source_hours", "Source hours", "distances",
+                       hint="hours each source runs meanwhile: Saw=2, Planer=1")]
 
     def on_mount(self) -> None:
         self._refresh_all()
@@ -209,6 +243,16 @@ class MainScreen(Screen):
                 name = m.name if m else "not in the catalogue"
                 return f"{rec.name}: {name}; {what} {self._values_of(rec, own)}"
             return f"{rec.name}: own values; {what} {self._values_of(rec, own)}"
+        if coll == "candidates":
+            if rec.surface:
+                what = (f"covers up to {rec.max_area:g} {u.area_label} of '{rec.surface}'"
+                        if rec.max_area is not None else f"may cover all of '{rec.surface}'")
+                values = f"alpha {self._values_of(rec, rec.alpha)}"
+            else:
+                what = ("added as units" + (f", up to {rec.max_count:g}"
+                                            if rec.max_count is not None else ""))
+                values = f"{u.area_label} per unit {self._values_of(rec, rec.absorption)}"
+            return f"{rec.name}: {what}; {values}"
         if coll == "sources":
             lw = " ".join(f"{x:g}" for x in rec.sound_power) if rec.sound_power else \
                 f"{rec.sound_power_dba} dB(A), {rec.spectrum} spectrum"
@@ -322,7 +366,7 @@ class MainScreen(Screen):
             label = title + (" (stale)" if self.stale and res is not None else "")
             if str(tab.label) != label:
                 tab.label = label
-        self._views_dirty = {"v-reverb", "v-distance", "v-receivers", "v-compare"}
+        self._views_dirty = {"v-reverb", "v-distance", "v-receivers", "v-compare", "v-plan"}
         if res is None:
             return
         self._show_view(self.query_one("#view", TabbedContent).active)
@@ -345,11 +389,21 @@ class MainScreen(Screen):
             self._show_distance()
         elif pane == "v-receivers":
             self.query_one(ReceiverTable).show(res)
-            self.query_one("#receiver-note", Static).update(
-                "" if res.receivers else "No receivers with sources yet: add them in the "
-                "Sources and Receivers tabs.")
+            note = "" if res.receivers else ("No receivers with sources yet: add them in the "
+                                             "Sources and Receivers tabs.")
+            from roomcalc.io import targets
+
+            try:
+                days = targets.exposures(self.document.spec, res)
+            except ValueError:
+                days = {}
+            if days:        # receivers with working hours: the daily exposure, with the caution
+                note = (note + "\n" if note else "") + targets.exposure_text(days)
+            self.query_one("#receiver-note", Static).update(note)
         elif pane == "v-compare":
             self._show_compare()
+        elif pane == "v-plan":
+            self._show_plan_setup()
 
     def on_tabbed_content_tab_activated(self, event: TabbedContent.TabActivated) -> None:
         pane = event.pane.id if event.pane is not None else None
@@ -417,6 +471,115 @@ class MainScreen(Screen):
         u = self.document.spec.unit_system
         plot.show(curves, bi, res.bands_hz, pts, u.length_label, u.length, self.stale, src)
 
+    # ------------------------------------------------------------------ treatment plan
+    @property
+    def criteria(self) -> dict:
+        if self._criteria is None:
+            from roomcalc.io.criteria import load_criteria
+
+            try:
+                self._criteria = load_criteria()
+            except RoomFileError as exc:
+                self.notify("Criteria library: " + "; ".join(str(p) for p in exc.problems[:3]),
+                            severity="error", markup=False)
+                self._criteria = {}
+        return self._criteria
+
+    def _show_plan_setup(self) -> None:
+        view = self._opt("#plan-view", PlanView)
+        if view is None:
+            return
+        u = self.document.spec.unit_system
+        view.show_setup(self.document.spec, self.criteria, u, u.area_label)
+        from roomcalc.io import targets
+
+        check_text = ""
+        if self.result is not None and not self.stale and self.document.spec.target is not None:
+            try:
+                check = targets.target_check(self.document.spec, self.result.room, self.result,
+                                             self.criteria, filename=self.document.name)
+            except (RoomFileError, ValueError) as exc:
+                check_text = f"Target: {getattr(exc, 'problems', [exc])[0]}"
+            else:
+                if check is not None:
+                    check_text = "The room now:\n" + targets.target_text(check)
+        view.show_check(check_text)
+        if self._plan_run is not None:
+            view.mark_stale()
+
+    def on_plan_view_target_changed(self, msg: PlanView.TargetChanged) -> None:
+        msg.stop()
+        from roomcalc.io.roomfile import TargetSpec
+
+        key, value = msg.key, msg.value
+        t = self.document.spec.target
+        current = None if t is None else {
+            "criterion": t.criterion or ("own" if (t.rt60_max is not None or
+                                                   t.rt60_min is not None) else "none"),
+            "method": t.plan_method, "objective": t.plan_objective}[key]
+        if value == current or (key == "criterion" and value == "own"):
+            return
+
+        def fn(spec):
+            if spec.target is None:
+                spec.target = TargetSpec()
+            if key == "criterion":
+                spec.target.criterion = None if value == "none" else value
+                spec.target.rt60_max = spec.target.rt60_min = None   # one or the other
+            else:
+                setattr(spec.target, key, value)
+        self.apply(fn, f"target: {key} {value}")
+
+    def on_plan_view_run(self, msg: PlanView.Run) -> None:
+        msg.stop()
+        from roomcalc.io import targets
+        from roomcalc.io.planning import resolve_goals
+
+        view = self.query_one("#plan-view", PlanView)
+        spec = self.document.spec
+        if self.stale or self.result is None:
+            view.show_message("Fix the room's problems first (see the strip below).")
+            return
+        if spec.target is None:
+            view.show_message("Pick what the room must reach first (the first list above), or "
+                              "give a [target] in the room file.")
+            return
+        room = self.result.room
+        try:
+            run = targets.make_plan(spec, room, self.catalog, self.criteria,
+                                    enabled=msg.enabled, filename=self.document.name)
+            goals = resolve_goals(spec, room, self.criteria, filename=self.document.name)
+        except RoomFileError as exc:
+            view.show_message("Cannot plan: " + "; ".join(
+                f"{p.where}: {p.message}" if p.where else p.message for p in exc.problems))
+            return
+        except ValueError as exc:
+            view.show_message(f"Cannot plan: {exc}")
+            return
+        self._plan_run = run
+        u = spec.unit_system
+        view.show_run(run, targets.window_of(goals), u.area, u.area_label)
+
+    def on_plan_view_apply(self, msg: PlanView.Apply) -> None:
+        msg.stop()
+        from dataclasses import fields
+
+        from roomcalc.io.planning import apply_plan
+
+        run = self._plan_run
+        if run is None:
+            return
+        treated = apply_plan(self.document.spec, run.plan, list(run.candidates))
+
+        def fn(spec):
+            for f in fields(spec):
+                setattr(spec, f.name, getattr(treated, f.name))
+        self._plan_run = None
+        self.apply(fn, "apply the treatment plan")
+        self.query_one("#plan-view", PlanView).show_message(
+            "The plan is applied to the room (Ctrl+Z takes it back); press r to check it.")
+        self._say("Plan applied to the room; Ctrl+Z takes it back.")
+
     # ------------------------------------------------------------------ before / after
     def _show_compare(self) -> None:
         head = self.query_one("#compare-head", Static)
@@ -481,6 +644,8 @@ class MainScreen(Screen):
             values["material"] = None
         if coll == "objects" and key == "absorption" and value is not None:
             values["material"] = None
+        if coll == "candidates" and key in ("alpha", "absorption") and value is not None:
+            values["material"] = None
         if coll == "sources":
             if key == "sound_power" and value is not None:
                 values.update(sound_power_dba=None, spectrum=None)
@@ -492,15 +657,26 @@ class MainScreen(Screen):
                 values["placement"] = None
             elif key == "placement" and value is not None:
                 values["directivity"] = None
-        if coll == "sources" and key == "name" and value != rec.name:
+        if key == "name" and value != rec.name and coll in ("sources", "surfaces", "receivers"):
             old = rec.name
 
-            def fn(spec):       # keep receivers' distances pointing at the renamed source
-                setattr(spec.sources[i], "name", value)
-                for r in spec.receivers:
-                    if old in r.distances:
-                        r.distances = {value if k == old else k: v for k, v in r.distances.items()}
-            self.apply(fn, f"rename source '{old}'")
+            def swap(d):
+                return {value if k == old else k: v for k, v in d.items()}
+
+            def fn(spec):       # what points at the renamed item follows it
+                setattr(getattr(spec, coll)[i], "name", value)
+                if coll == "sources":
+                    for r in spec.receivers:
+                        r.distances = swap(r.distances)
+                        r.source_hours = swap(r.source_hours)
+                elif coll == "surfaces":
+                    for c in spec.candidates:
+                        if c.surface == old:
+                            c.surface = value
+                elif spec.target is not None:
+                    spec.target.max_level_dba = swap(spec.target.max_level_dba)
+                    spec.target.max_level_db = swap(spec.target.max_level_db)
+            self.apply(fn, f"rename {coll[:-1]} '{old}'")
             return
 
         def fn(spec):
@@ -577,8 +753,9 @@ class MainScreen(Screen):
         from roomcalc.tui.screens.materials import MaterialChooser
 
         rec = self.document.items(coll)[i]
-        kind = "surface" if coll == "surfaces" else "object"
-        own = rec.alpha if coll == "surfaces" else rec.absorption
+        surface_like = coll == "surfaces" or (coll == "candidates" and rec.surface)
+        kind = "surface" if surface_like else "object"
+        own = rec.alpha if surface_like else rec.absorption
         cat = self.catalog.with_materials(self.document.spec.materials) \
             if self.document.spec.materials else self.catalog
 
@@ -586,10 +763,11 @@ class MainScreen(Screen):
             if choice is None:
                 return
             what, val = choice
+            own_key = "alpha" if surface_like else "absorption"
             if what == "material":
-                values = {"material": val, ("alpha" if coll == "surfaces" else "absorption"): None}
+                values = {"material": val, own_key: None}
             else:
-                values = {"material": None, ("alpha" if coll == "surfaces" else "absorption"): val}
+                values = {"material": None, own_key: val}
 
             def fn(spec):
                 item = getattr(spec, coll)[i]
@@ -634,6 +812,13 @@ class MainScreen(Screen):
 
     def action_view_tab(self, tab: str) -> None:
         self.query_one("#view", TabbedContent).active = tab
+        if tab == "v-plan":         # its keys (r, Space) work where the focus is
+
+            def focus():
+                grid = self._opt("#plan-candidates")
+                if grid is not None:
+                    grid.focus()
+            self.call_after_refresh(focus)
 
     def action_help(self) -> None:
         self.app.action_show_help_screen()

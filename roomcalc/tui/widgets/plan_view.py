@@ -1,0 +1,251 @@
+"""The treatment plan view: pick what the room must reach, tick the candidates to use, plan,
+see the result before and after, and apply it to the room.
+
+The view is told what to show (:meth:`PlanView.show_setup`, :meth:`PlanView.show_run`) and
+reports upward with messages; the screen makes the plan and changes the room.
+"""
+
+from __future__ import annotations
+
+import math
+
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal, VerticalScroll
+from textual.message import Message
+from textual.widgets import Button, Select, Static
+
+from roomcalc.tui.widgets.grid import CellGrid
+from roomcalc.tui.widgets.results import BandTable
+
+OWN = "own"            # the criterion option for the room file's own limits
+NONE = "none"          # no RT target
+
+
+def _f(x, nd=2) -> str:
+    return "-" if x is None or not math.isfinite(float(x)) else f"{float(x):.{nd}f}"
+
+
+class PlanRtTable(BandTable):
+    """RT60 before and after the plan, and the window it aims at."""
+
+    def show(self, bands, before, after, lo, hi) -> None:
+        self._columns(tuple(bands), "RT60 [s]")
+        self._row("before", before)
+        self._row("after the plan", after, style="bold")
+        if hi is not None:
+            self._row("at most", hi)
+        if lo is not None:
+            self._row("at least", lo)
+        self._flush()
+
+
+class PlanView(VerticalScroll):
+    """Criterion, method and objective; the candidates with a tick each; the plan."""
+
+    DEFAULT_CSS = """
+    PlanView { height: 1fr; }
+    PlanView #plan-controls, PlanView #plan-controls-2 { height: auto; }
+    PlanView #plan-controls Select { width: 1fr; }
+    PlanView #plan-controls Button { width: auto; min-width: 8; margin: 0 1; }
+    PlanView #plan-head, PlanView #plan-result { height: auto; padding: 0 1; }
+    PlanView #plan-check { height: auto; max-height: 12; padding: 0 1; color: $text-muted; }
+    PlanView #plan-candidates { height: auto; max-height: 8; }
+    PlanView #plan-items { height: auto; max-height: 8; }
+    PlanView #plan-reasons { height: auto; padding: 0 1; color: $warning; }
+    """
+
+    BINDINGS = [
+        Binding("space", "toggle", "Use or not", id="plan.toggle"),
+        Binding("r", "run", "Plan", id="plan.run"),
+    ]
+
+    class Run(Message):
+        """Make a plan with these candidates (names)."""
+
+        def __init__(self, enabled: set[str]) -> None:
+            super().__init__()
+            self.enabled = enabled
+
+    class Apply(Message):
+        """Apply the plan last shown to the room."""
+
+    class TargetChanged(Message):
+        """The user picked another criterion, method or objective."""
+
+        def __init__(self, key: str, value: str) -> None:
+            super().__init__()
+            self.key, self.value = key, value
+
+    def __init__(self, *, id: str | None = None) -> None:
+        super().__init__(id=id)
+        self.disabled_names: set[str] = set()
+        self._names: list[str] = []
+        self._crit_options: list = []
+        self._shown: dict | None = None     # what the controls show, as the room file has it
+
+    def compose(self) -> ComposeResult:
+        yield Static("", id="plan-head", markup=False)
+        with Horizontal(id="plan-controls"):
+            yield Select([("No RT target", NONE)], id="plan-criterion", allow_blank=False)
+            yield Select([("Eyring", "eyring"), ("Sabine", "sabine")], id="plan-method",
+                         allow_blank=False)
+            yield Select([("least cost", "cost"), ("least area", "area")],
+                         id="plan-objective", allow_blank=False)
+        with Horizontal(id="plan-controls-2"):
+            yield Button("Plan (r)", id="plan-run", variant="primary")
+            yield Button("Apply to the room", id="plan-apply", disabled=True)
+        yield CellGrid(cursor_type="row", zebra_stripes=True, show_row_labels=False,
+                       id="plan-candidates")
+        yield Static("", id="plan-result", markup=False)
+        yield CellGrid(cursor_type="row", zebra_stripes=True, show_row_labels=False,
+                       id="plan-items")
+        yield PlanRtTable(id="plan-rt")
+        yield Static("", id="plan-reasons", markup=False)
+        yield Static("", id="plan-check", markup=False)
+
+    def on_mount(self) -> None:
+        g = self.query_one("#plan-candidates", CellGrid)
+        for key, label, just in (("use", "use", "left"), ("name", "candidate", "left"),
+                                 ("where", "where", "left"), ("max", "up to", "right"),
+                                 ("cost", "cost", "right")):
+            g.add_column(label, key=key, justify=just)
+        items = self.query_one("#plan-items", CellGrid)
+        for key, label, just in (("what", "plan", "left"), ("where", "where", "left"),
+                                 ("amount", "how much", "right"), ("cost", "cost", "right")):
+            items.add_column(label, key=key, justify=just)
+        items.display = False
+        self.query_one("#plan-rt").display = False
+
+    # ------------------------------------------------------------------ downward
+    def show_setup(self, spec, criteria: dict, units, area_label: str) -> None:
+        """The target and candidates as the room file has them now."""
+        t = spec.target
+        # Set programmatically: no Changed messages (they would read as the user's edits).
+        crit = self.query_one("#plan-criterion", Select)
+        options = [("No RT target", NONE)]
+        if t is not None and (t.rt60_max is not None or t.rt60_min is not None):
+            options.append(("the room file's own limits", OWN))
+        options += [(f"{c.title} [{cid}]", cid) for cid, c in sorted(criteria.items())]
+        value = NONE
+        if t is not None and t.criterion:
+            value = t.criterion
+        elif t is not None and (t.rt60_max is not None or t.rt60_min is not None):
+            value = OWN
+        self._shown = {"criterion": value, "method": t.plan_method if t else "eyring",
+                       "objective": t.plan_objective if t else "cost"}
+        with crit.prevent(Select.Changed):
+            if options != self._crit_options:
+                crit.set_options(options)
+                self._crit_options = options
+            if crit.value != value:
+                crit.value = value
+        for sel_id, val in (("#plan-method", t.plan_method if t else "eyring"),
+                            ("#plan-objective", t.plan_objective if t else "cost")):
+            sel = self.query_one(sel_id, Select)
+            if sel.value != val:
+                with sel.prevent(Select.Changed):
+                    sel.value = val
+        levels = ", ".join(f"{k} <= {v:g} dB(A)" for k, v in (t.max_level_dba if t else {}).items())
+        self.query_one("#plan-head", Static).update(
+            "What the room must reach, and the cheapest treatment to get there. The "
+            "treatments are edited in tab 6; Space ticks one in or out, r plans."
+            + (f"\nLevel goals: {levels}" if levels else ""))
+        rows, self._names = [], []
+        cur = f" {t.currency}" if t is not None and t.currency else ""
+        for c in spec.candidates:
+            self._names.append(c.name)
+            if c.surface:
+                where = c.surface
+                most = "whole surface" if c.max_area is None else f"{c.max_area:g} {area_label}"
+                cost = "-" if c.area_cost is None else f"{c.area_cost:g}{cur}/{area_label}"
+            else:
+                where = "added units"
+                most = "any number" if c.max_count is None else f"{c.max_count:g}"
+                cost = "-" if c.cost_each is None else f"{c.cost_each:g}{cur} each"
+            rows.append(["[ ]" if c.name in self.disabled_names else "[x]", c.name, where, most,
+                         cost])
+        self.query_one("#plan-candidates", CellGrid).set_rows(rows, keys=self._names)
+
+    def show_check(self, text: str) -> None:
+        """The room as it is now against its target (the report's target section)."""
+        self.query_one("#plan-check", Static).update(text.rstrip())
+
+    def show_run(self, run, window, area, area_label: str) -> None:
+        """A plan (a PlanRun of roomcalc.io.targets) with the window (lo, hi) it aims at."""
+        p = run.plan
+        cur = f" {run.currency}" if run.currency else ""
+        head = ("The plan meets the target." if p.feasible
+                else "No plan meets the target; the best partial plan is shown.")
+        head += f"  Total {p.total_cost:.2f}{cur}, {p.total_area / area:.2f} {area_label}."
+        if not p.items:
+            head = ("The room already meets its target: nothing to add." if p.feasible
+                    else "No candidate helps.")
+        self.query_one("#plan-result", Static).update(head)
+        items = self.query_one("#plan-items", CellGrid)
+        items.set_rows([[it.candidate, it.surface or "added",
+                         f"{it.amount / area:.2f} {area_label}" if it.kind == "cover"
+                         else f"{it.amount:g} units", f"{it.cost:.2f}"] for it in p.items])
+        items.display = bool(p.items)
+        rt = self.query_one("#plan-rt", PlanRtTable)
+        lo, hi = window
+        rt.show(run.before.bands_hz, p.rt60_before, p.rt60_after, lo, hi)
+        rt.display = True
+        lines = [f"{name}: {b:.1f} -> {p.levels_after.get(name, float('nan')):.1f} dB(A)"
+                 for name, b in p.levels_before.items()]
+        lines += [f"! {r}" for r in p.reasons]
+        self.query_one("#plan-reasons", Static).update("\n".join(lines))
+        self.query_one("#plan-apply", Button).disabled = not p.items
+        self.call_after_refresh(self.query_one("#plan-result").scroll_visible, animate=False)
+
+    def show_message(self, text: str) -> None:
+        self.query_one("#plan-result", Static).update(text)
+        self.query_one("#plan-items").display = False
+        self.query_one("#plan-rt").display = False
+        self.query_one("#plan-reasons", Static).update("")
+        self.query_one("#plan-apply", Button).disabled = True
+
+    def mark_stale(self) -> None:
+        res = self.query_one("#plan-result", Static)
+        text = str(res.content)
+        if text and not text.startswith("(The room changed"):
+            res.update("(The room changed since this plan: press r to plan again.)\n" + text)
+            self.query_one("#plan-apply", Button).disabled = True
+
+    # ------------------------------------------------------------------ upward
+    def action_toggle(self) -> None:
+        g = self.query_one("#plan-candidates", CellGrid)
+        if not g.row_count:
+            return
+        name = self._names[g.cursor_row]
+        if name in self.disabled_names:
+            self.disabled_names.discard(name)
+        else:
+            self.disabled_names.add(name)
+        row = g.get_row_at(g.cursor_row)
+        row[0] = "[ ]" if name in self.disabled_names else "[x]"
+        rows = [g.get_row_at(i) for i in range(g.row_count)]
+        rows[g.cursor_row] = row
+        g.set_rows(rows, keys=self._names)
+
+    def action_run(self) -> None:
+        self.post_message(self.Run({n for n in self._names if n not in self.disabled_names}))
+
+    def on_button_pressed(self, event: Button.Pressed) -> None:
+        event.stop()
+        if event.button.id == "plan-run":
+            self.action_run()
+        elif event.button.id == "plan-apply":
+            self.post_message(self.Apply())
+
+    def on_select_changed(self, event: Select.Changed) -> None:
+        event.stop()
+        key = {"plan-criterion": "criterion", "plan-method": "method",
+               "plan-objective": "objective"}.get(event.select.id)
+        # Only the user's own choices are edits: a Select also reports the value it starts
+        # with, and values set from the room file.
+        if key is None or event.value is Select.NULL or self._shown is None \
+                or self._shown.get(key) == str(event.value):
+            return
+        self._shown[key] = str(event.value)
+        self.post_message(self.TargetChanged(key, str(event.value)))

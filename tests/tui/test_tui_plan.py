@@ -1,0 +1,124 @@
+"""The plan view: opening it changes nothing, a plan is made and shown, its 'after' RT is what
+the engine gives for the treated room, applying it is one undoable edit."""
+
+from __future__ import annotations
+
+import numpy as np
+from textual.widgets import Select
+
+from roomcalc.engine.analysis import evaluate
+from roomcalc.io.planning import apply_plan
+from roomcalc.io.roomfile import check_room, parse_spec, spec_to_toml
+from roomcalc.io.targets import make_plan
+from roomcalc.tui.app import AppConfig, make_app
+from roomcalc.tui.document import Document
+from roomcalc.tui.widgets.grid import CellGrid
+
+SIZE = (120, 40)
+
+ROOM = """\
+# An invented test room.
+version = 1
+title = "Plan test room"
+units = "metric"
+
+[shape]
+length = 9.0
+width = 7.0
+height = 3.0
+
+[[surfaces]]
+name = "Floor"
+face = "floor"
+material = "linoleum-vinyl-on-concrete"
+
+[[surfaces]]
+name = "Ceiling"
+face = "ceiling"
+material = "plaster-on-masonry"
+
+[[surfaces]]
+name = "Walls"
+area = 96.0
+material = "plaster-on-masonry"
+
+[target]
+method = "sabine"
+rt60_max = 1.2
+
+[[candidates]]
+name = "Ceiling tiles"
+surface = "Ceiling"
+material = "mineral-wool-25mm-high-density"
+cost_per_m2 = 40.0
+
+[[candidates]]
+name = "Wall panels"
+surface = "Walls"
+material = "mineral-wool-50mm-48kg"
+cost_per_m2 = 65.0
+"""
+
+
+async def _ready(pilot):
+    for _ in range(100):
+        await pilot.pause()
+        if pilot.app.screen.result is not None:
+            return
+
+
+async def test_plan_view_plans_applies_and_undoes(tmp_path, catalog):
+    path = tmp_path / "plan-room.toml"
+    path.write_text(ROOM, encoding="utf-8")
+    app = make_app(Document.open(path), catalog, AppConfig(offer_recovery=False,
+                                                           recovery_delay_s=3600))
+    async with app.run_test(size=SIZE) as pilot:
+        await _ready(pilot)
+        screen = app.screen
+        doc = screen.document
+        await pilot.press("f9")
+        for _ in range(20):
+            await pilot.pause()
+            if screen.query("#plan-view"):
+                break
+        # Opening the view is not an edit, and it shows the file's target.
+        assert not doc.modified and not doc.undo_stack
+        assert screen.query_one("#plan-criterion", Select).value == "own"
+        assert screen.query_one("#plan-method", Select).value == "sabine"
+        grid = screen.query_one("#plan-candidates", CellGrid)
+        assert [grid.get_row_at(i)[1] for i in range(grid.row_count)] == ["Ceiling tiles",
+                                                                         "Wall panels"]
+        grid.focus()
+        await pilot.press("r")
+        await pilot.pause()
+        run = screen._plan_run
+        assert run is not None and run.plan.feasible
+        # Independent of the view: the engine on the treated room file the plan makes.
+        spec = parse_spec(ROOM, str(path))
+        treated = apply_plan(spec, run.plan, list(run.candidates))
+        after = evaluate(check_room(treated, catalog)).rt60_s["sabine"]
+        assert np.all(after <= 1.2 + 1e-6)
+        rt = screen.query_one("#plan-rt", CellGrid)
+        shown_after = [float(x) for x in rt.get_row_at(1)[1:]]
+        assert shown_after == [round(float(x), 2) for x in after]
+        # The same plan as the command line's (same file, same catalogue).
+        cli = make_plan(spec, check_room(spec, catalog), catalog)
+        assert cli.plan.total_cost == run.plan.total_cost
+        # Untick the wall panels: the plan uses only the ceiling.
+        grid.move_cursor(row=1)
+        await pilot.press("space", "r")
+        await pilot.pause()
+        assert {it.candidate for it in screen._plan_run.plan.items} <= {"Ceiling tiles"}
+        await pilot.press("space", "r")          # both again
+        await pilot.pause()
+        last = screen._plan_run
+        await pilot.click("#plan-apply")
+        await pilot.pause()
+        assert doc.modified and [s.label for s in doc.undo_stack] == ["apply the treatment plan"]
+        assert spec_to_toml(doc.spec) == spec_to_toml(apply_plan(
+            spec, last.plan, list(last.candidates)))
+        res = evaluate(check_room(doc.spec, catalog))
+        assert np.all(res.rt60_s["sabine"] <= 1.2 + 1e-6)
+        await pilot.press("ctrl+z")
+        await pilot.pause()
+        assert not doc.modified and spec_to_toml(doc.spec) == spec_to_toml(spec)
