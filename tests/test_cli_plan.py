@@ -163,3 +163,26 @@ def test_plan_without_target_is_an_input_error(tmp_path, capsys):
     p = _room(tmp_path, text)
     code, _, err = run(capsys, "plan", str(p))
     assert code == 2 and "no [target] table" in err
+
+
+def test_example_classroom_against_ansi_s12_60(capsys, catalog):
+    """The demo classroom (178.5 m^3) against ANSI/ASA S12.60-2010 Part 1: at most 0.6 s in
+    each of 500, 1000 and 2000 Hz for a core learning space up to 283 m^3 (the standard's
+    limit, as REFERENCES.md gives it)."""
+    from conftest import EXAMPLES
+
+    path = EXAMPLES / "classroom.toml"
+    code, out, _ = run(capsys, "check", str(path))
+    assert code == 0
+    res = evaluate(read_room(path, catalog)[1])
+    rows = {ln.split()[0]: ln.split() for ln in out.splitlines()
+            if ln.strip().split()[:1] and ln.strip().split()[0] in ("500", "1k", "2k")}
+    assert set(rows) == {"500", "1k", "2k"}
+    for name, i in (("500", 2), ("1k", 3), ("2k", 4)):
+        est = float(res.rt60_s["eyring"][i])
+        assert rows[name][2] == "0.60" and rows[name][3] == f"{est:.2f}"
+        assert rows[name][-1] == ("pass" if est <= 0.6 else "fail")
+    code, out, _ = run(capsys, "plan", str(path), "--format", "json")
+    d = json.loads(out)
+    assert code == 0 and d["feasible"]
+    assert all(x <= 0.6 + 1e-6 for x in d["rt60_after_s"][2:5])

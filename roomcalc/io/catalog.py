@@ -11,7 +11,7 @@ import numpy as np
 from roomcalc.engine.bands import ALLOWED_BANDS_HZ, DEFAULT_BANDS_HZ
 from roomcalc.engine.ratings import WeightedAlpha, nrc, saa_octave_estimate, weighted_alpha
 from roomcalc.io import paths
-from roomcalc.io.checks import Checker, read_toml
+from roomcalc.io.checks import Checker, read_toml_file
 from roomcalc.io.errors import Problem, RoomFileError
 
 ID_PATTERN = re.compile(r"^[a-z0-9]+(-[a-z0-9]+)*$")
@@ -164,11 +164,7 @@ def parse_entries(entries: list, chk: Checker, where: str = "materials",
 def load_catalog_file(path) -> list[Material]:
     """Read one catalogue file; raises RoomFileError with every problem in it."""
     path = Path(path)
-    try:
-        text = path.read_text(encoding="utf-8")
-    except OSError as exc:
-        raise RoomFileError([Problem(str(path), "", f"cannot be read: {exc.strerror}")]) from None
-    data = read_toml(text, str(path))
+    data = read_toml_file(path)
     chk = Checker(str(path))
     chk.keys(data, "", ("materials",))
     mats = parse_entries(chk.array_of_tables(data, "materials"), chk)

@@ -6,11 +6,26 @@ import difflib
 import math
 import re
 import tomllib
+from pathlib import Path
 
 from roomcalc.io.errors import Problem
 
 _TOML_POS = re.compile(r"^(?P<msg>.*?)\s*\(at line (?P<line>\d+), column (?P<col>\d+)\)\s*$")
 _TOML_END = re.compile(r"^(?P<msg>.*?)\s*\(at end of document\)\s*$")
+
+
+def read_toml_file(path) -> dict:
+    """Read and parse a TOML data file (catalogue, criteria); an unreadable file, text that is
+    not UTF-8 or a syntax error becomes a RoomFileError naming the file."""
+    from roomcalc.io.errors import RoomFileError
+
+    try:
+        text = Path(path).read_text(encoding="utf-8")
+    except OSError as exc:
+        raise RoomFileError([Problem(str(path), "", f"cannot be read: {exc.strerror}")]) from None
+    except UnicodeDecodeError:
+        raise RoomFileError([Problem(str(path), "", "cannot be read: not UTF-8 text")]) from None
+    return read_toml(text, str(path))
 
 
 def read_toml(text: str, filename: str) -> dict:

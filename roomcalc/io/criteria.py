@@ -47,7 +47,7 @@ from roomcalc.engine.bands import ALLOWED_BANDS_HZ
 from roomcalc.engine.criteria import (ASSESS_MODES, CONFIDENCE, KINDS, Criterion, NoiseStep,
                                       Tolerance, VolumeStep)
 from roomcalc.io import paths
-from roomcalc.io.checks import Checker, read_toml
+from roomcalc.io.checks import Checker, read_toml_file
 from roomcalc.io.errors import Problem, RoomFileError
 
 ID_PATTERN = re.compile(r"^[a-z0-9]+(\.[a-z0-9]+)*(-[a-z0-9]+(\.[a-z0-9]+)*)*$")
@@ -122,13 +122,7 @@ def load_criteria(extra=()) -> dict[str, Criterion]:
 def load_criteria_file(path) -> list[Criterion]:
     """Read one criteria file; raises RoomFileError with every problem in it."""
     path = Path(path)
-    try:
-        text = path.read_text(encoding="utf-8")
-    except OSError as exc:
-        raise RoomFileError([Problem(str(path), "", f"cannot be read: {exc.strerror}")]) from None
-    except UnicodeDecodeError:
-        raise RoomFileError([Problem(str(path), "", "cannot be read: not UTF-8 text")]) from None
-    return parse_criteria(read_toml(text, str(path)), str(path))
+    return parse_criteria(read_toml_file(path), str(path))
 
 
 def parse_criteria(data: dict, filename: str) -> list[Criterion]:
