@@ -35,8 +35,12 @@ def _list(a, nd=None):
     return out
 
 
-def _wrap(text, first="  - ", rest="    "):
-    return textwrap.fill(text, WIDTH - 1, initial_indent=first, subsequent_indent=rest)
+def _wrap(text, first="  - ", rest="    ", width=None):
+    """Wrapped to the report's width (``width`` 0: one line, for a screen that wraps itself)."""
+    if width == 0:
+        return first + text
+    return textwrap.fill(text, (width or WIDTH) - 1, initial_indent=first,
+                         subsequent_indent=rest)
 
 
 class _Table:

@@ -122,3 +122,17 @@ async def test_plan_view_plans_applies_and_undoes(tmp_path, catalog):
         await pilot.press("ctrl+z")
         await pilot.pause()
         assert not doc.modified and spec_to_toml(doc.spec) == spec_to_toml(spec)
+        # The user's own limit, typed in the view: a wrong count is refused with the reason,
+        # one number sets every band (one undoable edit).
+        own = screen.query_one("#plan-own")
+        own.focus()
+        own.value = "1 2"
+        await pilot.press("enter")
+        await pilot.pause()
+        assert "give one (every band) or 6" in str(screen.query_one("#plan-own-error").render())
+        assert not doc.modified
+        own.value = "1.0"
+        await pilot.press("enter")
+        await pilot.pause()
+        assert doc.spec.target.rt60_max == 1.0 and doc.spec.target.criterion is None
+        assert [s.label for s in doc.undo_stack] == ["target: own RT60 limit"]

@@ -398,7 +398,7 @@ class MainScreen(Screen):
             except ValueError:
                 days = {}
             if days:        # receivers with working hours: the daily exposure, with the caution
-                note = (note + "\n" if note else "") + targets.exposure_text(days)
+                note = (note + "\n" if note else "") + targets.exposure_text(days, width=0)
             self.query_one("#receiver-note", Static).update(note)
         elif pane == "v-compare":
             self._show_compare()
@@ -502,7 +502,7 @@ class MainScreen(Screen):
                 check_text = f"Target: {getattr(exc, 'problems', [exc])[0]}"
             else:
                 if check is not None:
-                    check_text = "The room now:\n" + targets.target_text(check)
+                    check_text = "The room now:\n" + targets.target_text(check, width=0)
         view.show_check(check_text)
         if self._plan_run is not None:
             view.mark_stale()
@@ -512,6 +512,22 @@ class MainScreen(Screen):
         from roomcalc.io.roomfile import TargetSpec
 
         key, value = msg.key, msg.value
+        if key == "rt60_max":
+            vals = [float(x) for x in value.split()]
+            nb = len(self.document.spec.bands)
+            if len(vals) not in (1, nb):
+                self.query_one("#plan-view", PlanView).show_own_error(
+                    f"{len(vals)} values: give one (every band) or {nb}, one per band.")
+                return
+            limit = vals[0] if len(vals) == 1 else vals
+
+            def own(spec):
+                if spec.target is None:
+                    spec.target = TargetSpec()
+                spec.target.criterion = None            # one or the other
+                spec.target.rt60_max = limit
+            self.apply(own, "target: own RT60 limit")
+            return
         t = self.document.spec.target
         current = None if t is None else {
             "criterion": t.criterion or ("own" if (t.rt60_max is not None or

@@ -13,7 +13,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, VerticalScroll
 from textual.message import Message
-from textual.widgets import Button, Select, Static
+from textual.widgets import Button, Input, Select, Static
 
 from roomcalc.tui.widgets.grid import CellGrid
 from roomcalc.tui.widgets.results import BandTable
@@ -47,8 +47,11 @@ class PlanView(VerticalScroll):
     PlanView { height: 1fr; }
     PlanView #plan-controls, PlanView #plan-controls-2 { height: auto; }
     PlanView #plan-controls Select { width: 1fr; }
-    PlanView #plan-controls Button { width: auto; min-width: 8; margin: 0 1; }
+    PlanView #plan-controls-2 Select { width: 1fr; }
+    PlanView #plan-controls-2 Button { width: auto; min-width: 8; margin: 0 1; }
     PlanView #plan-head, PlanView #plan-result { height: auto; padding: 0 1; }
+    PlanView #plan-own { margin: 0 1; }
+    PlanView #plan-own-error { height: auto; color: $error; padding: 0 1; display: none; }
     PlanView #plan-check { height: auto; max-height: 12; padding: 0 1; color: $text-muted; }
     PlanView #plan-candidates { height: auto; max-height: 8; }
     PlanView #plan-items { height: auto; max-height: 8; }
@@ -88,13 +91,16 @@ class PlanView(VerticalScroll):
         yield Static("", id="plan-head", markup=False)
         with Horizontal(id="plan-controls"):
             yield Select([("No RT target", NONE)], id="plan-criterion", allow_blank=False)
+        yield Input(placeholder="or your own RT60 limit [s]: one value, or one per band",
+                    id="plan-own", compact=True)
+        yield Static("", id="plan-own-error", markup=False)
+        with Horizontal(id="plan-controls-2"):
             yield Select([("Eyring", "eyring"), ("Sabine", "sabine")], id="plan-method",
                          allow_blank=False)
             yield Select([("least cost", "cost"), ("least area", "area")],
                          id="plan-objective", allow_blank=False)
-        with Horizontal(id="plan-controls-2"):
             yield Button("Plan (r)", id="plan-run", variant="primary")
-            yield Button("Apply to the room", id="plan-apply", disabled=True)
+            yield Button("Apply", id="plan-apply", disabled=True)
         yield CellGrid(cursor_type="row", zebra_stripes=True, show_row_labels=False,
                        id="plan-candidates")
         yield Static("", id="plan-result", markup=False)
@@ -140,6 +146,14 @@ class PlanView(VerticalScroll):
                 self._crit_options = options
             if crit.value != value:
                 crit.value = value
+        own = self.query_one("#plan-own", Input)
+        text = "" if t is None or t.rt60_max is None else (
+            " ".join(f"{x:g}" for x in t.rt60_max) if isinstance(t.rt60_max, list)
+            else f"{t.rt60_max:g}" if not isinstance(t.rt60_max, dict)
+            else " ".join(f"{b}={x:g}" for b, x in t.rt60_max.items()))
+        if own.value != text and not own.has_focus:
+            with own.prevent(Input.Changed):
+                own.value = text
         for sel_id, val in (("#plan-method", t.plan_method if t else "eyring"),
                             ("#plan-objective", t.plan_objective if t else "cost")):
             sel = self.query_one(sel_id, Select)
@@ -230,6 +244,27 @@ class PlanView(VerticalScroll):
 
     def action_run(self) -> None:
         self.post_message(self.Run({n for n in self._names if n not in self.disabled_names}))
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        if event.input.id != "plan-own":
+            return
+        event.stop()
+        parts = event.value.replace(",", " ").split()
+        try:
+            values = [float(x) for x in parts]
+        except ValueError:
+            self.show_own_error("Only numbers, in seconds, separated by spaces.")
+            return
+        if not values or any(not (0 < v <= 20) for v in values):
+            self.show_own_error("Give limits above 0 and up to 20 s.")
+            return
+        self.show_own_error("")
+        self.post_message(self.TargetChanged("rt60_max", " ".join(f"{v:g}" for v in values)))
+
+    def show_own_error(self, text: str) -> None:
+        err = self.query_one("#plan-own-error", Static)
+        err.update(text)
+        err.display = bool(text)
 
     def on_button_pressed(self, event: Button.Pressed) -> None:
         event.stop()
