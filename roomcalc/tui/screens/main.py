@@ -12,7 +12,6 @@ from textual.binding import Binding
 from textual.containers import Horizontal, Vertical
 from textual.reactive import reactive
 from textual.css.query import NoMatches
-from textual.lazy import Lazy
 from textual.screen import Screen
 from textual.widgets import Select, Static, TabbedContent, TabPane
 
@@ -27,6 +26,7 @@ from roomcalc.io.report import comparison_method
 from roomcalc.io.roomfile import check_room
 from roomcalc.tui.document import Document, convert_units
 from roomcalc.tui.messages import FieldEdited, MaterialWanted, RowAction
+from roomcalc.tui.widgets.deferred import Deferred
 from roomcalc.tui.widgets.keystrip import KeyStrip
 from roomcalc.tui.widgets.plan_view import PlanView
 from roomcalc.tui.widgets.plots import DistancePlot, RtPlot
@@ -100,24 +100,24 @@ class MainScreen(Screen):
         with Horizontal(id="body"):
             with Vertical(id="left"):
                 with TabbedContent(id="edit", initial="surfaces"):
-                    # Hidden tabs are mounted just after the first screen is drawn (Lazy), so
+                    # Hidden tabs are mounted just after the first screen is drawn (Deferred), so
                     # the room appears sooner; each is filled when it is first shown.
                     with TabPane("1 Room", id="room"):
-                        yield Lazy(RoomForm(id="room-form"))
+                        yield Deferred(RoomForm(id="room-form"))
                     for coll in EDIT_TABS[1:]:
                         with TabPane(f"{EDIT_TABS.index(coll) + 1} "
                                      f"{TAB_TITLES.get(coll, coll.capitalize())}",
                                      id=coll):
                             table = RecordTable(coll, self._columns(coll), help_text=ROW_HELP,
                                                 describe=self._describe, id=f"t-{coll}")
-                            yield table if coll == "surfaces" else Lazy(table)
+                            yield table if coll == "surfaces" else Deferred(table)
             with Vertical(id="right"):
                 with TabbedContent(id="view"):
                     with TabPane("Reverberation", id="v-reverb"):
                         yield ReverbTable(id="reverb-table")
                         yield RtPlot(id="rt-plot")
                     with TabPane("Level vs distance", id="v-distance"):
-                        yield Lazy(Vertical(
+                        yield Deferred(Vertical(
                             Horizontal(Select([], prompt="source", id="dist-source",
                                               allow_blank=True),
                                        Select([], prompt="band", id="dist-band",
@@ -125,16 +125,16 @@ class MainScreen(Screen):
                                        id="distance-controls"),
                             DistancePlot(id="distance-plot"), classes="pane-body"))
                     with TabPane("Receivers", id="v-receivers"):
-                        yield Lazy(Vertical(ReceiverTable(id="receiver-table"),
+                        yield Deferred(Vertical(ReceiverTable(id="receiver-table"),
                                             Static("", id="receiver-note"),
                                             classes="pane-body"))
                     with TabPane("Before/after", id="v-compare"):
-                        yield Lazy(Vertical(Static("", id="compare-head"),
+                        yield Deferred(Vertical(Static("", id="compare-head"),
                                             CompareTable(id="compare-table"),
                                             Static("", id="compare-notes", markup=False),
                                             classes="pane-body"))
                     with TabPane("Plan", id="v-plan"):
-                        yield Lazy(Vertical(PlanView(id="plan-view"), classes="pane-body"))
+                        yield Deferred(Vertical(PlanView(id="plan-view"), classes="pane-body"))
         yield FindingsStrip(id="findings")
         yield KeyStrip(id="keys")
 
