@@ -395,7 +395,9 @@ def test_installed_layout_is_found(tmp_path, monkeypatch):
 
 
 def test_catalogue_does_not_read_the_criteria_folder(tmp_path, monkeypatch):
-    shipped = {p.resolve() for p in catalog_mod._files(paths.materials_dir())}
+    from roomcalc.io.checks import toml_files
+
+    shipped = {p.resolve() for p in toml_files([paths.materials_dir()])}
     assert shipped and not any("criteria" in p.parts for p in shipped)
     assert not set(load_criteria()) & set(catalog_mod.load_catalog(include_user=False).ids())
     # A user catalogue folder with a criteria subfolder holding a file that is not a catalogue

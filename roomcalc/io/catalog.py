@@ -11,7 +11,7 @@ import numpy as np
 from roomcalc.engine.bands import ALLOWED_BANDS_HZ, DEFAULT_BANDS_HZ
 from roomcalc.engine.ratings import WeightedAlpha, nrc, saa_octave_estimate, weighted_alpha
 from roomcalc.io import paths
-from roomcalc.io.checks import Checker, read_toml_file
+from roomcalc.io.checks import Checker, read_toml_file, toml_files
 from roomcalc.io.errors import Problem, RoomFileError
 
 ID_PATTERN = re.compile(r"^[a-z0-9]+(-[a-z0-9]+)*$")
@@ -173,26 +173,13 @@ def load_catalog_file(path) -> list[Material]:
     return mats
 
 
-def _files(folder: Path) -> list[Path]:
-    return sorted(folder.glob("*.toml")) if folder.is_dir() else []
-
-
 def load_catalog(extra=(), include_user: bool = True) -> Catalog:
     """The built-in catalogue, plus the user's folder and any extra files or folders.
 
     Every problem in every file is collected; a duplicate id is an error naming both files.
     """
-    files = _files(paths.materials_dir())
-    if include_user:
-        files += _files(paths.user_catalog_dir())
-    for p in extra:
-        p = Path(p)
-        if p.is_dir():
-            files += _files(p)
-        elif p.exists():
-            files.append(p)
-        else:
-            raise RoomFileError([Problem(str(p), "", "catalogue file not found")])
+    folders = [paths.materials_dir()] + ([paths.user_catalog_dir()] if include_user else [])
+    files = toml_files(folders, extra, "catalogue file")
     problems: list[Problem] = []
     cat = Catalog()
     for f in files:

@@ -14,6 +14,27 @@ _TOML_POS = re.compile(r"^(?P<msg>.*?)\s*\(at line (?P<line>\d+), column (?P<col
 _TOML_END = re.compile(r"^(?P<msg>.*?)\s*\(at end of document\)\s*$")
 
 
+def toml_files(folders, extra=(), what: str = "file") -> list[Path]:
+    """The ``*.toml`` files of ``folders`` (missing folders give none; the top level only, so
+    a subfolder such as ``criteria/`` is not read as part of its parent) and of ``extra``
+    files or folders given by the user, which must exist."""
+    from roomcalc.io.errors import RoomFileError
+
+    def of(folder: Path) -> list[Path]:
+        return sorted(folder.glob("*.toml")) if folder.is_dir() else []
+
+    files = [f for folder in folders for f in of(Path(folder))]
+    for p in extra:
+        p = Path(p)
+        if p.is_dir():
+            files += of(p)
+        elif p.exists():
+            files.append(p)
+        else:
+            raise RoomFileError([Problem(str(p), "", f"{what} not found")])
+    return files
+
+
 def read_toml_file(path) -> dict:
     """Read and parse a TOML data file (catalogue, criteria); an unreadable file, text that is
     not UTF-8 or a syntax error becomes a RoomFileError naming the file."""

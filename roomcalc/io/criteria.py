@@ -47,7 +47,7 @@ from roomcalc.engine.bands import ALLOWED_BANDS_HZ
 from roomcalc.engine.criteria import (ASSESS_MODES, CONFIDENCE, KINDS, Criterion, NoiseStep,
                                       Tolerance, VolumeStep)
 from roomcalc.io import paths
-from roomcalc.io.checks import Checker, read_toml_file
+from roomcalc.io.checks import Checker, read_toml_file, toml_files
 from roomcalc.io.errors import Problem, RoomFileError
 
 ID_PATTERN = re.compile(r"^[a-z0-9]+(\.[a-z0-9]+)*(-[a-z0-9]+(\.[a-z0-9]+)*)*$")
@@ -82,24 +82,12 @@ def criteria_dir() -> Path:
     return paths.materials_dir() / "criteria"
 
 
-def _files(folder: Path) -> list[Path]:
-    return sorted(folder.glob("*.toml")) if folder.is_dir() else []
-
-
 def load_criteria(extra=()) -> dict[str, Criterion]:
     """Every shipped criterion, plus those of extra files or folders, by id.
 
     Every problem in every file is collected; a duplicate id names both files.
     """
-    files = _files(criteria_dir())
-    for p in extra:
-        p = Path(p)
-        if p.is_dir():
-            files += _files(p)
-        elif p.exists():
-            files.append(p)
-        else:
-            raise RoomFileError([Problem(str(p), "", "criteria file not found")])
+    files = toml_files([criteria_dir()], extra, "criteria file")
     problems: list[Problem] = []
     out: dict[str, Criterion] = {}
     for f in files:
