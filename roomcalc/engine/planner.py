@@ -26,6 +26,9 @@ import numpy as np
 from roomcalc.engine.analysis import ALPHA_LOG_MAX, METHOD_TITLES, evaluate
 from roomcalc.engine.bands import band_constants
 from roomcalc.engine.model import Room, RoomObject, Surface
+# The same input checks as the reverberation formulas (same messages).
+from roomcalc.engine.reverb import _non_negative as _non_negative_array
+from roomcalc.engine.reverb import _positive as _positive_array
 
 OBJECTIVES = ("cost", "area")
 PLAN_METHODS = ("sabine", "eyring")
@@ -163,20 +166,6 @@ _LN10 = math.log(10.0)
 
 
 # --- public bounds ---------------------------------------------------------------------------
-
-def _positive_array(name, x):
-    a = np.asarray(x, dtype=float)
-    if not np.all(np.isfinite(a)) or np.any(a <= 0):
-        raise ValueError(f"{name}: must be finite and above 0")
-    return a
-
-
-def _non_negative_array(name, x):
-    a = np.asarray(x, dtype=float)
-    if not np.all(np.isfinite(a)) or np.any(a < 0):
-        raise ValueError(f"{name}: must be finite and 0 or more")
-    return a
-
 
 def sabine_required_absorption(rt60, volume, m=0.0, c=343.0) -> np.ndarray:
     """Absorption area at which Sabine's formula gives exactly ``rt60``.
