@@ -6,7 +6,7 @@ files. Material ids are kept only so that a room can be written back and shown.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
@@ -40,9 +40,13 @@ class Surface:
     count: int = 1
     face: str | None = None
     material: str | None = None
+    #: alpha with the people on it gone (an occupied audience area); None: not people
+    unoccupied_alpha: np.ndarray | None = None
 
     def __post_init__(self):
         object.__setattr__(self, "alpha", _array(self.alpha))
+        if self.unoccupied_alpha is not None:
+            object.__setattr__(self, "unoccupied_alpha", _array(self.unoccupied_alpha))
 
     @property
     def total_area(self) -> float:
@@ -57,9 +61,17 @@ class RoomObject:
     absorption: np.ndarray
     count: float = 1
     material: str | None = None
+    #: the object is, or includes, people (a pupil at a desk, a person standing)
+    occupant: bool = False
+    #: absorption per unit with its people gone (the empty desk); None with ``occupant``: the
+    #: object leaves with them
+    unoccupied_absorption: np.ndarray | None = None
 
     def __post_init__(self):
         object.__setattr__(self, "absorption", _array(self.absorption))
+        if self.unoccupied_absorption is not None:
+            object.__setattr__(self, "unoccupied_absorption",
+                               _array(self.unoccupied_absorption))
 
 
 @dataclass(frozen=True, eq=False)
@@ -101,3 +113,58 @@ class Room:
     @property
     def surface_area(self) -> float:
         return float(sum(s.total_area for s in self.surfaces))
+
+    @property
+    def has_occupants(self) -> bool:
+        """Whether any surface or object is marked as people."""
+        return (any(s.unoccupied_alpha is not None for s in self.surfaces)
+                or any(o.occupant for o in self.objects))
+
+
+def at_occupancy(room: Room, share: float) -> Room:
+    """The room with ``share`` of its people present (1: as described, 0: unoccupied).
+
+    Parameters
+    ----------
+    room : Room -- the room as described (its people all present)
+    share : float -- share of the people present, 0 to 1
+
+    Returns
+    -------
+    Room -- the same room with each people-marked item scaled
+
+    Notes
+    -----
+    A surface with an unoccupied counterpart takes
+    :math:`\alpha = \alpha_u + s(\alpha_o - \alpha_u)`; an object that is people with an
+    unoccupied counterpart likewise takes :math:`A = A_u + s(A_o - A_u)` per unit; one without a
+    counterpart (people alone) keeps its absorption per unit and counts :math:`s N` units.
+    Absorption is additive (Sabine), so a share of people adds that share of their absorption
+    (common practice).
+
+    Examples
+    --------
+    >>> r = Room((500,), 100.0, (Surface("w", 10.0, [0.1]),),
+    ...          objects=(RoomObject("pupils", [0.4], count=20, occupant=True),))
+    >>> at_occupancy(r, 0.5).objects[0].count
+    10.0
+    """
+    s = float(share)
+    if not (0.0 <= s <= 1.0):
+        raise ValueError(f"share: {share} must be from 0 to 1")
+    if s == 1.0 or not room.has_occupants:
+        return room
+    surfaces = tuple(
+        sf if sf.unoccupied_alpha is None else replace(
+            sf, alpha=sf.unoccupied_alpha + s * (sf.alpha - sf.unoccupied_alpha))
+        for sf in room.surfaces)
+    objects = []
+    for o in room.objects:
+        if not o.occupant:
+            objects.append(o)
+        elif o.unoccupied_absorption is not None:
+            objects.append(replace(o, absorption=o.unoccupied_absorption
+                                   + s * (o.absorption - o.unoccupied_absorption)))
+        elif s > 0:
+            objects.append(replace(o, count=o.count * s))
+    return replace(room, surfaces=surfaces, objects=tuple(objects))
