@@ -36,11 +36,15 @@ def as_floats(name: str, x) -> np.ndarray:
 
 def range_text(low=None, high=None, *, low_inclusive=True, high_inclusive=True,
                unit: str = "") -> str:
-    """The allowed range in words: "above 0", "0 or more", "0 to 1", "0 up to below 1"."""
+    """The allowed range in words: "above 0", "0 or more", "from 0 to 1", "0 or more and
+    below 1"."""
     if low is not None and high is not None:
-        lo = f"{low:g}" if low_inclusive else f"above {low:g}"
-        hi = f"{high:g}" if high_inclusive else f"below {high:g}"
-        text = f"from {lo} to {hi}" if (low_inclusive and high_inclusive) else f"{lo}, {hi}"
+        if low_inclusive and high_inclusive:
+            text = f"from {low:g} to {high:g}"
+        else:
+            lo = f"{low:g} or more" if low_inclusive else f"above {low:g}"
+            hi = f"at most {high:g}" if high_inclusive else f"below {high:g}"
+            text = f"{lo} and {hi}"
     elif low is not None:
         text = f"{low:g} or more" if low_inclusive else f"above {low:g}"
     elif high is not None:
