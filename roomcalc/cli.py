@@ -77,12 +77,6 @@ def _parser() -> argparse.ArgumentParser:
     return p
 
 
-def _load(path, catalog):
-    from roomcalc.io.roomfile import read_room
-
-    return read_room(path, catalog)
-
-
 def main(argv=None) -> int:
     parser = _parser()
     args = parser.parse_args(argv)
@@ -129,9 +123,8 @@ def _need_file(args, name: str):
 
 
 def _run(args) -> int:
-    from roomcalc.engine.analysis import compare, evaluate
-    from roomcalc.io import paths, report
     from roomcalc.io.catalog import load_catalog
+    from roomcalc.present import report
 
     catalog = load_catalog(getattr(args, "catalog", []))
 
@@ -147,109 +140,91 @@ def _run(args) -> int:
         return _plan(args, catalog)
 
     if args.command in ("report", "check"):
-        if args.demo:
-            path = paths.demo_room_path()
-        else:
-            path = _need_file(args, "file")
-            if path is None:
-                return EXIT_INPUT
-        spec, room = _load(path, catalog)
-        shown = "built-in demo room" if args.demo else str(path)
-        if args.command == "check":
-            result = evaluate(room)
-            counts = ", ".join(f"{n} {w if n == 1 else w + 's'}" for n, w in (
-                (len(room.surfaces), "surface"), (len(room.objects), "object"),
-                (len(room.sources), "source"), (len(room.receivers), "receiver")))
-            print(f"{shown}: ok ({counts})")
-            for w in result.warnings:
-                print(report._wrap(w.message, "  warning: ", "    "))
-            sys.stdout.write(_extras_text(spec, room, result, str(path)))
-            return EXIT_OK
-        result = evaluate(room, reverberant_model=args.reverberant, method=args.method)
-        if args.format == "json":
-            import json
-
-            from roomcalc.io import targets
-
-            data = report.result_dict(result)
-            check = targets.target_check(spec, room, result, filename=str(path))
-            if check is not None:
-                data["target"] = targets.target_dict(check)
-            days = targets.exposures(spec, result)
-            if days:
-                data["exposure"] = targets.exposure_dict(days)
-            sys.stdout.write(json.dumps(data, indent=2) + "\n")
-            return EXIT_OK
-        sys.stdout.write(report.REPORTERS[args.format](result, shown, spec.unit_system))
-        if args.format in ("text", "markdown"):
-            extra = _extras_text(spec, room, result, str(path))
-            if extra:
-                sys.stdout.write(("\n```\n" + extra + "```\n") if args.format == "markdown"
-                                 else "\n" + extra)
-        return EXIT_OK
+        return _report(args, catalog)
 
     if args.command == "compare":
-        if args.demo:
-            before, after = paths.demo_room_path(), paths.demo_treated_path()
-        elif args.before is None or args.after is None:
-            print("roomcalc compare: give two room files (BEFORE AFTER) or --demo",
-                  file=sys.stderr)
-            return EXIT_INPUT
-        else:
-            before, after = args.before, args.after
-        rb = evaluate(_load(before, catalog)[1])
-        ra = evaluate(_load(after, catalog)[1])
-        names = (Path(before).name, Path(after).name)
-        sys.stdout.write(report.compare_text(compare(rb, ra), names, args.format))
-        return EXIT_OK
+        return _compare(args, catalog)
     return EXIT_INPUT  # pragma: no cover - argparse rejects unknown commands
 
 
-def _extras_text(spec, room, result, filename: str) -> str:
-    """The target check and the daily exposure, when the room file asks for them."""
-    from roomcalc.io import targets
+def _room_path(args):
+    """The room file a report or check is about (the demo with --demo); None: none given."""
+    from roomcalc.io import paths
 
-    out = ""
-    check = targets.target_check(spec, room, result, filename=filename)
-    if check is not None:
-        out += targets.target_text(check)
-    days = targets.exposures(spec, result)
-    if days:
-        out += targets.exposure_text(days)
-    return out
+    if args.demo:
+        return paths.demo_room_path()
+    if args.file is None:
+        print(f"roomcalc {args.command}: give a room file or --demo", file=sys.stderr)
+    return args.file
+
+
+def _report(args, catalog) -> int:
+    from roomcalc.present import report
+    from roomcalc.study import Study
+
+    path = _room_path(args)
+    if path is None:
+        return EXIT_INPUT
+    shown = "built-in demo room" if args.demo else str(path)
+    if args.command == "check":
+        study = Study.from_file(path, catalog)
+        sys.stdout.write(report.check_text(study.answer(), shown))
+        return EXIT_OK
+    study = Study.from_file(path, catalog, method=args.method,
+                            reverberant_model=args.reverberant)
+    sys.stdout.write(report.report(study.answer(), args.format, shown, study.spec.unit_system))
+    return EXIT_OK
+
+
+def _compare(args, catalog) -> int:
+    from roomcalc.io import paths
+    from roomcalc.present import report
+    from roomcalc.study import Study
+
+    if args.demo:
+        before, after = paths.demo_room_path(), paths.demo_treated_path()
+    elif args.before is None or args.after is None:
+        print("roomcalc compare: give two room files (BEFORE AFTER) or --demo",
+              file=sys.stderr)
+        return EXIT_INPUT
+    else:
+        before, after = args.before, args.after
+    first = Study.from_file(before, catalog)
+    rb = first.evaluate()
+    # The room after is evaluated by the formula in force before, like for like.
+    ra = Study.from_file(after, catalog, method=rb.method).evaluate()
+    names = (Path(before).name, Path(after).name)
+    sys.stdout.write(report.compare_report(Study.compare(rb, ra), names, args.format))
+    return EXIT_OK
 
 
 def _plan(args, catalog) -> int:
     import json
 
-    from roomcalc.engine.analysis import evaluate
-    from roomcalc.io import targets
-    from roomcalc.io.planning import apply_plan, resolve_goals
-    from roomcalc.io.roomfile import save_spec
+    from roomcalc.present import sections
+    from roomcalc.study import Study
 
-    spec, room = _load(args.file, catalog)
-    if spec.target is None:
+    study = Study.from_file(args.file, catalog)
+    if study.spec.target is None:
         print(f"roomcalc plan: {args.file} has no [target] table: say what the room must "
               "reach (criterion = \"<id>\", or rt60_max = [...], or max_level_dba = {...})",
               file=sys.stderr)
         return EXIT_INPUT
-    run = targets.make_plan(spec, room, catalog, objective=args.objective, filename=args.file)
-    goals = resolve_goals(spec, room, filename=args.file)
-    treated = None
+    answer = study.answer()
+    run = study.plan(objective=args.objective, result=answer.result)
     if args.write:
-        treated = apply_plan(spec, run.plan, list(run.candidates))
-        save_spec(treated, Path(args.write))
+        study.write_treated(run, args.write)
+    u = study.spec.unit_system
     if args.format == "json":
-        data = targets.plan_dict(run, spec.unit_system)
+        data = sections.plan_dict(run, u)
         if args.write:
             data["written"] = str(args.write)
-        sys.stdout.write(json.dumps(data, indent=2) + "\n")
+        sys.stdout.write(json.dumps(data, indent=2, allow_nan=False) + "\n")
     else:
-        sys.stdout.write(targets.plan_text(run, spec.unit_system, targets.window_of(goals)))
-        days_before = targets.exposures(spec, run.before)
-        if days_before:
-            after = targets.exposures(spec, evaluate(run.after_room))
-            sys.stdout.write(targets.exposure_text(days_before, after))
+        sys.stdout.write(sections.plan_text(run, u))
+        if answer.exposures:
+            after = study.answer(study.after_room(run)).exposures
+            sys.stdout.write(sections.exposure_text(answer.exposures, after))
         if args.write:
             print(f"Treated room written to {args.write}")
     return EXIT_OK if run.plan.feasible else 1

@@ -88,7 +88,7 @@ def _loaded_after(code: str) -> set[str]:
 
 @pytest.mark.parametrize("code", [
     "import roomcalc",
-    "import roomcalc.engine.analysis, roomcalc.io.roomfile, roomcalc.io.report, roomcalc.cli",
+    "import roomcalc.engine.analysis, roomcalc.io.roomfile, roomcalc.study, roomcalc.present.report, roomcalc.cli",
     "import io, contextlib\nfrom roomcalc.cli import main\n"
     "with contextlib.redirect_stdout(io.StringIO()):\n    assert main(['report', '--demo']) == 0",
 ])

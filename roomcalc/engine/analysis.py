@@ -102,8 +102,9 @@ class RoomResult:
     mean_alpha: np.ndarray
     rt60_s: dict[str, np.ndarray]
     unavailable: dict[str, str]
+    method: str
+    method_reason: str
     recommended: str
-    recommended_reason: str
     room_constant_m2: np.ndarray
     schroeder_hz: np.ndarray
     reverberant_model: str
@@ -114,8 +115,8 @@ class RoomResult:
     axis_alpha: np.ndarray | None = field(default=None)
 
     @property
-    def rt60_recommended(self) -> np.ndarray:
-        return self.rt60_s[self.recommended]
+    def rt60_in_force(self) -> np.ndarray:
+        return self.rt60_s[self.method]
 
     @cached_property
     def receivers(self) -> tuple[ReceiverResult, ...]:
@@ -322,6 +323,7 @@ def evaluate(room: Room, reverberant_model: str = "classic", method: str | None 
         recommended = "sabine"
         reason = (f"mean alpha at 500-1000 Hz is {abar_mid:.2f}, a live room where Sabine "
                   "and Eyring agree closely")
+    engine_choice = recommended
     if method is not None:
         if method not in rt:
             raise ValueError(f"method: {METHOD_TITLES[method]} is unavailable for this room: "
@@ -370,7 +372,8 @@ def evaluate(room: Room, reverberant_model: str = "classic", method: str | None 
         absorption_area_m2=a_tot, surface_absorption_m2=a_surf, object_absorption_m2=a_obj,
         air_attenuation_db_per_m=att, air_m_per_m=m, speed_of_sound_m_s=c,
         mean_alpha=a_tot / s_tot, rt60_s=rt, unavailable=unavailable,
-        recommended=recommended, recommended_reason=reason, room_constant_m2=r_const,
+        method=recommended, method_reason=reason, recommended=engine_choice,
+        room_constant_m2=r_const,
         schroeder_hz=f_s, reverberant_model=reverberant_model,
         sources=src_results, receiver_arrays=rec_arrays,
         warnings=tuple(found), cautions=tuple(cautions), axis_alpha=axis_alpha)
@@ -483,7 +486,7 @@ def distance_curves(result: RoomResult, source: str, distances_m=None, points: i
         distances_m = np.geomspace(0.1, max(far, 0.2), points)
     d = np.asarray(distances_m, dtype=float)
     tot, dr, rv = field_mod.distance_curve(src.sound_power_db, src.directivity, d,
-                                           result.room_constant_m2, rt60=result.rt60_recommended,
+                                           result.room_constant_m2, rt60=result.rt60_in_force,
                                            volume=result.volume_m3,
                                            model=result.reverberant_model)
     bands = result.bands_hz
@@ -509,6 +512,7 @@ class Comparison:
 
     before: RoomResult
     after: RoomResult
+    method: str
     rt60_change_s: dict[str, np.ndarray]
     reverberant_reduction_db: np.ndarray
     receivers: tuple[ReceiverChange, ...]
@@ -567,7 +571,11 @@ def compare(before: RoomResult, after: RoomResult) -> Comparison:
                         f"reverberant field falls by {-d_rev:.1f} dB(A). Absorption cannot "
                         "reduce direct sound; a screen, an enclosure or distance can.")
         changes.append(ReceiverChange(ra.name, d_band, float(d_a), float(d_rev), inside))
-    return Comparison(before, after, rt_change, red, tuple(changes), tuple(notes))
+    method = before.method
+    if method not in after.rt60_s:
+        raise ValueError(f"method: {METHOD_TITLES[method]}, the formula in force for the room "
+                         f"before, is unavailable for the room after: {after.unavailable[method]}")
+    return Comparison(before, after, method, rt_change, red, tuple(changes), tuple(notes))
 
 
 def batch_reverberation(volume, areas, alphas, object_absorption=0.0, m=0.0, c=343.0):

@@ -48,6 +48,7 @@ from roomcalc.engine.bands import NOMINAL_OCTAVES_HZ
 
 KINDS = ("fixed", "by-volume-steps", "formula-log-volume", "formula-cube-root")
 ASSESS_MODES = ("each-band", "mean-of-bands")
+OCCUPANCIES = ("unoccupied", "occupied", "as-described")
 TOLERANCE_KINDS = ("factor", "seconds")
 #: Weakest provenance a verdict rests on: a published value, a recalled one, or the user's own.
 CONFIDENCE = ("source", "memory", "user")
@@ -131,9 +132,25 @@ class Criterion:
     information: str = ""
     notes: str = ""
     file: str = ""
+    #: the occupancy the criterion is assessed at: "unoccupied" (furnished, people removed),
+    #: "occupied" (``occupied_share`` of the people present) or "as-described" (the room as
+    #: its file gives it)
+    occupancy: str = "as-described"
+    occupied_share: float = 1.0
+    occupancy_source: str = ""
 
     def __post_init__(self):
         _check_criterion(self)
+
+    @property
+    def assessed_share(self) -> float | None:
+        """Share of the room's people present when it is assessed (0: unoccupied); None: the
+        room as described."""
+        if self.occupancy == "unoccupied":
+            return 0.0
+        if self.occupancy == "occupied":
+            return float(self.occupied_share)
+        return None
 
 
 def _check_criterion(c: Criterion) -> None:

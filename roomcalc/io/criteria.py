@@ -44,7 +44,8 @@ import re
 from pathlib import Path
 
 from roomcalc.engine.bands import ALLOWED_BANDS_HZ
-from roomcalc.engine.criteria import (ASSESS_MODES, CONFIDENCE, KINDS, Criterion, NoiseStep,
+from roomcalc.engine.criteria import (ASSESS_MODES, CONFIDENCE, KINDS, OCCUPANCIES, Criterion,
+                                      NoiseStep,
                                       Tolerance, VolumeStep)
 from roomcalc.io import paths
 from roomcalc.io.checks import Checker, read_toml_file, toml_files
@@ -62,7 +63,8 @@ TOLERANCE_FACTOR_MAX = 5.0
 
 COMMON_KEYS = ("id", "title", "edition", "source", "provenance", "confidence", "governs", "kind",
                "assess", "bands", "volume_min", "volume_max", "not_applicable_note",
-               "background_noise", "information", "notes")
+               "background_noise", "information", "notes", "occupancy", "occupied_share",
+               "occupancy_source")
 KIND_KEYS = {
     "fixed": ("rt60_max", "rt60_min"),
     "by-volume-steps": ("steps",),
@@ -186,6 +188,16 @@ def _entry(e: dict, w: str, chk: Checker) -> Criterion | None:
         chk.add(f"{w}.volume_max", f"volume range inverted: volume_max ({vmax:g} m^3) must be "
                 f"above volume_min ({vmin:g} m^3)")
     background = _noise_steps(e, w, chk)
+    occupancy = chk.text(e, "occupancy", w, default="as-described", choices=OCCUPANCIES)
+    share = chk.number(e, "occupied_share", w, low=0.0, high=1.0, low_open=True, default=1.0,
+                       unit="share of the people present")
+    if "occupied_share" in e and occupancy != "occupied":
+        chk.add(f"{w}.occupied_share", "is used only with occupancy = \"occupied\"")
+    occ_source = chk.text(e, "occupancy_source", w, default="")
+    if occupancy in ("unoccupied", "occupied") and not occ_source:
+        chk.add(f"{w}.occupancy_source", "is required with occupancy = "
+                f"\"{occupancy}\": where the publication states it, marked [source] or "
+                "[memory]")
     if kind is None or bands is None or assess is None or vmin is None or vmax is None:
         return None
     mean = assess == "mean-of-bands"
@@ -251,6 +263,9 @@ def _entry(e: dict, w: str, chk: Checker) -> Criterion | None:
         return Criterion(id=cid, confidence=confidence, kind=kind, assess=assess,
                          bands_hz=tuple(float(b) for b in bands), volume_min=float(vmin),
                          volume_max=float(vmax), background=background, file=chk.filename,
+                         occupancy=occupancy or "as-described",
+                         occupied_share=1.0 if share is None else float(share),
+                         occupancy_source=occ_source or "",
                          **text, **info, **params)
     except ValueError as exc:                   # a combination the checks above missed
         chk.add(w, str(exc))

@@ -17,7 +17,6 @@ from roomcalc.io import paths
 from roomcalc.io.atomic import write_text_atomic
 from roomcalc.io.roomfile import (CandidateSpec, ObjectSpec, ReceiverSpec, RoomSpec, ShapeSpec,
                                   SourceSpec, SurfaceSpec, parse_spec, spec_to_toml)
-from roomcalc.io.units import UNITS
 
 COLLECTIONS = ("surfaces", "objects", "sources", "receivers", "candidates")
 NEW_ITEM = {
@@ -277,40 +276,3 @@ def discard_recovery(path: Path | None) -> None:
         os.unlink(recovery_path(path))
     except FileNotFoundError:
         pass
-
-
-def convert_units(spec: RoomSpec, to: str) -> None:
-    """Re-express every length, area, volume, temperature and absorption in other units."""
-    src, dst = UNITS[spec.units], UNITS[to]
-    if src.name == dst.name:
-        return
-    f = src.length / dst.length
-
-    def L(x):
-        return None if x is None else round(x * f, 4)
-
-    def A(x):
-        return None if x is None else round(x * f * f, 4)
-
-    sh = spec.shape
-    sh.length, sh.width, sh.height = L(sh.length), L(sh.width), L(sh.height)
-    sh.volume = None if sh.volume is None else round(sh.volume * f ** 3, 3)
-    if spec.air.temperature is not None:
-        spec.air.temperature = round(dst.temperature_from_c(src.temperature_to_c(
-            spec.air.temperature)), 2)
-    for s in spec.surfaces:
-        s.area = A(s.area)
-    for o in spec.objects:
-        if o.absorption is not None:
-            o.absorption = [A(x) for x in o.absorption]
-    for s in spec.sources:
-        if s.position is not None:
-            s.position = [L(x) for x in s.position]
-    for r in spec.receivers:
-        if r.position is not None:
-            r.position = [L(x) for x in r.position]
-        r.distances = {k: L(v) for k, v in r.distances.items()}
-    from roomcalc.io.planning import convert_candidate_units
-
-    convert_candidate_units(spec, to)       # areas, costs per area, absorption per unit
-    spec.units = to

@@ -17,6 +17,7 @@ from types import SimpleNamespace
 import pytest
 
 from roomcalc.engine.analysis import METHOD_TITLES, evaluate
+from roomcalc.study import chosen_method
 from roomcalc.io.errors import RoomFileError
 from roomcalc.io.roomfile import check_room, read_room, spec_to_toml
 
@@ -55,13 +56,13 @@ def engine(tmp_path, catalog):
         path = tmp_path / "engine" / f"room-{next(counter)}.toml"
         path.parent.mkdir(exist_ok=True)
         path.write_text(spec_to_toml(spec), encoding="utf-8")
-        _, room = read_room(path, catalog)
-        return evaluate(room)
+        spec, room = read_room(path, catalog)
+        return evaluate(room, method=chosen_method(spec))     # the formula the file chooses
 
     def rt_text(res, band: int = 500, method: str | None = None) -> str:
         """The RT of ``method`` (default: the recommended one) at ``band``, as the table shows
         it (2 decimals)."""
-        k = method or res.recommended
+        k = method or res.method
         return f"{float(res.rt60_s[k][list(res.bands_hz).index(band)]):.2f}"
 
     def problems(spec) -> list:

@@ -11,7 +11,8 @@ import os
 
 from roomcalc.io.roomfile import parse_spec, spec_to_toml
 from roomcalc.tui.app import AppConfig, make_app
-from roomcalc.tui.document import Document, convert_units, find_recovery, recovery_path
+from roomcalc.study.edits import convert_units
+from roomcalc.tui.document import Document, find_recovery, recovery_path
 from roomcalc.tui.screens.dialogs import Ask
 from roomcalc.tui.screens.main import MainScreen
 from roomcalc.tui.screens.materials import MaterialChooser
@@ -49,7 +50,7 @@ def _surfaces(app):
 def _assert_reverb_matches(reverb, res, engine):
     """The recommended row and every band of it, and each method's 500 Hz value."""
     title, by_band = reverb["recommended"]
-    assert title == engine.titles[res.recommended]
+    assert title == engine.titles[res.method]
     for b in res.bands_hz:
         assert by_band[b] == engine.rt_text(res, b), b
     for k in res.rt60_s:

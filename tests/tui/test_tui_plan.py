@@ -9,7 +9,7 @@ from textual.widgets import Select
 from roomcalc.engine.analysis import evaluate
 from roomcalc.io.planning import apply_plan
 from roomcalc.io.roomfile import check_room, parse_spec, spec_to_toml
-from roomcalc.io.targets import make_plan
+from roomcalc.study import Study
 from roomcalc.tui.app import AppConfig, make_app
 from roomcalc.tui.document import Document
 from roomcalc.tui.widgets.grid import CellGrid
@@ -102,7 +102,7 @@ async def test_plan_view_plans_applies_and_undoes(tmp_path, catalog):
         shown_after = [float(x) for x in rt.get_row_at(1)[1:]]
         assert shown_after == [round(float(x), 2) for x in after]
         # The same plan as the command line's (same file, same catalogue).
-        cli = make_plan(spec, check_room(spec, catalog), catalog)
+        cli = Study(spec, catalog).plan()
         assert cli.plan.total_cost == run.plan.total_cost
         # Untick the wall panels: the plan uses only the ceiling.
         grid.move_cursor(row=1)

@@ -13,7 +13,6 @@ import math
 from textual.widgets import Input
 
 from roomcalc.engine.analysis import compare
-from roomcalc.io.report import comparison_method
 from roomcalc.tui.app import AppConfig, make_app
 from roomcalc.tui.screens.materials import MaterialChooser
 from roomcalc.tui.widgets.grid import CellGrid
@@ -113,7 +112,7 @@ def test_compare_view(snap_compare, catalog, engine):
         for key, column in table.columns.items():
             longest = max(len(str(c)) for c in [column.label, *table.get_column(key)])
             assert column.content_width >= longest, (str(column.label), column.content_width)
-        method = comparison_method(compare(before, after))
+        method = compare(before, after).method   # the formula in force before
         col = 1 + list(before.bands_hz).index(500)
         assert rows[0][0] == f"RT60 {engine.titles[method]} before [s]"
         assert rows[0][col] == engine.rt_text(before, 500, method)

@@ -10,7 +10,7 @@ from textual.coordinate import Coordinate
 from roomcalc.tui.widgets.grid import CellGrid
 
 from roomcalc.io.roomfile import SurfaceSpec, parse_spec
-from roomcalc.tui.document import convert_units
+from roomcalc.study.edits import convert_units
 from roomcalc.tui.messages import FieldEdited, MaterialWanted, RowAction
 from roomcalc.tui.screens.materials import MaterialChooser
 from roomcalc.tui.widgets.record_table import Column, RecordTable

@@ -5,7 +5,6 @@ from __future__ import annotations
 
 import time
 
-import numpy as np
 from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding
@@ -15,16 +14,17 @@ from textual.css.query import NoMatches
 from textual.screen import Screen
 from textual.widgets import Select, Static, TabbedContent, TabPane
 
-from roomcalc.engine.analysis import RoomResult, compare, distance_curves, evaluate
+from roomcalc.engine.analysis import METHOD_TITLES, RoomResult, distance_curves
 from roomcalc.engine.bands import a_weighted_total
 from roomcalc.engine.field import PLACEMENT_Q
 from roomcalc.engine.model import FACES
 from roomcalc.engine.spectra import SPECTRUM_SHAPES
 from roomcalc.io.catalog import Catalog
 from roomcalc.io.errors import RoomFileError
-from roomcalc.io.report import comparison_method
-from roomcalc.io.roomfile import check_room
-from roomcalc.tui.document import Document, convert_units
+from roomcalc.present import sections
+from roomcalc.study import Answer, Study
+from roomcalc.study.edits import change_bands, convert_units, set_item_fields
+from roomcalc.tui.document import Document
 from roomcalc.tui.messages import FieldEdited, MaterialWanted, RowAction
 from roomcalc.tui.widgets.deferred import Deferred
 from roomcalc.tui.widgets.keystrip import KeyStrip
@@ -80,6 +80,7 @@ class MainScreen(Screen):
         self.problems: list[str] = []
         self.stale = False
         self.pinned: RoomResult | None = None
+        self.answer: Answer | None = None      # the last valid answer (with self.result)
         self.reverberant_model = "classic"
         self.last_update_s = 0.0       # engine + check time of the last recompute [s]
         self._unparsed: dict[str, str] = {}    # room-form fields holding text, not a number
@@ -328,15 +329,23 @@ class MainScreen(Screen):
             bar.update(line, layout=False)
 
     # ------------------------------------------------------------------ computing
+    @property
+    def study(self) -> Study:
+        """The core's view of the room being edited (the document's spec as it is now)."""
+        doc = self.document
+        return Study(doc.spec, self.catalog,
+                     criteria=self.criteria if doc.spec.target is not None else None,
+                     filename=doc.name, reverberant_model=self.reverberant_model)
+
     def recompute(self) -> None:
         """Check the room as a file would be checked, evaluate it, and show the result. On a
         problem the last valid result stays, marked stale."""
         t0 = time.perf_counter()
-        doc = self.document
         unparsed = self._unparsed
         try:
-            room = check_room(doc.spec, self.catalog, doc.name)
-            result = evaluate(room, reverberant_model=self.reverberant_model)
+            study = self.study
+            room = study.check()
+            result = study.evaluate(room)
             self.problems = [f"{k}: '{v}' is not a number" for k, v in unparsed.items()]
         except RoomFileError as exc:
             self.problems = [f"{p.where}: {p.message}" if p.where else p.message
@@ -349,9 +358,19 @@ class MainScreen(Screen):
         self.last_update_s = time.perf_counter() - t0
         self.stale = bool(self.problems)
         if result is not None:
+            self.answer = None          # the target and exposure are made when shown
+            self._study = study
             self.result = result          # the watch method shows it
         else:
             self._show(self.result)
+
+    def current_answer(self) -> Answer:
+        """The answer of the last valid room: its target check and daily exposure, made when
+        first asked for after an edit. Raises RoomFileError or ValueError when the target
+        cannot be judged (an unknown criterion, one that does not apply)."""
+        if self.answer is None or self.answer.result is not self.result:
+            self.answer = self._study.answer(result=self.result)
+        return self.answer
 
     def watch_result(self, result: RoomResult | None) -> None:
         self._show(result)
@@ -391,14 +410,12 @@ class MainScreen(Screen):
             self.query_one(ReceiverTable).show(res)
             note = "" if res.receivers else ("No receivers with sources yet: add them in the "
                                              "Sources and Receivers tabs.")
-            from roomcalc.io import targets
-
             try:
-                days = targets.exposures(self.document.spec, res)
-            except ValueError:
+                days = self._study.answer(result=res).exposures if not self.stale else {}
+            except (RoomFileError, ValueError):
                 days = {}
             if days:        # receivers with working hours: the daily exposure, with the caution
-                note = (note + "\n" if note else "") + targets.exposure_text(days, width=0)
+                note = (note + "\n" if note else "") + sections.exposure_text(days, width=0)
             self.query_one("#receiver-note", Static).update(note)
         elif pane == "v-compare":
             self._show_compare()
@@ -491,18 +508,16 @@ class MainScreen(Screen):
             return
         u = self.document.spec.unit_system
         view.show_setup(self.document.spec, self.criteria, u, u.area_label)
-        from roomcalc.io import targets
-
         check_text = ""
         if self.result is not None and not self.stale and self.document.spec.target is not None:
             try:
-                check = targets.target_check(self.document.spec, self.result.room, self.result,
-                                             self.criteria, filename=self.document.name)
+                check = self.current_answer().target
             except (RoomFileError, ValueError) as exc:
                 check_text = f"Target: {getattr(exc, 'problems', [exc])[0]}"
             else:
                 if check is not None:
-                    check_text = "The room now:\n" + targets.target_text(check, width=0)
+                    check_text = "The room now:\n" + sections.target_text(
+                        check, width=0, described=self.result)
         view.show_check(check_text)
         if self._plan_run is not None:
             view.mark_stale()
@@ -548,9 +563,6 @@ class MainScreen(Screen):
 
     def on_plan_view_run(self, msg: PlanView.Run) -> None:
         msg.stop()
-        from roomcalc.io import targets
-        from roomcalc.io.planning import resolve_goals
-
         view = self.query_one("#plan-view", PlanView)
         spec = self.document.spec
         if self.stale or self.result is None:
@@ -560,11 +572,8 @@ class MainScreen(Screen):
             view.show_message("Pick what the room must reach first (the first list above), or "
                               "give a [target] in the room file.")
             return
-        room = self.result.room
         try:
-            run = targets.make_plan(spec, room, self.catalog, self.criteria,
-                                    enabled=msg.enabled, filename=self.document.name)
-            goals = resolve_goals(spec, room, self.criteria, filename=self.document.name)
+            run = self._study.plan(enabled=msg.enabled, result=self.result)
         except RoomFileError as exc:
             view.show_message("Cannot plan: " + "; ".join(
                 f"{p.where}: {p.message}" if p.where else p.message for p in exc.problems))
@@ -574,18 +583,16 @@ class MainScreen(Screen):
             return
         self._plan_run = run
         u = spec.unit_system
-        view.show_run(run, targets.window_of(goals), u.area, u.area_label)
+        view.show_run(run, sections.plan_totals_text(run, u), u.area, u.area_label)
 
     def on_plan_view_apply(self, msg: PlanView.Apply) -> None:
         msg.stop()
         from dataclasses import fields
 
-        from roomcalc.io.planning import apply_plan
-
         run = self._plan_run
         if run is None:
             return
-        treated = apply_plan(self.document.spec, run.plan, list(run.candidates))
+        treated = self._study.treated_spec(run)
 
         def fn(spec):
             for f in fields(spec):
@@ -611,12 +618,19 @@ class MainScreen(Screen):
             head.update("The bands changed since the pin; press p to pin again.")
             table.display = False
             return
-        cmp = compare(self.pinned, self.result)
-        method = comparison_method(cmp)
+        try:
+            after = self.result if self.result.method == self.pinned.method else \
+                self._study.evaluate(self.result.room, method=self.pinned.method)
+            cmp = Study.compare(self.pinned, after)
+        except ValueError as exc:
+            head.update(f"Cannot compare: {exc}")
+            table.display = False
+            return
         table.display = True
-        table.show(cmp, method)
+        table.show(cmp, cmp.method)
         head.update(f"Before: pinned room   After: the room now"
-                    f"{'  (stale)' if self.stale else ''}   negative = shorter or quieter")
+                    f"{'  (stale)' if self.stale else ''}   negative = shorter or quieter   "
+                    f"RT60 by {METHOD_TITLES[cmp.method]} (in force before)")
         notes.update("\n".join(f"- {n}" for n in cmp.notes))
 
     def action_pin(self) -> None:
@@ -652,54 +666,11 @@ class MainScreen(Screen):
         if msg.collection == "room":
             self._edit_room(msg.key, msg.value)
             return
-        coll, i, key, value = msg.collection, msg.index, msg.key, msg.value
-        rec = self.document.items(coll)[i]
-        values = {key: value}
-        # Keys that exclude each other: setting one clears the other.
-        if coll == "surfaces" and key == "alpha" and value is not None:
-            values["material"] = None
-        if coll == "objects" and key == "absorption" and value is not None:
-            values["material"] = None
-        if coll == "candidates" and key in ("alpha", "absorption") and value is not None:
-            values["material"] = None
-        if coll == "sources":
-            if key == "sound_power" and value is not None:
-                values.update(sound_power_dba=None, spectrum=None)
-            elif key == "sound_power_dba" and value is not None:
-                values["sound_power"] = None
-                if rec.spectrum is None:
-                    values["spectrum"] = "pink"
-            elif key == "directivity" and value is not None:
-                values["placement"] = None
-            elif key == "placement" and value is not None:
-                values["directivity"] = None
-        if key == "name" and value != rec.name and coll in ("sources", "surfaces", "receivers"):
-            old = rec.name
-
-            def swap(d):
-                return {value if k == old else k: v for k, v in d.items()}
-
-            def fn(spec):       # what points at the renamed item follows it
-                setattr(getattr(spec, coll)[i], "name", value)
-                if coll == "sources":
-                    for r in spec.receivers:
-                        r.distances = swap(r.distances)
-                        r.source_hours = swap(r.source_hours)
-                elif coll == "surfaces":
-                    for c in spec.candidates:
-                        if c.surface == old:
-                            c.surface = value
-                elif spec.target is not None:
-                    spec.target.max_level_dba = swap(spec.target.max_level_dba)
-                    spec.target.max_level_db = swap(spec.target.max_level_db)
-            self.apply(fn, f"rename {coll[:-1]} '{old}'")
-            return
-
-        def fn(spec):
-            item = getattr(spec, coll)[i]
-            for k, v in values.items():
-                setattr(item, k, v)
-        self.apply(fn, f"{coll[:-1]} '{rec.name}': {key}")
+        coll, i = msg.collection, msg.index
+        name = self.document.items(coll)[i].name
+        verb = "rename" if msg.key == "name" else f"{coll[:-1]} '{name}': {msg.key}"
+        self.apply(lambda spec: set_item_fields(spec, coll, i, {msg.key: msg.value}), verb
+                   if msg.key != "name" else f"rename {coll[:-1]} '{name}'")
 
     def _edit_room(self, key: str, value) -> None:
         unparsed = self._unparsed
@@ -717,14 +688,12 @@ class MainScreen(Screen):
                 self.apply(lambda spec: convert_units(spec, value), f"units: {value}")
             return
         if key == "bands_hz":
-            bands = None if value == [125, 250, 500, 1000, 2000, 4000] else value
-
-            def fn(spec):
-                old = list(spec.bands)
-                spec.bands_hz = bands
-                new = list(spec.bands)
-                _rebands(spec, old, new)
-            self.apply(fn, "bands")
+            notes: list[str] = []
+            self.apply(lambda spec: notes.extend(change_bands(spec, value, self.catalog)),
+                       "bands")
+            if notes:
+                self.notify("\n".join(notes), title="Bands changed", markup=False,
+                            timeout=12)
             return
         group, name = key.split(".")
         if getattr(getattr(self.document.spec, group), name) == value:
@@ -863,19 +832,3 @@ def _toggle(widget, on: bool, name: str) -> None:
     """Add or remove a class only when it changes (a change restyles the whole subtree)."""
     if widget.has_class(name) != on:
         widget.set_class(on, name)
-
-
-def _rebands(spec, old: list, new: list) -> None:
-    """Keep per-band lists in step with a change of bands: drop removed bands, and for an added
-    band repeat the nearest band's value (shown in the table, so it can be corrected)."""
-    def fix(vals):
-        if vals is None:
-            return None
-        by = dict(zip(old, vals))
-        return [by.get(b, by[min(old, key=lambda o: abs(np.log(o / b)))]) for b in new]
-    for s in spec.surfaces:
-        s.alpha = fix(s.alpha)
-    for o in spec.objects:
-        o.absorption = fix(o.absorption)
-    for s in spec.sources:
-        s.sound_power = fix(s.sound_power)

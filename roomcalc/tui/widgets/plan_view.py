@@ -185,13 +185,14 @@ class PlanView(VerticalScroll):
         """The room as it is now against its target (the report's target section)."""
         self.query_one("#plan-check", Static).update(text.rstrip())
 
-    def show_run(self, run, window, area, area_label: str) -> None:
-        """A plan (a PlanRun of roomcalc.io.targets) with the window (lo, hi) it aims at."""
+    def show_run(self, run, totals: str, area, area_label: str) -> None:
+        """A plan (a PlanRun of roomcalc.study) with its totals in words ("48.62 m^2 and 40
+        units")."""
         p = run.plan
         cur = f" {run.currency}" if run.currency else ""
         head = ("The plan meets the target." if p.feasible
                 else "No plan meets the target; the best partial plan is shown.")
-        head += f"  Total {p.total_cost:.2f}{cur}, {p.total_area / area:.2f} {area_label}."
+        head += f"  Total {p.total_cost:.2f}{cur} for {totals}."
         if not p.items:
             head = ("The room already meets its target: nothing to add." if p.feasible
                     else "No candidate helps.")
@@ -202,7 +203,7 @@ class PlanView(VerticalScroll):
                          else f"{it.amount:g} units", f"{it.cost:.2f}"] for it in p.items])
         items.display = bool(p.items)
         rt = self.query_one("#plan-rt", PlanRtTable)
-        lo, hi = window
+        lo, hi = run.goals.rt60_min, run.goals.rt60_max
         rt.show(run.before.bands_hz, p.rt60_before, p.rt60_after, lo, hi)
         rt.display = True
         lines = [f"{name}: {b:.1f} -> {p.levels_after.get(name, float('nan')):.1f} dB(A)"

@@ -1,4 +1,7 @@
-"""Report formats: text (80 columns), markdown, JSON (SI units) and CSV.
+"""The report of a room in four formats: text (80 columns), markdown, JSON (SI) and CSV (SI),
+each with the same content: reverberation by every formula (the one in force marked), the room,
+critical distances, levels at receivers, the target check and the daily exposure, warnings and
+cautions. Also before/after and the material catalogue listing.
 
 Text and markdown show lengths, areas and volumes in the room file's units; JSON and CSV are SI
 whatever the file's units.
@@ -9,38 +12,20 @@ from __future__ import annotations
 import csv
 import io
 import json
-import math
-import textwrap
-
-import numpy as np
 
 from roomcalc.engine.analysis import METHOD_TITLES, METHODS, Comparison, RoomResult
 from roomcalc.io.catalog import Material
 from roomcalc.io.units import METRIC, Units
+from roomcalc.present.numbers import WIDTH, floats, fmt, plural, wrap
+from roomcalc.present.sections import (exposure_dict, exposure_text, target_dict,
+                                       target_text)
+from roomcalc.study.study import Answer
+
+__all__ = ["FORMATS", "report", "report_text", "report_markdown", "report_json",
+           "report_csv", "result_dict", "answer_dict", "check_text", "compare_report",
+           "comparison_dict", "material_dict", "materials_text"]
 
 FORMATS = ("text", "markdown", "json", "csv")
-WIDTH = 80
-
-
-def _f(x, nd=2) -> str:
-    if x is None or (isinstance(x, float) and not math.isfinite(x)):
-        return "-"
-    return f"{x:.{nd}f}"
-
-
-def _list(a, nd=None):
-    out = [float(x) for x in np.asarray(a, dtype=float)]
-    if nd is not None:
-        out = [round(x, nd) for x in out]
-    return out
-
-
-def _wrap(text, first="  - ", rest="    ", width=None):
-    """Wrapped to the report's width (``width`` 0: one line, for a screen that wraps itself)."""
-    if width == 0:
-        return first + text
-    return textwrap.fill(text, (width or WIDTH) - 1, initial_indent=first,
-                         subsequent_indent=rest)
 
 
 class _Table:
@@ -50,8 +35,8 @@ class _Table:
         self.title, self.bands, self.extra, self.rows = title, list(bands), extra, []
 
     def add(self, label, values, nd=2, extra=None):
-        self.rows.append((label, [_f(float(v), nd) for v in values],
-                          None if extra is None else _f(extra, 1)))
+        self.rows.append((label, [fmt(float(v), nd) for v in values],
+                          None if extra is None else fmt(extra, 1)))
 
     def text(self) -> str:
         w = 7 if len(self.bands) <= 6 else 6
@@ -80,7 +65,7 @@ def _tables(res: RoomResult, u: Units):
     rt = _Table("RT60 [s]", bands)
     for k in METHODS:
         if k in res.rt60_s:
-            mark = " *" if k == res.recommended else ""
+            mark = " *" if k == res.method else ""
             rt.add(METHOD_TITLES[k] + mark, res.rt60_s[k])
     room = _Table("Room", bands)
     room.add(f"Absorption A [{u.area_label}]", res.absorption_area_m2 / u.area, 1)
@@ -123,54 +108,74 @@ def _header(res: RoomResult, u: Units, source_name: str) -> list[str]:
     ]
 
 
+def method_sentence(res: RoomResult) -> str:
+    """Which formula is in force and why, in one sentence."""
+    return f"{METHOD_TITLES[res.method]} is the formula in force: {res.method_reason}."
+
+
 def _method_lines(res: RoomResult) -> list[str]:
-    lines = [_wrap(f"* {METHOD_TITLES[res.recommended]} is the one to use here: "
-                   f"{res.recommended_reason}.", "  ", "    ")]
+    lines = [wrap("* " + method_sentence(res), "  ", "    ")]
     for k, why in res.unavailable.items():
-        lines.append(_wrap(f"{METHOD_TITLES[k]} not available: {why}.", "  ", "    "))
+        lines.append(wrap(f"{METHOD_TITLES[k]} not available: {why}.", "  ", "    "))
     return lines
 
 
-def _sources_lines(res: RoomResult, spec_sources=None) -> list[str]:
-    lines = []
-    for s in res.room.sources:
-        lw = ", ".join(f"{x:.1f}" for x in s.sound_power_db)
-        lines.append(f"  {s.name}: Lw {lw} dB re 1 pW, Q = {s.directivity:g}")
-    return lines
+def _extras_text(ans: Answer, width=None) -> list[str]:
+    """The target check and the daily exposure, when the room file asks for them."""
+    out = []
+    if ans.target is not None:
+        out += ["", target_text(ans.target, width=width, described=ans.result).rstrip("\n")]
+    if ans.exposures:
+        out += ["", exposure_text(ans.exposures, width=width).rstrip("\n")]
+    return out
 
 
-def report_text(res: RoomResult, source_name: str, u: Units = METRIC) -> str:
+def report_text(ans: Answer, source_name: str, u: Units = METRIC) -> str:
+    """The full report as text, 80 columns."""
+    res = ans.result
     rt, room, rc, lv = _tables(res, u)
     out = _header(res, u, source_name)
     out += ["", rt.text()] + _method_lines(res) + ["", room.text()]
     if rc:
         out += ["", rc.text()]
     if lv:
-        model = "Barron & Lee revised theory" if res.reverberant_model == "barron-lee" \
-            else "diffuse field, 4/R"
-        out += ["", lv.text(), _wrap(f"Levels re 20 uPa, sources summed; reverberant part "
-                                     f"by {model}; no rho-c correction.", "  ", "  ")]
+        out += ["", lv.text(), wrap(_levels_note(res), "  ", "  ")]
+    out += _extras_text(ans)
     if res.warnings:
-        out += ["", "Warnings"] + [_wrap(w.message) for w in res.warnings]
+        out += ["", "Warnings"] + [wrap(w.message) for w in res.warnings]
     if res.cautions:
-        out += ["", "CAUTION: HEARING"] + [_wrap(c, "  ! ", "    ") for c in res.cautions]
+        out += ["", "CAUTION: HEARING"] + [wrap(c, "  ! ", "    ") for c in res.cautions]
     return "\n".join(out) + "\n"
 
 
-def report_markdown(res: RoomResult, source_name: str, u: Units = METRIC) -> str:
+def _levels_note(res: RoomResult) -> str:
+    model = "Barron & Lee revised theory" if res.reverberant_model == "barron-lee" \
+        else "diffuse field, 4/R"
+    return (f"Levels re 20 uPa, sources summed; reverberant part by {model}; no rho-c "
+            "correction.")
+
+
+def report_markdown(ans: Answer, source_name: str, u: Units = METRIC) -> str:
+    """The full report as markdown (the target and exposure sections as preformatted text)."""
+    res = ans.result
     rt, room, rc, lv = _tables(res, u)
     head = _header(res, u, source_name)
     out = [f"# {head[0]}", ""] + [f"- {h.strip()}" for h in head[1:]] + ["", "## Reverberation",
                                                                           "", rt.markdown(), ""]
-    out += [f"\\* {METHOD_TITLES[res.recommended]} is the one to use here: "
-            f"{res.recommended_reason}."]
+    out += ["\\* " + method_sentence(res)]
     for k, why in res.unavailable.items():
         out += ["", f"{METHOD_TITLES[k]} not available: {why}."]
     out += ["", "## Room", "", room.markdown()]
     if rc:
         out += ["", "## Critical distance", "", rc.markdown()]
     if lv:
-        out += ["", "## Levels at receivers", "", lv.markdown()]
+        out += ["", "## Levels at receivers", "", lv.markdown(), "", _levels_note(res)]
+    if ans.target is not None:
+        out += ["", "## Target", "", "```", target_text(ans.target, described=res).rstrip(),
+                "```"]
+    if ans.exposures:
+        out += ["", "## Daily noise exposure", "", "```",
+                exposure_text(ans.exposures).rstrip(), "```"]
     if res.warnings:
         out += ["", "## Warnings", ""] + [f"- {w.message}" for w in res.warnings]
     if res.cautions:
@@ -185,45 +190,60 @@ def result_dict(res: RoomResult) -> dict:
         "bands_hz": list(res.bands_hz),
         "volume_m3": res.volume_m3,
         "surface_area_m2": res.surface_area_m2,
-        "absorption_area_m2": _list(res.absorption_area_m2),
-        "air_attenuation_db_per_m": _list(res.air_attenuation_db_per_m),
+        "absorption_area_m2": floats(res.absorption_area_m2),
+        "air_attenuation_db_per_m": floats(res.air_attenuation_db_per_m),
         "speed_of_sound_m_s": res.speed_of_sound_m_s,
-        "rt60_s": {k: _list(v) for k, v in res.rt60_s.items()},
+        "rt60_s": {k: floats(v) for k, v in res.rt60_s.items()},
         "rt60_unavailable": dict(res.unavailable),
-        "recommended_method": res.recommended,
-        "recommended_reason": res.recommended_reason,
-        "room_constant_m2": _list(res.room_constant_m2),
-        "schroeder_frequency_hz": _list(res.schroeder_hz),
+        "method": res.method,
+        "method_reason": res.method_reason,
+        "recommended": res.recommended,
+        "room_constant_m2": floats(res.room_constant_m2),
+        "schroeder_frequency_hz": floats(res.schroeder_hz),
         "reverberant_model": res.reverberant_model,
         "sources": [{"name": s.name, "directivity": s.directivity,
-                     "sound_power_db": _list(s.sound_power_db),
-                     "critical_distance_m": _list(s.critical_distance_m)} for s in res.sources],
+                     "sound_power_db": floats(s.sound_power_db),
+                     "critical_distance_m": floats(s.critical_distance_m)} for s in res.sources],
         "receivers": [{"name": r.name, "distances_m": r.distances_m,
-                       "level_db": _list(r.level_db), "level_dba": r.level_dba,
-                       "direct_db": _list(r.direct_db), "direct_dba": r.direct_dba,
-                       "reverberant_db": _list(r.reverberant_db),
+                       "level_db": floats(r.level_db), "level_dba": r.level_dba,
+                       "direct_db": floats(r.direct_db), "direct_dba": r.direct_dba,
+                       "reverberant_db": floats(r.reverberant_db),
                        "reverberant_dba": r.reverberant_dba} for r in res.receivers],
         "warnings": [{"code": w.code, "message": w.message} for w in res.warnings],
         "cautions": list(res.cautions),
     }
 
 
-def report_json(res: RoomResult, source_name: str = "", u: Units = METRIC) -> str:
-    return json.dumps(result_dict(res), indent=2) + "\n"
+def answer_dict(ans: Answer) -> dict:
+    """The JSON document of a room's answer: the result, with ``target`` and ``exposure``
+    when the file asks for them."""
+    data = result_dict(ans.result)
+    if ans.target is not None:
+        data["target"] = target_dict(ans.target)
+    if ans.exposures:
+        data["exposure"] = exposure_dict(ans.exposures)
+    return data
 
 
-def report_csv(res: RoomResult, source_name: str = "", u: Units = METRIC) -> str:
-    """One row per quantity: quantity, item, unit, then one column per band, then dB(A)."""
+def report_json(ans: Answer, source_name: str = "", u: Units = METRIC) -> str:
+    return json.dumps(answer_dict(ans), indent=2, allow_nan=False) + "\n"
+
+
+def report_csv(ans: Answer, source_name: str = "", u: Units = METRIC) -> str:
+    """One row per quantity: quantity, item, unit, then one column per band, then dB(A). The
+    target check and the daily exposure follow as rows of their own."""
+    res = ans.result
     buf = io.StringIO()
     w = csv.writer(buf, lineterminator="\n")
     w.writerow(["quantity", "item", "unit"] + [str(b) for b in res.bands_hz] + ["dBA"])
+    nb = len(res.bands_hz)
 
     def row(q, item, unit, vals, extra=""):
-        w.writerow([q, item, unit] + [f"{float(v):.6g}" for v in vals] +
-                   [f"{extra:.6g}" if extra != "" else ""])
+        w.writerow([q, item, unit] + [_cell(v) for v in vals] +
+                   [_cell(extra) if extra != "" else ""])
 
     for k, v in res.rt60_s.items():
-        row("rt60", k, "s", v)
+        row("rt60", k + (" (in force)" if k == res.method else ""), "s", v)
     row("absorption_area", "surfaces+objects", "m2", res.absorption_area_m2)
     row("air_attenuation", "air", "dB/m", res.air_attenuation_db_per_m)
     row("room_constant", "room", "m2", res.room_constant_m2)
@@ -234,37 +254,77 @@ def report_csv(res: RoomResult, source_name: str = "", u: Units = METRIC) -> str
         row("level", r.name, "dB", r.level_db, r.level_dba)
         row("direct", r.name, "dB", r.direct_db, r.direct_dba)
         row("reverberant", r.name, "dB", r.reverberant_db, r.reverberant_dba)
+    t = ans.target
+    if t is not None and t.assessment is not None and t.assessment.applicable:
+        a = t.assessment
+        by_band = {int(b): i for i, b in enumerate(a.bands_hz)}
+        idx = [by_band.get(int(b)) for b in res.bands_hz]
+
+        def per_band(x):
+            return ["" if i is None else x[i] for i in idx]
+        item = f"{a.criterion.id} ({t.method}, {t.occupancy.label})"
+        row("target_rt60_estimate", item, "s", per_band(a.estimate_s))
+        row("target_rt60_min", item, "s", per_band(a.target_min_s))
+        row("target_rt60_max", item, "s", per_band(a.target_max_s))
+        w.writerow(["target_status", item, ""] + [""] * nb + [a.status])
+    for lc in (t.levels if t is not None else ()):
+        w.writerow(["target_level", lc.receiver, "dBA"] + [""] * nb +
+                   [f"{lc.level_dba:.6g} <= {lc.max_dba:.6g}: {'pass' if lc.passed else 'fail'}"])
+    for name, d in ans.exposures.items():
+        w.writerow(["lex_8h", name, "dBA"] + [""] * nb + [f"{d.lex_8h_dba:.6g}"])
+        w.writerow(["osha_dose", name, "%"] + [""] * nb + [f"{d.osha_dose_percent:.6g}"])
     return buf.getvalue()
+
+
+def _cell(v) -> str:
+    """A CSV cell: 6 significant digits, empty where there is no finite value."""
+    if v == "" or v is None:
+        return ""
+    x = float(v)
+    return f"{x:.6g}" if x == x and abs(x) != float("inf") else ""
 
 
 REPORTERS = {"text": report_text, "markdown": report_markdown, "json": report_json,
              "csv": report_csv}
 
 
+def report(ans: Answer, form: str, source_name: str, u: Units = METRIC) -> str:
+    """The report of a room's answer in one of :data:`FORMATS`."""
+    return REPORTERS[form](ans, source_name, u)
+
+
+def check_text(ans: Answer, shown: str) -> str:
+    """What ``roomcalc check`` says of a room that passed its checks."""
+    room = ans.room
+    counts = ", ".join(plural(n, w) for n, w in (
+        (len(room.surfaces), "surface"), (len(room.objects), "object"),
+        (len(room.sources), "source"), (len(room.receivers), "receiver")))
+    out = [f"{shown}: ok ({counts}); RT60 by {METHOD_TITLES[ans.method]}, the formula in force"]
+    out += [wrap(w.message, "  warning: ", "    ") for w in ans.result.warnings]
+    text = "\n".join(out) + "\n"
+    if ans.target is not None:
+        text += target_text(ans.target, described=ans.result)
+    if ans.exposures:
+        text += exposure_text(ans.exposures)
+    return text
+
+
 # ----------------------------------------------------------------------------- compare
-
-def comparison_method(cmp: Comparison) -> str:
-    """One method for both rooms, like for like: the treated room's recommendation when the
-    untreated room has it too (treatment makes a room deader, where Sabine runs long)."""
-    for k in (cmp.after.recommended, cmp.before.recommended):
-        if k in cmp.before.rt60_s and k in cmp.after.rt60_s:
-            return k
-    return "sabine"
-
 
 def comparison_dict(cmp: Comparison) -> dict:
     b, a = cmp.before, cmp.after
     return {
         "bands_hz": list(b.bands_hz),
         "before": b.room.title, "after": a.room.title,
-        "method": comparison_method(cmp),
-        "rt60_before_s": {k: _list(v) for k, v in b.rt60_s.items()},
-        "rt60_after_s": {k: _list(v) for k, v in a.rt60_s.items()},
-        "rt60_change_s": {k: _list(v) for k, v in cmp.rt60_change_s.items()},
-        "room_constant_before_m2": _list(b.room_constant_m2),
-        "room_constant_after_m2": _list(a.room_constant_m2),
-        "reverberant_reduction_db": _list(cmp.reverberant_reduction_db),
-        "receivers": [{"name": c.name, "level_change_db": _list(c.level_change_db),
+        "method": cmp.method,
+        "method_reason": f"the formula in force for the room before: {b.method_reason}",
+        "rt60_before_s": {k: floats(v) for k, v in b.rt60_s.items()},
+        "rt60_after_s": {k: floats(v) for k, v in a.rt60_s.items()},
+        "rt60_change_s": {k: floats(v) for k, v in cmp.rt60_change_s.items()},
+        "room_constant_before_m2": floats(b.room_constant_m2),
+        "room_constant_after_m2": floats(a.room_constant_m2),
+        "reverberant_reduction_db": floats(cmp.reverberant_reduction_db),
+        "receivers": [{"name": c.name, "level_change_db": floats(c.level_change_db),
                        "level_change_dba": c.level_change_dba,
                        "reverberant_change_dba": c.reverberant_change_dba,
                        "inside_critical_distance_of": c.inside_critical_distance}
@@ -277,7 +337,7 @@ def comparison_dict(cmp: Comparison) -> dict:
 
 def _compare_tables(cmp: Comparison):
     b, a = cmp.before, cmp.after
-    k = comparison_method(cmp)
+    k = cmp.method
     rt = _Table(f"RT60 [s], {METHOD_TITLES[k]}", b.bands_hz)
     rt.add("before", b.rt60_s[k])
     rt.add("after", a.rt60_s[k])
@@ -296,10 +356,11 @@ def _compare_tables(cmp: Comparison):
     return rt, lv
 
 
-def compare_text(cmp: Comparison, names: tuple[str, str], fmt: str = "text") -> str:
-    if fmt == "json":
-        return json.dumps(comparison_dict(cmp), indent=2) + "\n"
-    if fmt == "csv":
+def compare_report(cmp: Comparison, names: tuple[str, str], form: str = "text") -> str:
+    """Before and after in one of :data:`FORMATS`, by the before room's formula in force."""
+    if form == "json":
+        return json.dumps(comparison_dict(cmp), indent=2, allow_nan=False) + "\n"
+    if form == "csv":
         buf = io.StringIO()
         w = csv.writer(buf, lineterminator="\n")
         w.writerow(["quantity", "item", "unit"] + [str(x) for x in cmp.before.bands_hz] + ["dBA"])
@@ -312,7 +373,7 @@ def compare_text(cmp: Comparison, names: tuple[str, str], fmt: str = "text") -> 
                        [f"{c.level_change_dba:.6g}"])
         return buf.getvalue()
     rt, lv = _compare_tables(cmp)
-    md = fmt == "markdown"
+    md = form == "markdown"
     out = [("# " if md else "") + f"Before: {cmp.before.room.title or names[0]}",
            ("# " if md else "") + f"After:  {cmp.after.room.title or names[1]}",
            "" if md else f"  ({names[0]} -> {names[1]}; negative = shorter or quieter)", "",
@@ -320,12 +381,12 @@ def compare_text(cmp: Comparison, names: tuple[str, str], fmt: str = "text") -> 
     if lv:
         out += ["", lv.markdown() if md else lv.text()]
     if cmp.notes:
-        out += ["", "Notes"] + [(f"- {n}" if md else _wrap(n)) for n in cmp.notes]
+        out += ["", "Notes"] + [(f"- {n}" if md else wrap(n)) for n in cmp.notes]
     if cmp.after.warnings:
-        out += ["", "Warnings (after)"] + [(f"- {w.message}" if md else _wrap(w.message))
+        out += ["", "Warnings (after)"] + [(f"- {w.message}" if md else wrap(w.message))
                                           for w in cmp.after.warnings]
     if cmp.after.cautions:
-        out += ["", "CAUTION: HEARING (after)"] + [(f"- **{c}**" if md else _wrap(c, "  ! ", "    "))
+        out += ["", "CAUTION: HEARING (after)"] + [(f"- **{c}**" if md else wrap(c, "  ! ", "    "))
                                                   for c in cmp.after.cautions]
     return "\n".join(out) + "\n"
 
@@ -343,10 +404,10 @@ def material_dict(m: Material) -> dict:
     return d
 
 
-def materials_text(mats: list[Material], fmt: str = "text") -> str:
-    if fmt == "json":
+def materials_text(mats: list[Material], form: str = "text") -> str:
+    if form == "json":
         return json.dumps([material_dict(m) for m in mats], indent=2) + "\n"
-    if fmt == "csv":
+    if form == "csv":
         buf = io.StringIO()
         w = csv.writer(buf, lineterminator="\n")
         bands = [63, 125, 250, 500, 1000, 2000, 4000, 8000]
@@ -359,7 +420,7 @@ def materials_text(mats: list[Material], fmt: str = "text") -> str:
                        ([r[0], r[1], r[2].label(), r[2].absorption_class] if r else
                         ["", "", "", ""]) + [m.source])
         return buf.getvalue()
-    md = fmt == "markdown"
+    md = form == "markdown"
     if md:
         lines = ["| id | name | kind | 125-4000 Hz | NRC | alpha_w (class) | source |",
                  "|---|---|---|---|---|---|---|"]
@@ -372,13 +433,13 @@ def materials_text(mats: list[Material], fmt: str = "text") -> str:
                   f"{r[2].absorption_class}") if r else "absorption per unit [m^2]"
         if md:
             lines.append(f"| {m.id} | {m.name} | {m.kind} | {vals} | "
-                         f"{_f(r[0]) if r else ''} | "
+                         f"{fmt(r[0]) if r else ''} | "
                          f"{f'{r[2].label()} ({r[2].absorption_class})' if r else ''} | "
                          f"{m.source} |")
         else:
             lines += [f"{m.id}  [{m.category}]", f"    {m.name}",
                       f"    {m.bands_text}: {vals}", f"    {rating}",
-                      _wrap(f"source: {m.source}", "    ", "      "), ""]
+                      wrap(f"source: {m.source}", "    ", "      "), ""]
     if not md:
         lines.append(f"{len(mats)} material(s). SAA~ is an estimate from octave data; a "
                      "product's test report\nto ISO 354 / ASTM C423 supersedes these values.")

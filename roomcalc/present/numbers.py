@@ -1,0 +1,56 @@
+"""How numbers and lines look in every presenter: one formatter, one band label, one wrapper."""
+
+from __future__ import annotations
+
+import math
+import textwrap
+
+import numpy as np
+
+__all__ = ["WIDTH", "fmt", "band_label", "wrap", "floats", "finite_or_none", "plural"]
+
+#: Width of the text reports [characters].
+WIDTH = 80
+
+
+def fmt(x, nd: int = 2) -> str:
+    """``x`` with ``nd`` decimals; "-" for None, NaN or infinity (a value the formula has
+    none for)."""
+    if x is None:
+        return "-"
+    x = float(x)
+    if not math.isfinite(x):
+        return "-"
+    return f"{x:.{nd}f}"
+
+
+def band_label(b) -> str:
+    """An octave band as a short column head: 125, 250, 500, 1k, 2k."""
+    return f"{b:g}" if b < 1000 else f"{b / 1000:g}k"
+
+
+def wrap(text: str, first: str = "  - ", rest: str = "    ", width: int | None = None) -> str:
+    """Wrapped to the report's width (``width`` 0: one line, for a screen that wraps itself)."""
+    if width == 0:
+        return first + text
+    return textwrap.fill(text, (width or WIDTH) - 1, initial_indent=first,
+                         subsequent_indent=rest)
+
+
+def floats(a, nd: int | None = None) -> list[float]:
+    """An array as a list of floats for JSON (rounded to ``nd`` decimals if given)."""
+    out = [float(x) for x in np.asarray(a, dtype=float).reshape(-1)]
+    if nd is not None:
+        out = [round(x, nd) for x in out]
+    return out
+
+
+def finite_or_none(a) -> list:
+    """An array as a JSON list with None where a value is not finite (no limit there)."""
+    return [float(v) if math.isfinite(float(v)) else None
+            for v in np.asarray(a, dtype=float).reshape(-1)]
+
+
+def plural(n: int, word: str, many: str | None = None) -> str:
+    """"1 surface", "2 surfaces"."""
+    return f"{n:g} {word if n == 1 else (many or word + 's')}"

@@ -1,0 +1,243 @@
+"""Report sections of the study's answers: the target check, the daily exposure and the
+treatment plan, as text (80 columns, or unwrapped for a screen) and as JSON dictionaries (SI).
+"""
+
+from __future__ import annotations
+
+import math
+
+from roomcalc.engine.analysis import METHOD_TITLES
+from roomcalc.engine.exposure import EXPOSURE_CAUTION, ExposureSummary, compare_exposure
+from roomcalc.io.units import METRIC, Units
+from roomcalc.present.numbers import band_label, finite_or_none, fmt, floats, wrap
+from roomcalc.study.assessment import Occupancy, PlanRun, TargetCheck
+
+__all__ = ["window_text", "occupancy_text", "target_text", "target_dict", "exposure_text",
+           "exposure_dict", "plan_totals_text", "plan_text", "plan_dict", "occupancy_dict"]
+
+
+def window_text(lo: float, hi: float) -> str:
+    """A window of seconds in words: "0.40-0.60 s", "at most 0.60 s", "at least 0.30 s"."""
+    if math.isfinite(lo) and math.isfinite(hi):
+        return f"{lo:.2f}-{hi:.2f} s"
+    if math.isfinite(hi):
+        return f"at most {hi:.2f} s"
+    if math.isfinite(lo):
+        return f"at least {lo:.2f} s"
+    return "no limit"
+
+
+def occupancy_text(occ: Occupancy) -> str:
+    return f"assessed {occ.label}" + (f" ({occ.source})" if occ.source else "")
+
+
+def occupancy_dict(occ: Occupancy) -> dict:
+    return {"share": occ.share, "label": occ.label, "source": occ.source,
+            "differs_from_described": occ.differs}
+
+
+def target_text(check: TargetCheck, width=None, described=None) -> str:
+    """The target section of the text report (``width`` 0: lines unwrapped). ``described``:
+    the room as described (a RoomResult), shown beside the assessed one when they differ."""
+    lines = [f"Target (RT60 by {METHOD_TITLES.get(check.method, check.method)}, the formula "
+             "in force)"]
+    a = check.assessment
+    occ = check.occupancy
+    if a is not None:
+        c = a.criterion
+        lines.append(f"  {c.title}" + (f" ({c.edition})" if c.edition else ""))
+        if occ.share is not None:
+            lines.append(wrap(occupancy_text(occ), "  ", "    ", width=width))
+        if not a.applicable:
+            lines.append(wrap(f"not applicable: {a.reason}", "  ", "    ", width=width))
+        else:
+            lines += _assessment_lines(check, described)
+        if c.source:
+            lines.append(wrap(f"source: {c.source}", "  ", "    ", width=width))
+        if a.provenance:
+            lines.append(wrap(f"values: {a.provenance}", "  ", "    ", width=width))
+        if math.isfinite(a.background_dba):
+            lines.append(f"  background noise limit (not checked here): {a.background_dba:g} "
+                         "dB(A)")
+        lines.append(wrap(a.governs, "  ", "  ", width=width))
+    for lc in check.levels:
+        lines.append(f"  {lc.receiver}: {lc.level_dba:.1f} dB(A) against at most "
+                     f"{lc.max_dba:.1f} dB(A), margin {lc.margin_db:+.1f} dB: "
+                     f"{'pass' if lc.passed else 'fail'}")
+    return "\n".join(lines) + "\n"
+
+
+def _assessment_lines(check: TargetCheck, described) -> list[str]:
+    a = check.assessment
+    mean = math.isfinite(a.mean_s)
+    show_described = described is not None and check.occupancy.differs
+    lines = []
+    if math.isfinite(a.nominal_s):
+        lines.append(f"  nominal target {a.nominal_s:.2f} s")
+    head = f"  {'band':>6} {'min [s]':>8} {'max [s]':>8} {'estimate':>9}"
+    if show_described:
+        head += f" {'described':>9}"
+    lines.append(head + f" {'margin':>7}  verdict")
+    rt_described = described.rt60_s[check.method] if show_described else None
+    for i, b in enumerate(a.bands_hz):
+        if not a.in_assessment[i]:
+            continue
+        verdict = "in the mean" if mean and a.band_status[i] == "not-assessed" \
+            else a.band_status[i]
+        row = (f"  {band_label(b):>6} {fmt(a.target_min_s[i]):>8} {fmt(a.target_max_s[i]):>8} "
+               f"{fmt(a.estimate_s[i]):>9}")
+        if show_described:
+            row += f" {fmt(rt_described[i]):>9}"
+        lines.append(row + f" {fmt(a.margin_s[i]):>7}  {verdict}")
+    if mean:
+        lines.append(f"  mean of the assessed bands {a.mean_s:.2f} s against "
+                     f"{window_text(a.mean_min_s, a.mean_max_s)}, margin "
+                     f"{a.mean_margin_s:+.2f} s: {a.mean_status}")
+    if show_described:
+        lines.append(f"  (estimate: {check.occupancy.label}; described: the room as its "
+                     "file gives it; the verdict is for the estimate)")
+    lines.append(f"  overall: {a.status}")
+    return lines
+
+
+def target_dict(check: TargetCheck) -> dict:
+    a = check.assessment
+    out = {"method": check.method, "status": check.status,
+           "occupancy": occupancy_dict(check.occupancy),
+           "levels": [{"receiver": lc.receiver, "level_dba": lc.level_dba, "max_dba": lc.max_dba,
+                       "margin_db": lc.margin_db, "pass": lc.passed} for lc in check.levels]}
+    if a is not None:
+        out["rt60"] = {
+            "criterion": a.criterion.id, "title": a.criterion.title,
+            "applicable": a.applicable, "reason": a.reason, "status": a.status,
+            "assess": a.criterion.assess,
+            "bands_hz": [int(b) for b in a.bands_hz], "estimate_s": finite_or_none(a.estimate_s),
+            "min_s": finite_or_none(a.target_min_s), "max_s": finite_or_none(a.target_max_s),
+            "margin_s": finite_or_none(a.margin_s), "verdict": list(a.band_status),
+            "in_assessment": [bool(x) for x in a.in_assessment],
+            "provenance": a.provenance, "governs": a.governs}
+        if math.isfinite(a.mean_s):
+            out["rt60"]["mean"] = {
+                "estimate_s": a.mean_s, "min_s": finite_or_none([a.mean_min_s])[0],
+                "max_s": finite_or_none([a.mean_max_s])[0],
+                "margin_s": finite_or_none([a.mean_margin_s])[0], "verdict": a.mean_status}
+    return out
+
+
+# ----------------------------------------------------------------------------- exposure
+
+def exposure_text(days: dict[str, ExposureSummary], after: dict | None = None,
+                  width=None) -> str:
+    """The daily-exposure section of the text report (``width`` 0: lines unwrapped)."""
+    if not days:
+        return ""
+    lines = ["Daily noise exposure (receivers with a working pattern)"]
+    for name, d in days.items():
+        lines.append(f"  {name}: {d.total_hours:g} h; LAeq {d.laeq_dba:.1f} dB(A), "
+                     f"LEX,8h {d.lex_8h_dba:.1f} dB(A)")
+        lines.append(wrap(f"EU 2003/10/EC: {d.eu.label}", "    ", "    ", width=width))
+        lines.append(wrap(f"OSHA dose {d.osha_dose_percent:.0f} % (TWA {d.osha_twa_dba:.1f} dBA"
+                          f"{', action level reached' if d.osha_action_level_reached else ''}"
+                          f"{', PEL exceeded' if d.osha_pel_exceeded else ''}); NIOSH dose "
+                          f"{d.niosh_dose_percent:.0f} %"
+                          f"{' (REL exceeded)' if d.niosh_rel_exceeded else ''}",
+                          "    ", "    ", width=width))
+        if after and name in after:
+            ch = compare_exposure(d, after[name])
+            lines.append(f"    after the plan: LEX,8h {after[name].lex_8h_dba:.1f} dB(A) "
+                         f"({ch.lex_8h_change_db:+.1f} dB), OSHA dose "
+                         f"{after[name].osha_dose_percent:.0f} %")
+    lines.append(wrap(EXPOSURE_CAUTION, "  ! ", "    ", width=width))
+    return "\n".join(lines) + "\n"
+
+
+def exposure_dict(days: dict[str, ExposureSummary]) -> dict:
+    return {name: {"hours": d.total_hours, "laeq_dba": d.laeq_dba, "lex_8h_dba": d.lex_8h_dba,
+                   "eu_band": d.eu.band, "osha_dose_percent": d.osha_dose_percent,
+                   "osha_twa_dba": d.osha_twa_dba, "niosh_dose_percent": d.niosh_dose_percent,
+                   "caution": d.caution} for name, d in days.items()}
+
+
+# ----------------------------------------------------------------------------- plan
+
+def _totals(run: PlanRun) -> tuple[float, float]:
+    """Area covered [m^2] and units added: kept apart, never summed."""
+    area = sum(it.amount for it in run.plan.items if it.kind == "cover")
+    units = sum(it.amount for it in run.plan.items if it.kind != "cover")
+    return float(area), float(units)
+
+
+def plan_totals_text(run: PlanRun, u: Units = METRIC) -> str:
+    """"48.62 m^2 and 40 units" (only the parts there are)."""
+    area, units = _totals(run)
+    parts = []
+    if area > 0:
+        parts.append(f"{area / u.area:.2f} {u.area_label}")
+    if units > 0:
+        parts.append(f"{units:g} unit{'s' if units != 1 else ''}")
+    return " and ".join(parts) or "nothing"
+
+
+def plan_dict(run: PlanRun, u: Units = METRIC) -> dict:
+    """The plan as JSON (SI): ``feasible``, ``items`` (``candidate``, ``surface`` or null,
+    ``area_m2`` or ``count``, ``cost``), ``total_cost``, ``total_area_m2`` (covers only),
+    ``total_units``, ``rt60_after_s`` by ``method`` (the formula in force), and more."""
+    p = run.plan
+    items = []
+    for it in p.items:
+        d = {"candidate": it.candidate, "surface": it.surface}
+        d["area_m2" if it.kind == "cover" else "count"] = it.amount
+        d["cost"] = it.cost
+        items.append(d)
+    area, units = _totals(run)
+    lo, hi = run.goals.rt60_min, run.goals.rt60_max
+    return {"feasible": p.feasible, "method": p.method, "objective": p.objective,
+            "currency": run.currency, "items": items, "total_cost": p.total_cost,
+            "total_area_m2": area, "total_units": units,
+            "occupancy": occupancy_dict(run.occupancy),
+            "bands_hz": [int(b) for b in run.before.bands_hz],
+            "rt60_before_s": floats(p.rt60_before),
+            "rt60_after_s": floats(p.rt60_after),
+            "rt60_max_s": None if hi is None else finite_or_none(hi),
+            "rt60_min_s": None if lo is None else finite_or_none(lo),
+            "levels_before_dba": {k: float(v) for k, v in p.levels_before.items()},
+            "levels_after_dba": {k: float(v) for k, v in p.levels_after.items()},
+            "reasons": list(p.reasons), "solver": p.solver}
+
+
+def plan_text(run: PlanRun, u: Units = METRIC, width=None) -> str:
+    p = run.plan
+    status = "meets the target" if p.feasible else "CANNOT meet the target"
+    lines = [wrap(f"Treatment plan ({status}; least {p.objective}; RT60 by "
+                  f"{METHOD_TITLES.get(p.method, p.method)}, the formula in force)", "", "  ",
+                  width=width)]
+    if run.occupancy.share is not None:
+        lines.append(wrap(f"made for the room as the criterion assesses it: "
+                          f"{run.occupancy.label}", "  ", "    ", width=width))
+    if p.items:
+        cost_head = f"cost{' ' + run.currency if run.currency else ''}"
+        lines.append(f"  {'what':34} {'where':18} {'how much':>12} {cost_head[:10]:>10}")
+        for it in p.items:
+            amount = (f"{it.amount / u.area:.2f} {u.area_label}" if it.kind == "cover"
+                      else f"{it.amount:g} units")
+            lines.append(f"  {it.candidate[:34]:34} {(it.surface or 'added')[:18]:18} "
+                         f"{amount:>12} {it.cost:>10.2f}")
+        lines.append(f"  {'total: ' + plan_totals_text(run, u):53} {p.total_cost:>10.2f}")
+    else:
+        lines.append("  nothing to add: the room already meets its target" if p.feasible
+                     else "  no candidate helps")
+    bands = run.before.bands_hz
+    lines.append("  " + f"{'RT60 [s]':16}" + "".join(f"{band_label(b):>7}" for b in bands))
+    lines.append("  " + f"{'before':16}" + "".join(f"{fmt(x):>7}" for x in p.rt60_before))
+    lines.append("  " + f"{'after':16}" + "".join(f"{fmt(x):>7}" for x in p.rt60_after))
+    lo, hi = run.goals.rt60_min, run.goals.rt60_max
+    if hi is not None:
+        lines.append("  " + f"{'at most':16}" + "".join(f"{fmt(x):>7}" for x in hi))
+    if lo is not None:
+        lines.append("  " + f"{'at least':16}" + "".join(f"{fmt(x):>7}" for x in lo))
+    for name, before in p.levels_before.items():
+        after = p.levels_after.get(name)
+        lines.append(f"  {name}: {before:.1f} -> {after:.1f} dB(A) ({after - before:+.1f} dB)")
+    for r in p.reasons:
+        lines.append(wrap(r, "  ! ", "    ", width=width))
+    return "\n".join(lines) + "\n"

@@ -1,0 +1,14 @@
+"""The core without a user interface: one room being studied, the rules of editing it, and
+its answers (the result by the formula in force, target check, exposure, plan, comparison).
+The command line and the terminal interface both call it; neither assembles the pipeline.
+
+Layers: ``roomcalc.engine`` <- ``roomcalc.io`` <- ``roomcalc.study`` <- ``roomcalc.present``
+<- ``roomcalc.cli`` / ``roomcalc.tui``.
+"""
+
+from roomcalc.study.assessment import (LevelCheck, Occupancy, PlanRun, TargetCheck, exposures,
+                                       make_plan, target_check, window_of)
+from roomcalc.study.study import Answer, Study, chosen_method
+
+__all__ = ["Answer", "LevelCheck", "Occupancy", "PlanRun", "Study", "TargetCheck",
+           "chosen_method", "exposures", "make_plan", "target_check", "window_of"]

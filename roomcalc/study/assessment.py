@@ -1,0 +1,207 @@
+"""What the room must reach and whether it does, the workers' daily exposure, and the plan:
+the engine's numbers for one room, put together the same way for every front end.
+
+- :func:`target_check` -- the room against its ``[target]``: RT60 per band against the
+  criterion's or the file's own window, by the formula in force, at the occupancy the
+  criterion is assessed at; levels at receivers.
+- :func:`exposures` -- each receiver with a working pattern: LAeq, LEX,8h, EU action values,
+  OSHA dose and TWA, NIOSH dose, with the caution.
+- :func:`make_plan` -- the planner run on the room's target and candidates, by the formula in
+  force, at the assessed occupancy.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, replace
+
+import numpy as np
+
+from roomcalc.engine.analysis import RoomResult, evaluate
+from roomcalc.engine.bands import a_weighted_total
+from roomcalc.engine.criteria import Assessment, Criterion, assess, user_window
+from roomcalc.engine.exposure import ExposureSummary, day_periods, exposure_summary
+from roomcalc.engine.model import Room, at_occupancy
+from roomcalc.engine.planner import Candidate, Goals, Plan
+from roomcalc.io.planning import resolve_candidates, resolve_goals, work_patterns
+from roomcalc.io.roomfile import RoomSpec
+
+__all__ = ["Occupancy", "LevelCheck", "TargetCheck", "PlanRun", "criterion_of", "occupancy_for",
+           "target_check", "exposures", "make_plan", "window_of"]
+
+
+@dataclass(frozen=True, eq=False)
+class Occupancy:
+    """The occupancy a verdict is for: ``share`` of the described people present (0:
+    unoccupied), in words, with where the criterion says so; ``result`` is the room evaluated
+    at that occupancy (None when it is the room as described)."""
+
+    share: float | None
+    label: str
+    source: str
+    room: Room
+    result: RoomResult | None
+
+    @property
+    def differs(self) -> bool:
+        return self.result is not None
+
+
+@dataclass(frozen=True)
+class LevelCheck:
+    receiver: str
+    level_dba: float
+    max_dba: float
+
+    @property
+    def margin_db(self) -> float:
+        return self.max_dba - self.level_dba
+
+    @property
+    def passed(self) -> bool:
+        return self.level_dba <= self.max_dba + 1e-9
+
+
+@dataclass(frozen=True, eq=False)
+class TargetCheck:
+    """The room against its target: the RT60 assessment (None when the target sets no RT
+    window) by ``method`` at ``occupancy``, and the level goals (room as described)."""
+
+    method: str
+    assessment: Assessment | None
+    levels: tuple[LevelCheck, ...]
+    occupancy: Occupancy
+
+    @property
+    def status(self) -> str:
+        parts = []
+        if self.assessment is not None:
+            parts.append(self.assessment.status)
+        parts += ["pass" if c.passed else "fail" for c in self.levels]
+        if "fail" in parts:
+            return "fail"
+        if parts and all(p == "not-applicable" for p in parts):
+            return "not-applicable"
+        return "pass" if parts else "no-target"
+
+
+@dataclass(frozen=True, eq=False)
+class PlanRun:
+    """A plan made for a room, with what is needed to show and apply it. ``before`` is the
+    room the plan was made for (at the assessed occupancy), by the formula in force."""
+
+    plan: Plan
+    candidates: tuple[Candidate, ...]
+    currency: str
+    before: RoomResult
+    after_room: Room
+    goals: Goals
+    occupancy: Occupancy
+
+
+def criterion_of(spec: RoomSpec, criteria: dict) -> Criterion | None:
+    """The criterion the spec's target names (None: none named). Raises KeyError if unknown
+    (the room file's checks have named it already)."""
+    t = spec.target
+    if t is None or not t.criterion:
+        return None
+    return criteria[t.criterion]
+
+
+def occupancy_for(criterion: Criterion | None, room: Room, result: RoomResult,
+                  method: str) -> Occupancy:
+    """The room at the occupancy ``criterion`` is assessed at, evaluated by ``method``."""
+    share = None if criterion is None else criterion.assessed_share
+    source = "" if criterion is None else criterion.occupancy_source
+    if share is None:
+        return Occupancy(None, "as described", source, room, None)
+    if share == 1.0:
+        return Occupancy(share, "occupied, all the people described present", source, room,
+                         None)
+    label = "unoccupied (its people removed)" if share == 0.0 else \
+        f"occupied, {share * 100:.0f} % of the people described present"
+    if not room.has_occupants:
+        # Nobody to remove or scale: the room as described is the assessed one.
+        return Occupancy(share, label + "; the room file marks no people", source, room, None)
+    assessed = at_occupancy(room, share)
+    res = evaluate(assessed, reverberant_model=result.reverberant_model, method=method)
+    return Occupancy(share, label, source, assessed, res)
+
+
+def target_check(spec: RoomSpec, room: Room, result: RoomResult, criteria: dict,
+                 filename: str = "<room>") -> TargetCheck | None:
+    """The room against its ``[target]`` (None if it has none), by ``result.method`` (the
+    formula in force). Raises RoomFileError when the target cannot be resolved (an unknown
+    criterion, one that does not apply)."""
+    if spec.target is None:
+        return None
+    method = result.method
+    goals = resolve_goals(spec, room, criteria, filename=filename)
+    crit = criterion_of(spec, criteria)
+    occ = occupancy_for(crit, room, result, method)
+    judged = occ.result if occ.result is not None else result
+    rt = judged.rt60_s[method]
+    assessment = None
+    if crit is not None:
+        assessment = assess(crit, room.volume, room.bands_hz, rt)
+    elif goals.rt60_max is not None or goals.rt60_min is not None:
+        window = user_window(room.bands_hz, goals.rt60_min, goals.rt60_max,
+                             id="room-file", title="the room file's own window")
+        assessment = assess(window, room.volume, room.bands_hz, rt)
+    levels = []
+    by_name = {r.name: r for r in result.receivers}
+    for g in goals.levels:
+        r = by_name.get(g.receiver)
+        if r is not None and g.max_dba is not None:
+            levels.append(LevelCheck(g.receiver, float(r.level_dba), float(g.max_dba)))
+    return TargetCheck(method, assessment, tuple(levels), occ)
+
+
+def exposures(spec: RoomSpec, result: RoomResult) -> dict[str, ExposureSummary]:
+    """Each receiver with a working pattern (``hours``): its day by every rule in
+    :mod:`roomcalc.engine.exposure`, from each source's A-weighted level at it."""
+    out = {}
+    by_name = {r.name: r for r in result.receivers}
+    for name, (hours, source_hours) in work_patterns(spec).items():
+        r = by_name.get(name)
+        if r is None or hours <= 0:
+            continue
+        per_source = {s: float(a_weighted_total(lv, result.bands_hz))
+                      for s, lv in r.per_source_db.items()}
+        if not per_source:
+            continue
+        lv, h = day_periods(per_source, hours,
+                            {s: v for s, v in source_hours.items() if s in per_source})
+        out[name] = exposure_summary(lv, h)
+    return out
+
+
+def make_plan(spec: RoomSpec, room: Room, result: RoomResult, catalog, criteria: dict, *,
+              objective=None, enabled=None, filename: str = "<room>") -> PlanRun:
+    """Run the planner on the room's ``[target]`` and ``[[candidates]]`` by the formula in
+    force (``result.method``), for the room at the criterion's occupancy (``enabled``: the
+    names of the candidates to use, None = all). Raises RoomFileError when the target or a
+    candidate cannot be resolved, ValueError when there is nothing to plan with."""
+    from roomcalc.engine.planner import apply_to_room, plan
+
+    method = result.method
+    goals = replace(resolve_goals(spec, room, criteria, filename=filename), method=method)
+    occ = occupancy_for(criterion_of(spec, criteria), room, result, method)
+    planned_room = occ.room
+    cands = resolve_candidates(spec, planned_room, catalog, objective=objective,
+                               filename=filename)
+    if enabled is not None:
+        cands = [c for c in cands if c.name in enabled]
+    if not cands:
+        raise ValueError("there are no candidates to plan with: add [[candidates]] to the room "
+                         "file (or tick some)")
+    p = plan(planned_room, cands, goals, objective=objective)
+    before = occ.result if occ.result is not None else result
+    return PlanRun(p, tuple(cands), spec.target.currency or "", before,
+                   apply_to_room(planned_room, cands, p.amounts), goals, occ)
+
+
+def window_of(goals: Goals) -> tuple:
+    """(rt60_min, rt60_max) arrays of a Goals, for showing beside a plan."""
+    def arr(x):
+        return None if x is None else np.asarray(x, dtype=float)
+    return arr(goals.rt60_min), arr(goals.rt60_max)

@@ -1,0 +1,229 @@
+"""The rules of editing a room spec, as plain functions on a :class:`RoomSpec` (no interface).
+
+Every function changes the spec in place, so that a caller with an undo history (the terminal
+interface's ``Document.change``) can snapshot it first, and returns what the user should be
+told, if anything. The rules:
+
+- :func:`set_item_fields` -- set a field of a surface, object, source, receiver or candidate,
+  clearing the keys that exclude it (typing alpha drops the material; a sound power per band
+  drops the dB(A) figure and its spectrum; a directivity drops the placement);
+- :func:`rename_item` -- rename an item and carry the new name to everything that names it
+  (receivers' distances and ``source_hours``, candidates' ``surface``, the target's level
+  limits);
+- :func:`change_bands` -- add or remove octave bands, extending or shrinking *every* per-band
+  list (surfaces' and candidates' alpha, objects' and candidates' absorption, sources' sound
+  power, the target's limits given per band, and the levels of a receiver's band limit);
+- :func:`convert_units` -- re-express the spec in metric or imperial units.
+"""
+
+from __future__ import annotations
+
+import math
+
+from roomcalc.engine.bands import DEFAULT_BANDS_HZ
+from roomcalc.io.catalog import Catalog
+from roomcalc.io.planning import convert_candidate_units
+from roomcalc.io.roomfile import RoomSpec
+from roomcalc.io.units import UNITS
+
+__all__ = ["COLLECTIONS", "set_item_fields", "rename_item", "change_bands", "convert_units",
+           "nearest_band_fill"]
+
+#: The spec's lists of items, in the order the interface shows them.
+COLLECTIONS = ("surfaces", "objects", "sources", "receivers", "candidates")
+
+#: For each collection, (key set, keys it clears when set to a value).
+_EXCLUDES = {
+    "surfaces": {"alpha": ("material",)},
+    "objects": {"absorption": ("material",)},
+    "candidates": {"alpha": ("material",), "absorption": ("material",)},
+    "sources": {"sound_power": ("sound_power_dba", "spectrum"),
+                "sound_power_dba": ("sound_power",),
+                "directivity": ("placement",),
+                "placement": ("directivity",)},
+}
+
+#: The spectrum a source given in dB(A) takes when it has none yet.
+DEFAULT_SPECTRUM = "pink"
+
+
+def set_item_fields(spec: RoomSpec, collection: str, index: int, values: dict) -> str:
+    """Set fields of one item, clearing the keys that exclude them; returns an undo label.
+
+    A ``name`` in ``values`` renames through :func:`rename_item`, so references follow.
+    """
+    items = _items(spec, collection)
+    item = items[index]
+    values = dict(values)
+    label = f"{collection[:-1]} '{item.name}': {', '.join(values)}"
+    new_name = values.pop("name", None)
+    clear: dict = {}
+    for key, value in values.items():
+        if value is None:
+            continue
+        for other in _EXCLUDES.get(collection, {}).get(key, ()):
+            if other not in values:
+                clear[other] = None
+    if collection == "sources" and values.get("sound_power_dba") is not None \
+            and item.spectrum is None and "spectrum" not in values:
+        clear["spectrum"] = DEFAULT_SPECTRUM
+    for key, value in {**clear, **values}.items():
+        setattr(item, key, value)
+    if new_name is not None and new_name != item.name:
+        rename_item(spec, collection, index, new_name)
+    return label
+
+
+def rename_item(spec: RoomSpec, collection: str, index: int, new: str) -> str:
+    """Rename an item; whatever names it follows. Returns an undo label."""
+    item = _items(spec, collection)[index]
+    old = item.name
+    item.name = new
+
+    def swap(d: dict) -> dict:
+        return {new if k == old else k: v for k, v in d.items()}
+
+    if collection == "sources":
+        for r in spec.receivers:
+            r.distances = swap(r.distances)
+            r.source_hours = swap(r.source_hours)
+    elif collection == "surfaces":
+        for c in spec.candidates:
+            if c.surface == old:
+                c.surface = new
+    elif collection == "receivers" and spec.target is not None:
+        spec.target.max_level_dba = swap(spec.target.max_level_dba)
+        spec.target.max_level_db = swap(spec.target.max_level_db)
+    return f"rename {collection[:-1]} '{old}'"
+
+
+def nearest_band_fill(values, old_bands, new_bands) -> list | None:
+    """A per-band list for ``new_bands``: kept where the band was there, else the value of the
+    nearest old band on a log-frequency scale (shown in the tables, so it can be corrected).
+    None stays None."""
+    if values is None:
+        return None
+    by = dict(zip(old_bands, values))
+    return [by[b] if b in by else by[_nearest(old_bands, b)] for b in new_bands]
+
+
+def change_bands(spec: RoomSpec, bands, catalog: Catalog | None = None) -> list[str]:
+    """Give the room new octave bands, keeping every per-band list in step.
+
+    Removed bands are dropped from every list; an added band repeats the nearest band's
+    value. A catalogue material with no value at an added band is replaced by its own values
+    (the nearest band repeated) so the room stays valid; the returned notes name each such
+    item, so the user can check the values. ``bands`` equal to the default bands is stored as
+    None (the file then omits ``bands_hz``).
+    """
+    old = list(spec.bands)
+    new = sorted(int(b) for b in bands)
+    spec.bands_hz = None if tuple(new) == tuple(DEFAULT_BANDS_HZ) else new
+    new = list(spec.bands)
+    if new == old:
+        return []
+
+    def fix(vals):
+        return nearest_band_fill(vals, old, new)
+
+    notes: list[str] = []
+    added = [b for b in new if b not in old]
+    for coll in ("surfaces", "objects", "candidates"):
+        for i, item in enumerate(getattr(spec, coll)):
+            for key in ("alpha", "absorption"):
+                if hasattr(item, key):
+                    setattr(item, key, fix(getattr(item, key)))
+            # The values a material stands for: alpha on a surface or a cover, absorption per
+            # unit on an object or a candidate added as units.
+            own = "alpha" if coll == "surfaces" or (coll == "candidates" and item.surface) \
+                else "absorption"
+            note = _material_to_own(spec, item, own, catalog, new, added,
+                                    f"{coll}[{i}] '{item.name}'")
+            if note:
+                notes.append(note)
+    for s in spec.sources:
+        s.sound_power = fix(s.sound_power)
+    t = spec.target
+    if t is not None:
+        t.rt60_max = _limit_fix(t.rt60_max, old, new)
+        t.rt60_min = _limit_fix(t.rt60_min, old, new)
+        t.max_level_db = {k: _limit_fix(v, old, new) for k, v in t.max_level_db.items()}
+    return notes
+
+
+def _material_to_own(spec, item, key, catalog, new, added, where) -> str | None:
+    """Replace a material that lacks an added band by its own values (nearest band repeated)."""
+    mid = getattr(item, "material", None)
+    if not mid or not added or catalog is None:
+        return None
+    m = catalog.get(mid) or next((x for x in spec.materials if x.id == mid), None)
+    if m is None:
+        return None
+    lacking = [b for b in added if b not in m.values]
+    if not lacking:
+        return None
+    known = sorted(m.values)
+    per = 1.0 if key == "alpha" else spec.unit_system.area   # m^2 per unit in file units
+    values = [round((m.values[b] if b in m.values else m.values[_nearest(known, b)]) / per, 4)
+              for b in new]
+    item.material = None
+    setattr(item, key, values)
+    return (f"{where}: '{mid}' gives no value at {', '.join(f'{b:g} Hz' for b in lacking)}; "
+            "its values are now the item's own, with the nearest band repeated there. Check "
+            "them against a test report.")
+
+
+def _limit_fix(limit, old, new):
+    """A band limit after a band change: one number stays; a list follows the bands; a table
+    by band drops the removed bands (it sets none at the added ones)."""
+    if limit is None or isinstance(limit, (int, float)):
+        return limit
+    if isinstance(limit, dict):
+        return {b: v for b, v in limit.items() if b in new}
+    return nearest_band_fill(limit, old, new)
+
+
+def _nearest(bands, b):
+    return min(bands, key=lambda o: abs(math.log(o / b)))
+
+
+def convert_units(spec: RoomSpec, to: str) -> None:
+    """Re-express every length, area, volume, temperature, absorption and cost per area in
+    other units (rounded to 4 decimals, 3 for volumes, 2 for temperatures)."""
+    src, dst = UNITS[spec.units], UNITS[to]
+    if src.name == dst.name:
+        return
+    f = src.length / dst.length
+
+    def length(x):
+        return None if x is None else round(x * f, 4)
+
+    def area(x):
+        return None if x is None else round(x * f * f, 4)
+
+    sh = spec.shape
+    sh.length, sh.width, sh.height = length(sh.length), length(sh.width), length(sh.height)
+    sh.volume = None if sh.volume is None else round(sh.volume * f ** 3, 3)
+    if spec.air.temperature is not None:
+        spec.air.temperature = round(dst.temperature_from_c(src.temperature_to_c(
+            spec.air.temperature)), 2)
+    for s in spec.surfaces:
+        s.area = area(s.area)
+    for o in spec.objects:
+        if o.absorption is not None:
+            o.absorption = [area(x) for x in o.absorption]
+    for s in spec.sources:
+        if s.position is not None:
+            s.position = [length(x) for x in s.position]
+    for r in spec.receivers:
+        if r.position is not None:
+            r.position = [length(x) for x in r.position]
+        r.distances = {k: length(v) for k, v in r.distances.items()}
+    convert_candidate_units(spec, to)       # areas, costs per area, absorption per unit
+    spec.units = to
+
+
+def _items(spec: RoomSpec, collection: str) -> list:
+    if collection not in COLLECTIONS:
+        raise ValueError(f"collection: {collection!r} is not one of {list(COLLECTIONS)}")
+    return getattr(spec, collection)
