@@ -23,7 +23,7 @@ from roomcalc.engine.exposure import ExposureSummary, day_periods, exposure_summ
 from roomcalc.engine.model import Room, at_occupancy
 from roomcalc.engine.planner import Candidate, Goals, Plan
 from roomcalc.io.planning import resolve_candidates, resolve_goals, work_patterns
-from roomcalc.io.roomfile import RoomSpec
+from roomcalc.io.roomfile import RoomSpec, limit_values
 
 __all__ = ["Occupancy", "LevelCheck", "TargetCheck", "PlanRun", "criterion_of", "occupancy_for",
            "target_check", "exposures", "make_plan", "window_of"]
@@ -135,24 +135,27 @@ def target_check(spec: RoomSpec, room: Room, result: RoomResult, criteria: dict,
     if spec.target is None:
         return None
     method = result.method
-    goals = resolve_goals(spec, room, criteria, filename=filename)
+    t = spec.target
     crit = criterion_of(spec, criteria)
     occ = occupancy_for(crit, room, result, method)
     judged = occ.result if occ.result is not None else result
     rt = judged.rt60_s[method]
+    bands = room.bands_hz
     assessment = None
-    if crit is not None:
-        assessment = assess(crit, room.volume, room.bands_hz, rt)
-    elif goals.rt60_max is not None or goals.rt60_min is not None:
-        window = user_window(room.bands_hz, goals.rt60_min, goals.rt60_max,
+    if crit is not None:            # a criterion that does not apply says why in its verdict
+        assessment = assess(crit, room.volume, bands, rt)
+    elif t.rt60_max is not None or t.rt60_min is not None:
+        def lim(x):
+            return None if x is None else np.array(limit_values(x, bands), dtype=float)
+        window = user_window(bands, lim(t.rt60_min), lim(t.rt60_max),
                              id="room-file", title="the room file's own window")
-        assessment = assess(window, room.volume, room.bands_hz, rt)
+        assessment = assess(window, room.volume, bands, rt)
     levels = []
     by_name = {r.name: r for r in result.receivers}
-    for g in goals.levels:
-        r = by_name.get(g.receiver)
-        if r is not None and g.max_dba is not None:
-            levels.append(LevelCheck(g.receiver, float(r.level_dba), float(g.max_dba)))
+    for name, max_dba in t.max_level_dba.items():
+        r = by_name.get(name)
+        if r is not None:
+            levels.append(LevelCheck(name, float(r.level_dba), float(max_dba)))
     return TargetCheck(method, assessment, tuple(levels), occ)
 
 

@@ -1,0 +1,180 @@
+"""The core (roomcalc.study) gives one consistent answer: one formula in force for the summary,
+the target check, the plan and before/after, in every output format; each criterion's section
+printed right."""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+import math
+
+import numpy as np
+import pytest
+
+from roomcalc.engine.analysis import METHOD_TITLES, evaluate
+from roomcalc.engine.criteria import assess
+from roomcalc.io import paths
+from roomcalc.io.criteria import load_criteria
+from roomcalc.io.roomfile import check_room, read_spec
+from roomcalc.present import report, sections
+from roomcalc.study import Study
+
+
+def _study(name, catalog, **kw):
+    return Study.from_file(paths.example_rooms_dir() / name, catalog, **kw)
+
+
+def _without_method(spec):
+    if spec.target is not None:
+        spec.target.method = None
+    if hasattr(spec, "method"):
+        spec.method = None
+    return spec
+
+
+def test_recommended_formula_is_in_force_everywhere(catalog):
+    # The classroom without a chosen formula: the engine's recommendation is in force for the
+    # summary, the target check and the plan alike.
+    spec = _without_method(read_spec(paths.example_rooms_dir() / "classroom.toml"))
+    study = Study(spec, catalog, filename="classroom.toml")
+    ans = study.answer()
+    bare = evaluate(check_room(spec, catalog))       # the engine's own recommendation
+    assert ans.method == bare.recommended == bare.method
+    assert ans.target.method == ans.method
+    run = study.plan(result=ans.result)
+    assert run.plan.method == ans.method
+    # Every format names the same formula.
+    text = report.report(ans, "text", "classroom.toml")
+    assert f"* {METHOD_TITLES[ans.method]} is the formula in force" in text
+    assert f"Target (RT60 by {METHOD_TITLES[ans.method]}" in text
+    md = report.report(ans, "markdown", "classroom.toml")
+    assert f"{METHOD_TITLES[ans.method]} is the formula in force" in md
+    data = json.loads(report.report(ans, "json", "classroom.toml"))
+    assert data["method"] == ans.method and data["target"]["method"] == ans.method
+    assert data["method_reason"]
+    rows = list(csv.reader(io.StringIO(report.report(ans, "csv", "classroom.toml"))))
+    assert [r[1] for r in rows if r[0] == "rt60" and "(in force)" in r[1]] == \
+        [f"{ans.method} (in force)"]
+    assert sections.plan_dict(run)["method"] == ans.method
+
+
+@pytest.mark.parametrize("method", ["sabine", "eyring", "millington", "fitzroy",
+                                    "arau_puchades"])
+def test_chosen_formula_is_used_by_check_and_summary(method, catalog):
+    spec = _without_method(read_spec(paths.example_rooms_dir() / "classroom.toml"))
+    spec.target.method = method
+    ans = Study(spec, catalog).answer()
+    assert ans.method == method and ans.target.method == method
+    np.testing.assert_array_equal(ans.target.assessment.estimate_s[
+        ans.target.assessment.in_assessment],
+        # the assessment is for the room at the criterion's occupancy, by the chosen formula
+        (ans.target.occupancy.result or ans.result).rt60_s[method][
+            ans.target.assessment.in_assessment])
+
+
+def test_compare_keeps_the_before_formula(catalog):
+    # The demo garage (live: Sabine recommended) and its treated copy (dead): before/after
+    # must not switch formula under the user.
+    before = Study.from_file(paths.demo_room_path(), catalog).evaluate()
+    after_own = Study.from_file(paths.demo_treated_path(), catalog).evaluate()
+    cmp = Study.compare(before, after_own)
+    assert cmp.method == before.method
+    np.testing.assert_allclose(cmp.rt60_change_s[before.method],
+                               after_own.rt60_s[before.method] - before.rt60_s[before.method])
+    text = report.compare_report(cmp, ("a", "b"))
+    assert f"RT60 [s], {METHOD_TITLES[before.method]}" in text
+    assert json.loads(report.compare_report(cmp, ("a", "b"), "json"))["method"] == before.method
+
+
+def test_plan_totals_keep_area_and_units_apart(catalog):
+    study = _study("workshop.toml", catalog)
+    run = study.plan()
+    covers = sum(it.amount for it in run.plan.items if it.kind == "cover")
+    units = sum(it.amount for it in run.plan.items if it.kind == "units")
+    assert covers > 0 and units > 0          # the workshop plan uses both
+    d = sections.plan_dict(run)
+    assert d["total_area_m2"] == pytest.approx(covers) and d["total_units"] == units
+    text = sections.plan_text(run)
+    assert f"total: {covers:.2f} m^2 and {units:g} units" in text
+
+
+# --------------------------------------------------------------------------- criteria text
+
+@pytest.mark.parametrize("cid", sorted(load_criteria()))
+def test_each_criterion_section_prints_its_window(cid, catalog):
+    """Every criterion of the library, on a room of a volume it applies to: the printed window
+    and verdicts are those of the assessment (no '--', no NaN, the assessed bands marked)."""
+    crit = load_criteria()[cid]
+    spec = read_spec(paths.example_rooms_dir() / "classroom.toml")
+    spec.target.criterion = cid
+    study = Study(spec, catalog)
+    ans = study.answer()
+    a = ans.target.assessment
+    text = sections.target_text(ans.target)
+    assert "--" not in text and "nan" not in text.lower()
+    assert crit.title in text
+    if not a.applicable:
+        assert "not applicable" in text
+        return
+    lines = text.splitlines()
+    for i, b in enumerate(a.bands_hz):
+        if not a.in_assessment[i]:
+            continue
+        label = f"{b:g}" if b < 1000 else f"{b / 1000:g}k"
+        row = next(line for line in lines if line.split() and line.split()[0] == label)
+        assert f"{a.estimate_s[i]:.2f}" in row
+        if crit.assess == "mean-of-bands":
+            assert row.rstrip().endswith("in the mean")
+        else:
+            assert row.rstrip().endswith(a.band_status[i])
+            if math.isfinite(a.target_max_s[i]):
+                assert f"{a.target_max_s[i]:.2f}" in row
+    if crit.assess == "mean-of-bands":
+        hi = a.mean_max_s
+        assert f"mean of the assessed bands {a.mean_s:.2f} s against at most {hi:.2f} s" in text
+        assert text.count("in the mean") == int(a.in_assessment.sum())
+    assert f"overall: {a.status}" in text
+    if crit.assessed_share is not None:
+        assert "assessed" in text and crit.occupancy_source.split("]")[0] in text
+
+
+def test_bb93_mean_is_assessed_against_its_limit(catalog):
+    # Source: BB93 (2015) -- Tmf is the mean of the 500, 1000 and 2000 Hz bands, at most
+    # 0.6 s for a new-build primary classroom ([memory], as the library marks it).
+    spec = read_spec(paths.example_rooms_dir() / "classroom.toml")
+    spec.target.criterion = "bb93-primary-new"
+    ans = Study(spec, catalog).answer()
+    a = ans.target.assessment
+    rt = (ans.target.occupancy.result or ans.result).rt60_s[ans.method]
+    bands = list(ans.result.bands_hz)
+    tmf = np.mean([rt[bands.index(b)] for b in (500, 1000, 2000)])
+    assert a.mean_s == pytest.approx(tmf)
+    assert a.mean_max_s == pytest.approx(0.6)
+    assert a.status == ("pass" if tmf <= 0.6 else "fail")
+    d = sections.target_dict(ans.target)
+    assert d["rt60"]["mean"]["max_s"] == pytest.approx(0.6)
+    assert d["rt60"]["mean"]["min_s"] is None
+
+
+def test_json_outputs_are_strict(catalog):
+    """No NaN or infinity in any JSON the core writes (strict parsers reject them)."""
+    for name in ("classroom.toml", "workshop.toml", "garage-studio.toml"):
+        study = _study(name, catalog)
+        text = report.report(study.answer(), "json", name)
+        json.loads(text, parse_constant=lambda c: pytest.fail(f"{name}: {c} in JSON"))
+        if study.spec.target is not None:
+            json.dumps(sections.plan_dict(study.plan()), allow_nan=False)
+
+
+def test_assess_uses_the_room_volume(catalog):
+    # A regression guard for the window: ANSI S12.60's step for the classroom's volume.
+    study = _study("classroom.toml", catalog)
+    ans = study.answer()
+    crit = load_criteria()["ansi-s12.60-2010-core"]
+    # Source: ANSI/ASA S12.60-2010 Part 1 -- 0.6 s up to 283 m^3 (as the library quotes it).
+    direct = assess(crit, ans.room.volume, ans.room.bands_hz,
+                    (ans.target.occupancy.result or ans.result).rt60_s[ans.method])
+    assert ans.room.volume < 283.0
+    assert np.nanmax(direct.target_max_s) == pytest.approx(0.6)
+    assert direct.status == ans.target.assessment.status

@@ -1,0 +1,134 @@
+"""The edit rules of the core (roomcalc.study.edits), without any interface: band changes across
+every per-band list, renames that carry to every reference, unit conversion, exclusive keys."""
+
+from __future__ import annotations
+
+import copy
+
+import numpy as np
+import pytest
+
+from roomcalc.engine.analysis import evaluate
+from roomcalc.io import paths
+from roomcalc.io.roomfile import check_room, read_spec
+from roomcalc.study.edits import change_bands, convert_units, rename_item, set_item_fields
+
+
+def _example(name):
+    return read_spec(paths.example_rooms_dir() / name)
+
+
+def _per_band_lists(spec):
+    """Every per-band list of a spec, by where it is, for checking their lengths."""
+    out = {}
+    for i, s in enumerate(spec.surfaces):
+        if s.alpha is not None:
+            out[f"surfaces[{i}].alpha"] = s.alpha
+    for i, o in enumerate(spec.objects):
+        if o.absorption is not None:
+            out[f"objects[{i}].absorption"] = o.absorption
+    for i, s in enumerate(spec.sources):
+        if s.sound_power is not None:
+            out[f"sources[{i}].sound_power"] = s.sound_power
+    for i, c in enumerate(spec.candidates):
+        for key in ("alpha", "absorption"):
+            if getattr(c, key) is not None:
+                out[f"candidates[{i}].{key}"] = getattr(c, key)
+    t = spec.target
+    if t is not None:
+        for key in ("rt60_max", "rt60_min"):
+            if isinstance(getattr(t, key), list):
+                out[f"target.{key}"] = getattr(t, key)
+        for name, lim in t.max_level_db.items():
+            if isinstance(lim, list):
+                out[f"target.max_level_db.{name}"] = lim
+    return out
+
+
+def test_workshop_with_63_hz_added_stays_valid(catalog):
+    # The workshop has sources and a candidate with 6 values per band, catalogue materials
+    # that give no 63 Hz value, and (here) per-band target lists: every one must follow.
+    spec = _example("workshop.toml")
+    spec.target.rt60_max = [0.9, 0.8, 0.8, 0.8, 0.8, 0.8]
+    spec.target.max_level_db = {"Assembly bench": [90.0, 90.0, 88.0, 88.0, 88.0, 85.0]}
+    before = copy.deepcopy(spec)
+    notes = change_bands(spec, [63, 125, 250, 500, 1000, 2000, 4000], catalog)
+    assert spec.bands == (63, 125, 250, 500, 1000, 2000, 4000)
+    lists = _per_band_lists(spec)
+    assert lists and all(len(v) == 7 for v in lists.values()), \
+        {k: len(v) for k, v in lists.items() if len(v) != 7}
+    # The added band repeats the nearest band (125 Hz); the others are unchanged.
+    assert spec.sources[0].sound_power == [95.0] + before.sources[0].sound_power
+    assert spec.target.rt60_max == [0.9] + before.target.rt60_max
+    # Materials without a 63 Hz value became own values, each named in a note.
+    steel = spec.surfaces[1]
+    assert steel.material is None and len(steel.alpha) == 7
+    assert any("'steel-sheet-on-frame'" in n and "63 Hz" in n for n in notes)
+    cat_steel = catalog.get("steel-sheet-on-frame").values
+    assert steel.alpha[1:] == [cat_steel[b] for b in (125, 250, 500, 1000, 2000, 4000)]
+    # The room is valid as it is: the same checks as a file's.
+    room = check_room(spec, catalog, "workshop.toml")
+    assert room.bands_hz == (63, 125, 250, 500, 1000, 2000, 4000)
+    # And back: every list shrinks to 6 again, the values at the kept bands as they were.
+    change_bands(spec, [125, 250, 500, 1000, 2000, 4000], catalog)
+    assert spec.bands_hz is None
+    assert all(len(v) == 6 for v in _per_band_lists(spec).values())
+    assert spec.sources[0].sound_power == before.sources[0].sound_power
+    assert spec.target.max_level_db == before.target.max_level_db
+    check_room(spec, catalog, "workshop.toml")
+
+
+def test_band_table_limits_drop_removed_bands(catalog):
+    spec = _example("workshop.toml")
+    spec.target.rt60_max = {125: 1.0, 500: 0.8, 4000: 0.7}
+    change_bands(spec, [125, 250, 500, 1000, 2000], catalog)
+    assert spec.target.rt60_max == {125: 1.0, 500: 0.8}
+
+
+def test_rename_follows_every_reference():
+    spec = _example("workshop.toml")
+    saw = spec.sources[0].name
+    worker = next(r for r in spec.receivers if saw in r.source_hours or saw in r.distances)
+    rename_item(spec, "sources", 0, "Circular saw")
+    assert "Circular saw" in worker.source_hours or "Circular saw" in worker.distances
+    assert all(saw not in r.source_hours and saw not in r.distances for r in spec.receivers)
+    roof = next(i for i, s in enumerate(spec.surfaces)
+                if any(c.surface == s.name for c in spec.candidates))
+    old = spec.surfaces[roof].name
+    rename_item(spec, "surfaces", roof, "Roof soffit")
+    assert any(c.surface == "Roof soffit" for c in spec.candidates)
+    assert not any(c.surface == old for c in spec.candidates)
+    bench = next(i for i, r in enumerate(spec.receivers)
+                 if r.name in spec.target.max_level_dba)
+    rename_item(spec, "receivers", bench, "Bench 1")
+    assert "Bench 1" in spec.target.max_level_dba
+
+
+def test_rename_through_set_fields_and_exclusive_keys():
+    spec = _example("workshop.toml")
+    set_item_fields(spec, "surfaces", 0, {"alpha": [0.1] * 6})
+    assert spec.surfaces[0].material is None
+    set_item_fields(spec, "sources", 0, {"sound_power_dba": 100.0})
+    assert spec.sources[0].sound_power is None and spec.sources[0].spectrum == "pink"
+    set_item_fields(spec, "sources", 0, {"directivity": 4.0})
+    assert spec.sources[0].placement is None
+    name = spec.sources[1].name
+    set_item_fields(spec, "sources", 1, {"name": "Thicknesser"})
+    assert all(name not in r.distances and name not in r.source_hours for r in spec.receivers)
+
+
+@pytest.mark.parametrize("name", ["workshop.toml", "classroom.toml", "garage-studio.toml"])
+def test_unit_conversion_round_trip(name, catalog):
+    spec = _example(name)
+    res0 = evaluate(check_room(spec, catalog))
+    convert_units(spec, "imperial")
+    assert spec.units == "imperial"
+    res1 = evaluate(check_room(spec, catalog))
+    convert_units(spec, "metric")
+    res2 = evaluate(check_room(spec, catalog))
+    # Common practice: 1 ft = 0.3048 m exactly; lengths are kept to 4 decimals, so the room
+    # is the same to about 1e-4 relative.
+    for res in (res1, res2):
+        assert res.volume_m3 == pytest.approx(res0.volume_m3, rel=1e-3)
+        for k, v in res0.rt60_s.items():
+            np.testing.assert_allclose(res.rt60_s[k], v, rtol=2e-3)
