@@ -113,3 +113,51 @@ def test_interface_layers():
             if mod.split(".")[0] in UI:
                 bad.append(f"document.py:{line} imports {mod} (it holds no interface)")
     assert not bad, bad
+
+
+def _imported_names(path: Path):
+    """(module, name, line) of every ``from module import name`` in a file."""
+    for node in ast.walk(ast.parse(path.read_text(encoding="utf-8"))):
+        if isinstance(node, ast.ImportFrom) and node.level == 0 and node.module:
+            for a in node.names:
+                yield node.module, a.name, node.lineno
+
+
+def test_core_layers():
+    # engine <- io <- study <- present <- cli / tui: the core knows no front end, and the
+    # answers are decided in study, not in the presenters.
+    bad = []
+    for sub, forbidden in (("study", ("roomcalc.present", "roomcalc.tui", "roomcalc.cli")),
+                           ("present", ("roomcalc.tui", "roomcalc.cli"))):
+        for f in _modules(sub):
+            for mod, line in _imports(f):
+                if mod.startswith(forbidden) or mod.split(".")[0] in UI:
+                    bad.append(f"{sub}/{f.name}:{line} imports {mod}")
+    assert not bad, bad
+
+
+#: What only the core may call: the pipeline's steps (check, evaluate, target, exposure, plan).
+PIPELINE = {("roomcalc.engine.analysis", "evaluate"), ("roomcalc.engine.analysis", "compare"),
+            ("roomcalc.io.roomfile", "check_room"), ("roomcalc.io.roomfile", "read_room"),
+            ("roomcalc.engine.criteria", "assess"), ("roomcalc.engine.planner", "plan")}
+PIPELINE_MODULES = ("roomcalc.io.planning", "roomcalc.engine.exposure",
+                    "roomcalc.engine.planner")
+
+
+def test_front_ends_do_not_assemble_the_pipeline():
+    # The command line and the interface call roomcalc.study; neither runs the steps itself.
+    files = [PKG / "cli.py"] + _modules("tui")
+    bad = []
+    for f in files:
+        for mod, name, line in _imported_names(f):
+            if (mod, name) in PIPELINE or mod.startswith(PIPELINE_MODULES):
+                bad.append(f"{f.relative_to(PKG)}:{line} imports {name} from {mod}")
+    assert not bad, bad
+
+
+def test_pipeline_rule_catches_a_front_end_that_evaluates(tmp_path):
+    # The scan above must be able to fail: a front end importing evaluate is caught.
+    f = tmp_path / "front.py"
+    f.write_text("from roomcalc.engine.analysis import evaluate\n", encoding="utf-8")
+    assert [(m, n) for m, n, _ in _imported_names(f) if (m, n) in PIPELINE] == \
+        [("roomcalc.engine.analysis", "evaluate")]
