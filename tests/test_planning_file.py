@@ -27,6 +27,7 @@ from roomcalc.engine.analysis import evaluate
 from roomcalc.engine.criteria import user_window
 from roomcalc.engine.planner import Plan
 from roomcalc.io import roomfile
+from roomcalc.io.criteria import shipped_criteria
 from roomcalc.io.errors import RoomFileError
 from roomcalc.io.planning import apply_plan, resolve_candidates, resolve_goals, work_patterns
 from roomcalc.io.roomfile import (check_room, parse_spec, read_room, save_spec, spec_to_dict,
@@ -513,7 +514,7 @@ def test_unknown_criterion_in_check_room_lists_the_known(catalog):
     with pytest.raises(RoomFileError) as info:
         check_room(spec, catalog)
     (p,) = info.value.problems
-    known = sorted(roomfile.shipped_criteria())
+    known = sorted(shipped_criteria())
     assert p.where == "target.criterion"
     assert p.message.startswith("unknown criterion 'din-18041-2016-a9'; did you mean "
                                 "'din-18041-2016-a")

@@ -22,11 +22,11 @@ from roomcalc.engine.criteria import applicability, target_window
 from roomcalc.engine.planner import Candidate, Goals, LevelGoal, Plan
 from roomcalc.io.catalog import Catalog
 from roomcalc.io.checks import Checker
+from roomcalc.io.criteria import check_criterion_id, shipped_criteria
 from roomcalc.io.errors import Problem, RoomFileError
 from roomcalc.io.roomfile import (AREA_COST_KEY, CANDIDATE_ALPHA_MAX, CandidateSpec,
                                   ObjectSpec, RoomSpec, SurfaceSpec, candidate_material,
-                                  check_criterion_id, limit_values, room_catalog,
-                                  shipped_criteria)
+                                  limit_values, room_catalog, surface_area_m2)
 from roomcalc.io.units import UNITS
 
 #: A cover leaving less than this share of its surface uncovered covers all of it (the rest
@@ -308,19 +308,12 @@ def apply_plan(spec: RoomSpec, plan: Plan, candidates: list[Candidate]) -> RoomS
 
 
 def _total_area_m2(spec: RoomSpec, i: int) -> float:
-    """A surface's total area [m^2] over its count, by the rule of resolve: its own area, or the
-    rest of its box face after the other surfaces on that face."""
-    u = spec.unit_system
-    s = spec.surfaces[i]
-    if s.area is not None:
-        return float(s.area) * u.area * s.count
-    L, W, H = (float(x) * u.length for x in (spec.shape.length, spec.shape.width,
-                                             spec.shape.height))
-    face = {"floor": L * W, "ceiling": L * W, "front": W * H, "back": W * H, "left": L * H,
-            "right": L * H}[s.face]
-    taken = sum(float(o.area) * u.area * o.count for j, o in enumerate(spec.surfaces)
-                if j != i and o.face == s.face)
-    return face - taken
+    """A surface's total area [m^2] over its count (:func:`roomcalc.io.roomfile.surface_area_m2`:
+    its own area, or the rest of its box face)."""
+    area, problem = surface_area_m2(spec, i)
+    if problem:
+        raise ValueError(f"surfaces[{i}].area: {problem}")
+    return area * spec.surfaces[i].count
 
 
 def _tidy(x: float) -> float:
