@@ -174,7 +174,7 @@ def _objects(chk: Checker, data: dict, spec: RoomSpec, u: Units) -> None:
         w = f"objects[{i}]"
         chk.keys(o, w, OBJECT_KEYS)
         op = ObjectSpec(name=chk.text(o, "name", w, default=f"Object {i + 1}"))
-        op.count = chk.number(o, "count", w, low=0.0, default=1)
+        op.count = float(chk.number(o, "count", w, low=0.0, default=1))
         op.material = chk.text(o, "material", w)
         op.absorption = chk.numbers(o, "absorption", w, length=nb, low=0.0,
                                     high=1000.0 / u.area, unit=bt)

@@ -27,11 +27,12 @@ def spec_to_dict(spec: RoomSpec) -> dict:
     d["shape"] = {k: getattr(spec.shape, k) for k in SHAPE_KEYS
                   if getattr(spec.shape, k) is not None}
     d["surfaces"] = [_clean({"name": s.name, "area": s.area,
-                             "count": s.count if s.count != 1 else None, "face": s.face,
+                             "count": _whole(s.count) if s.count != 1 else None, "face": s.face,
                              "material": s.material, "alpha": s.alpha}) for s in spec.surfaces]
     if spec.objects:
-        d["objects"] = [_clean({"name": o.name, "count": o.count, "material": o.material,
-                                "absorption": o.absorption}) for o in spec.objects]
+        d["objects"] = [_clean({"name": o.name, "count": _whole(o.count),
+                                "material": o.material, "absorption": o.absorption})
+                        for o in spec.objects]
     if spec.sources:
         d["sources"] = [_clean({"name": s.name, "sound_power": s.sound_power,
                                 "sound_power_dba": s.sound_power_dba, "spectrum": s.spectrum,
@@ -62,8 +63,20 @@ def _planning(spec: RoomSpec, d: dict) -> None:
             "rt60_min": _limit_out(t.rt60_min), "max_level_dba": dict(t.max_level_dba) or None,
             "max_level_db": {k: _limit_out(v) for k, v in t.max_level_db.items()} or None})
     if spec.candidates:
-        d["candidates"] = [_clean({k: _limit_out(getattr(c, k)) for k in CANDIDATE_KEYS})
-                           for c in spec.candidates]
+        d["candidates"] = [_candidate_out(c) for c in spec.candidates]
+
+
+def _candidate_out(c) -> dict:
+    d = {k: _limit_out(getattr(c, k)) for k in CANDIDATE_KEYS}
+    d["max_count"] = _whole(c.max_count)
+    return _clean(d)
+
+
+def _whole(v):
+    """A count as a file keeps it: a whole number without a decimal point (28, not 28.0)."""
+    if isinstance(v, float) and v.is_integer() and abs(v) < 2.0 ** 53:
+        return int(v)
+    return v
 
 
 def _limit_out(v):
