@@ -123,7 +123,8 @@ class Checker:
         return v
 
     def text(self, table: dict, key: str, where: str, required=False, default=None,
-             choices=None):
+             choices=None, nonempty=False):
+        """Text at ``table[key]``; ``nonempty``: empty text (or only spaces) is a problem."""
         if key not in table:
             if required:
                 self.add(_join(where, key), "is required (text)")
@@ -131,6 +132,9 @@ class Checker:
         v = table[key]
         if not isinstance(v, str):
             self.add(_join(where, key), f"must be text, not {kind_of(v)}")
+            return default
+        if nonempty and not v.strip():
+            self.add(_join(where, key), "is empty: give a value, or leave the key out")
             return default
         if choices is not None and v not in choices:
             near = difflib.get_close_matches(v, list(choices), n=1, cutoff=0.4)

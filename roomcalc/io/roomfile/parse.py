@@ -154,7 +154,7 @@ def _surfaces(chk: Checker, data: dict, spec: RoomSpec, u: Units) -> None:
         sp.area = chk.number(s, "area", w, low=0.0, low_open=True, unit=u.area_label)
         sp.count = chk.number(s, "count", w, low=1, integer=True, default=1)
         sp.face = chk.text(s, "face", w, choices=FACES)
-        sp.material = chk.text(s, "material", w)
+        sp.material = chk.text(s, "material", w, nonempty=True)
         sp.alpha = chk.numbers(s, "alpha", w, length=nb, low=0.0, high=ALPHA_MAX, unit=bt)
         if "material" in s and "alpha" in s:
             chk.add(w, "give either material or alpha, not both")
@@ -175,7 +175,7 @@ def _objects(chk: Checker, data: dict, spec: RoomSpec, u: Units) -> None:
         chk.keys(o, w, OBJECT_KEYS)
         op = ObjectSpec(name=chk.text(o, "name", w, default=f"Object {i + 1}"))
         op.count = float(chk.number(o, "count", w, low=0.0, default=1))
-        op.material = chk.text(o, "material", w)
+        op.material = chk.text(o, "material", w, nonempty=True)
         op.absorption = chk.numbers(o, "absorption", w, length=nb, low=0.0,
                                     high=1000.0 / u.area, unit=bt)
         if ("material" in o) == ("absorption" in o):

@@ -125,7 +125,7 @@ def parse_candidates(chk: Checker, data: dict, spec: RoomSpec, u: Units) -> list
         cp = CandidateSpec(name=chk.text(c, "name", w, default=f"Candidate {i + 1}"))
         if any(o.name == cp.name for o in out):
             chk.add(f"{w}.name", f"'{cp.name}' is used by another candidate; names must differ")
-        cp.material = chk.text(c, "material", w)
+        cp.material = chk.text(c, "material", w, nonempty=True)
         if "surface" in c:
             _cover(chk, c, w, cp, spec, u)
         else:
