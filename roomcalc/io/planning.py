@@ -93,8 +93,9 @@ def resolve_goals(spec: RoomSpec, room, criteria=None, *, filename: str = "<room
             levels.append(LevelGoal(r.name, float(dba) if dba is not None else None,
                                     np.array(limit_values(db, bands)) if db is not None
                                     else None))
-    return Goals(method=t.plan_method, rt60_max=rt_max, rt60_min=rt_min, levels=tuple(levels),
-                 objective=t.plan_objective, source=t.criterion or "")
+    # TODO(lead): the core passes the recommended method when the file names none.
+    return Goals(method=spec.method_in_force or "eyring", rt60_max=rt_max, rt60_min=rt_min,
+                 levels=tuple(levels), objective=t.plan_objective, source=t.criterion or "")
 
 
 def _criterion_window(cid: str, room, criteria, filename: str):

@@ -20,8 +20,8 @@ from roomcalc.io.roomfile.resolve import (candidate_material, check_room, materi
                                           material_values, read_room, resolve, room_catalog)
 from roomcalc.io.roomfile.spec import (AIR_KEYS, AREA_COST_KEY, CANDIDATE_ALPHA_MAX,
                                        CANDIDATE_KEYS, COVER_KEYS, DEFAULT_OBJECTIVE,
-                                       DEFAULT_PLACEMENT, DEFAULT_PLAN_METHOD, FORMAT_VERSION,
-                                       LEVEL_LIMIT_MAX_DB, OBJECT_KEYS, OBJECTIVES, PLAN_METHODS,
+                                       DEFAULT_PLACEMENT, FORMAT_VERSION, METHODS,
+                                       LEVEL_LIMIT_MAX_DB, OBJECT_KEYS, OBJECTIVES,
                                        RECEIVER_KEYS, SHAPE_KEYS, SOURCE_KEYS, SURFACE_KEYS,
                                        TARGET_KEYS, TOP_KEYS, UNIT_KEYS, AirSpec, BandLimit,
                                        CandidateSpec, ObjectSpec, ReceiverSpec, RoomSpec,
@@ -33,8 +33,8 @@ __all__ = [
     # spec
     "FORMAT_VERSION", "TOP_KEYS", "AIR_KEYS", "SHAPE_KEYS", "SURFACE_KEYS", "OBJECT_KEYS",
     "SOURCE_KEYS", "RECEIVER_KEYS", "TARGET_KEYS", "COVER_KEYS", "UNIT_KEYS", "CANDIDATE_KEYS",
-    "CANDIDATE_ALPHA_MAX", "AREA_COST_KEY", "DEFAULT_PLACEMENT", "PLAN_METHODS", "OBJECTIVES",
-    "DEFAULT_PLAN_METHOD", "DEFAULT_OBJECTIVE", "LEVEL_LIMIT_MAX_DB",
+    "CANDIDATE_ALPHA_MAX", "AREA_COST_KEY", "DEFAULT_PLACEMENT", "METHODS", "OBJECTIVES",
+    "DEFAULT_OBJECTIVE", "LEVEL_LIMIT_MAX_DB",
     "AirSpec", "ShapeSpec", "SurfaceSpec", "ObjectSpec", "SourceSpec", "ReceiverSpec",
     "BandLimit", "TargetSpec", "CandidateSpec", "RoomSpec", "band_text", "limit_values",
     # faces

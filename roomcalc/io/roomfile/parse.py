@@ -18,10 +18,10 @@ from roomcalc.io.catalog import ALPHA_MAX, parse_entries
 from roomcalc.io.checks import Checker, read_toml
 from roomcalc.io.errors import Problem, RoomFileError
 from roomcalc.io.roomfile.faces import missing_area
-from roomcalc.io.roomfile.parse_target import parse_candidates, parse_target
-from roomcalc.io.roomfile.spec import (AIR_KEYS, FORMAT_VERSION, OBJECT_KEYS, RECEIVER_KEYS,
-                                       SHAPE_KEYS, SOURCE_KEYS, SURFACE_KEYS, TOP_KEYS,
-                                       ObjectSpec, ReceiverSpec, RoomSpec, SourceSpec,
+from roomcalc.io.roomfile.parse_target import check_one_method, parse_candidates, parse_target
+from roomcalc.io.roomfile.spec import (AIR_KEYS, FORMAT_VERSION, METHODS, OBJECT_KEYS,
+                                       RECEIVER_KEYS, SHAPE_KEYS, SOURCE_KEYS, SURFACE_KEYS,
+                                       TOP_KEYS, ObjectSpec, ReceiverSpec, RoomSpec, SourceSpec,
                                        SurfaceSpec, band_text)
 from roomcalc.io.units import UNITS, Units
 
@@ -70,6 +70,7 @@ def parse_data(data: dict, filename: str = "<room>") -> RoomSpec:
     spec.units = chk.text(data, "units", "", default="metric", choices=tuple(UNITS))
     u = UNITS[spec.units]
     spec.bands_hz = _bands(chk, data)
+    spec.method = chk.text(data, "method", "", choices=METHODS)
     _air(chk, data, spec, u)
     _shape(chk, data, spec, u)
     _surfaces(chk, data, spec, u)
@@ -77,6 +78,7 @@ def parse_data(data: dict, filename: str = "<room>") -> RoomSpec:
     bad_position = _sources(chk, data, spec)
     _receivers(chk, data, spec, u, bad_position)
     spec.target = parse_target(chk, data, spec.bands, [r.name for r in spec.receivers])
+    check_one_method(chk, spec)
     spec.candidates = parse_candidates(chk, data, spec, u)
     spec.materials = parse_entries(chk.array_of_tables(data, "materials"), chk,
                                    where="materials")

@@ -8,7 +8,7 @@ from __future__ import annotations
 from roomcalc.io.checks import Checker, kind_of, nearest
 from roomcalc.io.criteria import RT60_LIMIT_MAX_S
 from roomcalc.io.roomfile.spec import (AREA_COST_KEY, CANDIDATE_ALPHA_MAX, CANDIDATE_KEYS,
-                                       COVER_KEYS, LEVEL_LIMIT_MAX_DB, OBJECTIVES, PLAN_METHODS,
+                                       COVER_KEYS, LEVEL_LIMIT_MAX_DB, METHODS, OBJECTIVES,
                                        TARGET_KEYS, UNIT_KEYS, BandLimit, CandidateSpec,
                                        RoomSpec, TargetSpec, band_text, limit_values)
 from roomcalc.io.units import Units
@@ -23,7 +23,7 @@ def parse_target(chk: Checker, data: dict, bands, receivers: list) -> TargetSpec
     w = "target"
     chk.keys(t, w, TARGET_KEYS)
     tp = TargetSpec()
-    tp.method = chk.text(t, "method", w, choices=PLAN_METHODS)
+    tp.method = chk.text(t, "method", w, choices=METHODS)
     tp.objective = chk.text(t, "objective", w, choices=OBJECTIVES)
     tp.currency = chk.text(t, "currency", w)
     tp.criterion = chk.text(t, "criterion", w)
@@ -38,6 +38,17 @@ def parse_target(chk: Checker, data: dict, bands, receivers: list) -> TargetSpec
     _window_not_empty(chk, tp, bands)
     _level_limits(chk, t, tp, bands, receivers)
     return tp
+
+
+def check_one_method(chk: Checker, spec: RoomSpec) -> None:
+    """Top-level ``method`` and ``[target] method``, when both are given, name the same formula
+    (the room is evaluated and planned with one)."""
+    t = spec.target
+    if spec.method is not None and t is not None and t.method is not None \
+            and t.method != spec.method:
+        chk.add("target.method", f"'{t.method}' differs from the top-level method "
+                f"'{spec.method}'; the room is evaluated and planned with one formula: give "
+                "it once (top-level method) or the same in both")
 
 
 def _window_not_empty(chk: Checker, tp: TargetSpec, bands) -> None:

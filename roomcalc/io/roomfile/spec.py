@@ -9,13 +9,14 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field
 
+from roomcalc.engine.analysis import METHODS
 from roomcalc.engine.bands import DEFAULT_BANDS_HZ
 from roomcalc.engine.field import PLACEMENT_Q
 from roomcalc.io.catalog import Material
 from roomcalc.io.units import UNITS, Units
 
 FORMAT_VERSION = 1
-TOP_KEYS = ("version", "title", "units", "bands_hz", "air", "shape", "surfaces", "objects",
+TOP_KEYS = ("version", "title", "units", "bands_hz", "method", "air", "shape", "surfaces", "objects",
             "sources", "receivers", "target", "candidates", "materials")
 AIR_KEYS = ("temperature", "relative_humidity", "pressure_kpa")
 SHAPE_KEYS = ("length", "width", "height", "volume")
@@ -38,11 +39,11 @@ CANDIDATE_ALPHA_MAX = 1.0
 #: The key of a cover candidate's cost per unit area, by the file's units.
 AREA_COST_KEY = {"metric": "cost_per_m2", "imperial": "cost_per_ft2"}
 DEFAULT_PLACEMENT = "surface"
-#: The planner's formulas and objectives (roomcalc.engine.planner.PLAN_METHODS and OBJECTIVES,
-#: repeated so that reading a room file never loads the solver; a test keeps them equal).
-PLAN_METHODS = ("sabine", "eyring")
+#: The formulas a room file may name (top-level ``method``, ``[target] method``): the engine's
+#: reverberation methods (roomcalc.engine.analysis.METHODS). Not given: the engine recommends.
+#: The planner's objectives (roomcalc.engine.planner.OBJECTIVES, repeated so that reading a
+#: room file never loads the solver; a test keeps them equal).
 OBJECTIVES = ("cost", "area")
-DEFAULT_PLAN_METHOD = "eyring"
 DEFAULT_OBJECTIVE = "cost"
 #: Largest level accepted as a limit at a receiver [dB], as for sound power.
 LEVEL_LIMIT_MAX_DB = 200.0
@@ -146,8 +147,9 @@ class TargetSpec:
     max_level_db: dict[str, BandLimit] = field(default_factory=dict)   # receiver -> dB per band
 
     @property
-    def plan_method(self) -> str:
-        return self.method or DEFAULT_PLAN_METHOD
+    def plan_method(self) -> str | None:
+        """The formula this table names; None: not given (see RoomSpec.method_in_force)."""
+        return self.method
 
     @property
     def plan_objective(self) -> str:
@@ -190,6 +192,7 @@ class RoomSpec:
     title: str = ""
     units: str = "metric"
     bands_hz: list[int] | None = None
+    method: str | None = None               # one of METHODS; None: the recommended one
     air: AirSpec = field(default_factory=AirSpec)
     shape: ShapeSpec = field(default_factory=ShapeSpec)
     surfaces: list[SurfaceSpec] = field(default_factory=list)
@@ -208,3 +211,9 @@ class RoomSpec:
     @property
     def unit_system(self) -> Units:
         return UNITS[self.units]
+
+    @property
+    def method_in_force(self) -> str | None:
+        """The formula the file asks for: top-level ``method``, else ``[target] method``;
+        None: the file names none (the engine's recommendation applies)."""
+        return self.method or (self.target.method if self.target is not None else None)

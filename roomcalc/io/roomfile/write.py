@@ -19,6 +19,8 @@ def spec_to_dict(spec: RoomSpec) -> dict:
     d["units"] = spec.units
     if spec.bands_hz:
         d["bands_hz"] = list(spec.bands_hz)
+    if spec.method is not None:
+        d["method"] = spec.method
     air = {k: v for k, v in (("temperature", spec.air.temperature),
                              ("relative_humidity", spec.air.relative_humidity),
                              ("pressure_kpa", spec.air.pressure_kpa)) if v is not None}
