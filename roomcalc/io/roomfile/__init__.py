@@ -17,7 +17,8 @@ from roomcalc.io.roomfile.faces import (AREA_OR_FACE, box_dimensions_m, face_are
 from roomcalc.io.roomfile.parse import SpecProblems, parse_data, parse_spec, read_spec
 from roomcalc.io.roomfile.parse_target import band_limit, parse_candidates, parse_target
 from roomcalc.io.roomfile.resolve import (candidate_material, check_room, material_problems,
-                                          material_values, read_room, resolve, room_catalog)
+                                          material_values, read_room, resolve, room_catalog,
+                                          unoccupied_values)
 from roomcalc.io.roomfile.spec import (AIR_KEYS, AREA_COST_KEY, CANDIDATE_ALPHA_MAX,
                                        CANDIDATE_KEYS, COVER_KEYS, DEFAULT_OBJECTIVE,
                                        DEFAULT_PLACEMENT, FORMAT_VERSION, METHODS,
@@ -44,7 +45,7 @@ __all__ = [
     "band_limit",
     # resolve
     "read_room", "check_room", "resolve", "room_catalog", "material_values",
-    "candidate_material", "material_problems",
+    "candidate_material", "material_problems", "unoccupied_values",
     # write
     "spec_to_dict", "spec_to_toml", "save_spec",
 ]

@@ -15,7 +15,7 @@ from roomcalc.engine.field import PLACEMENT_Q
 from roomcalc.engine.model import FACES
 from roomcalc.engine.spectra import SPECTRUM_SHAPES
 from roomcalc.io.catalog import ALPHA_MAX, parse_entries
-from roomcalc.io.checks import Checker, read_toml
+from roomcalc.io.checks import Checker, kind_of, read_toml
 from roomcalc.io.errors import Problem, RoomFileError
 from roomcalc.io.roomfile.faces import missing_area
 from roomcalc.io.roomfile.parse_target import check_one_method, parse_candidates, parse_target
@@ -183,6 +183,11 @@ def _objects(chk: Checker, data: dict, spec: RoomSpec, u: Units) -> None:
         if ("material" in o) == ("absorption" in o):
             chk.add(w, "give either material (a catalogue id of kind object) or absorption "
                     f"({u.area_label} per unit, {bt})")
+        if "occupant" in o:
+            if isinstance(o["occupant"], bool):
+                op.occupant = o["occupant"]
+            else:
+                chk.add(f"{w}.occupant", f"must be true or false, not {kind_of(o['occupant'])}")
         spec.objects.append(op)
 
 

@@ -9,7 +9,7 @@ import math
 
 from roomcalc.engine.model import Air, Receiver, Room, RoomObject, Source, Surface
 from roomcalc.engine.spectra import band_power_from_dba
-from roomcalc.io.catalog import Catalog, Material
+from roomcalc.io.catalog import Catalog, Material, counterpart_problems
 from roomcalc.io.checks import Checker, nearest
 from roomcalc.io.criteria import check_criterion_id
 from roomcalc.io.errors import Problem, RoomFileError
@@ -60,6 +60,10 @@ def material_problems(spec: RoomSpec, inline_ids: set, catalog: Catalog,
     merged = dict(catalog.materials)
     merged.update({m.id: m for m in spec.materials if m.id not in merged})
     cat, chk = Catalog(merged), Checker(filename)
+    for i, m in enumerate(spec.materials):
+        if merged[m.id] is m:
+            for _, msg in counterpart_problems(merged, [m]):
+                chk.add(f"materials[{i}].unoccupied", msg)
     for group, items, kind in (("surfaces", spec.surfaces, "surface"),
                                ("objects", spec.objects, "object")):
         for i, it in enumerate(items):
@@ -120,7 +124,29 @@ def room_catalog(spec: RoomSpec, catalog: Catalog, chk: Checker) -> Catalog:
             chk.add(f"materials[{i}].id", f"'{m.id}' is already defined in {other}")
         else:
             fresh.append(m)
-    return catalog.with_materials(fresh) if fresh else catalog
+    if not fresh:
+        return catalog
+    cat = catalog.with_materials(fresh)
+    index = {id(m): i for i, m in enumerate(spec.materials)}
+    for m, msg in counterpart_problems(cat.materials, fresh):
+        chk.add(f"materials[{index[id(m)]}].unoccupied", msg)
+    return cat
+
+
+def unoccupied_values(cat: Catalog, chk: Checker, mid: str, where: str, bands):
+    """The values at the bands of what remains of material ``mid`` when its people leave (its
+    ``unoccupied`` counterpart), or None if it names none (or after reporting to chk that the
+    counterpart lacks a band, at ``WHERE.material``).
+
+    The counterpart itself (known, same kind, no people) is checked where entries are read:
+    :func:`roomcalc.io.catalog.load_catalog` for catalogue files, :func:`room_catalog` for a
+    room's own [[materials]]; one that fails those checks is reported there, not again here.
+    """
+    m = cat.get(mid)
+    other = cat.get(m.unoccupied) if m is not None and m.unoccupied is not None else None
+    if other is None or other.kind != m.kind:
+        return None
+    return _values_at(other, chk, f"{where}.material", bands)
 
 
 def resolve(spec: RoomSpec, catalog: Catalog, filename: str = "<room>", criteria=None) -> Room:
@@ -160,11 +186,14 @@ def _surfaces(spec: RoomSpec, cat: Catalog, chk: Checker) -> list[Surface]:
         w = f"surfaces[{i}]"
         alpha = material_values(cat, chk, s.material, w, "surface", spec.bands) \
             if s.material else s.alpha
+        empty = unoccupied_values(cat, chk, s.material, w, spec.bands) \
+            if s.material and alpha is not None else None
         area, problem = surface_area_m2(spec, i)
         if problem:
             chk.add(f"{w}.area", problem)
         elif alpha is not None:
-            out.append(Surface(s.name, area, alpha, int(s.count), s.face, s.material))
+            out.append(Surface(s.name, area, alpha, int(s.count), s.face, s.material,
+                               unoccupied_alpha=empty))
     return out
 
 
@@ -172,12 +201,19 @@ def _objects(spec: RoomSpec, cat: Catalog, chk: Checker) -> list[RoomObject]:
     u = spec.unit_system
     out = []
     for i, o in enumerate(spec.objects):
+        w = f"objects[{i}]"
         if o.material:
-            a = material_values(cat, chk, o.material, f"objects[{i}]", "object", spec.bands)
+            a = material_values(cat, chk, o.material, w, "object", spec.bands)
         else:
             a = [x * u.area for x in o.absorption] if o.absorption is not None else None
-        if a is not None:
-            out.append(RoomObject(o.name, a, float(o.count), o.material))
+        if a is None:
+            continue
+        m = cat.get(o.material) if o.material else None
+        occupant = o.occupant if o.occupant is not None else bool(m and m.occupant)
+        empty = unoccupied_values(cat, chk, o.material, w, spec.bands) \
+            if occupant and m is not None and m.occupant else None
+        out.append(RoomObject(o.name, a, float(o.count), o.material, occupant=occupant,
+                              unoccupied_absorption=empty))
     return out
 
 

@@ -21,7 +21,7 @@ TOP_KEYS = ("version", "title", "units", "bands_hz", "method", "air", "shape", "
 AIR_KEYS = ("temperature", "relative_humidity", "pressure_kpa")
 SHAPE_KEYS = ("length", "width", "height", "volume")
 SURFACE_KEYS = ("name", "area", "count", "face", "material", "alpha")
-OBJECT_KEYS = ("name", "count", "material", "absorption")
+OBJECT_KEYS = ("name", "count", "material", "absorption", "occupant")
 SOURCE_KEYS = ("name", "sound_power", "sound_power_dba", "spectrum", "directivity", "placement",
                "position")
 RECEIVER_KEYS = ("name", "position", "distances", "hours", "source_hours")
@@ -84,6 +84,7 @@ class ObjectSpec:
     count: float = 1
     material: str | None = None
     absorption: list[float] | None = None
+    occupant: bool | None = None            # is, or includes, people; None: as the catalogue
 
 
 @dataclass

@@ -33,7 +33,8 @@ def spec_to_dict(spec: RoomSpec) -> dict:
                              "material": s.material, "alpha": s.alpha}) for s in spec.surfaces]
     if spec.objects:
         d["objects"] = [_clean({"name": o.name, "count": _whole(o.count),
-                                "material": o.material, "absorption": o.absorption})
+                                "material": o.material, "absorption": o.absorption,
+                                "occupant": o.occupant})
                         for o in spec.objects]
     if spec.sources:
         d["sources"] = [_clean({"name": s.name, "sound_power": s.sound_power,
@@ -50,7 +51,8 @@ def spec_to_dict(spec: RoomSpec) -> dict:
         d["materials"] = [_clean({"id": m.id, "name": m.name, "category": m.category,
                                   "kind": m.kind,
                                   "values": {str(k): v for k, v in sorted(m.values.items())},
-                                  "source": m.source, "notes": m.notes or None})
+                                  "source": m.source, "notes": m.notes or None,
+                                  "occupant": m.occupant or None, "unoccupied": m.unoccupied})
                           for m in spec.materials]
     return d
 
