@@ -1,7 +1,8 @@
 """Room files, version 1 (TOML): read, check, resolve against the catalogue, write back.
 
 A room file is read into a :class:`RoomSpec`, which keeps what the user wrote (file units,
-material ids). :func:`resolve` turns a spec into the engine's SI :class:`~roomcalc.engine.model.Room`.
+material ids). :func:`resolve` turns a spec into the engine's SI
+:class:`~roomcalc.engine.model.Room`.
 docs/room-files.md describes every key.
 
 The modules, by job: :mod:`.spec` (the dataclasses and the keys of each table), :mod:`.faces`

@@ -16,8 +16,8 @@ from roomcalc.io.catalog import Material
 from roomcalc.io.units import UNITS, Units
 
 FORMAT_VERSION = 1
-TOP_KEYS = ("version", "title", "units", "bands_hz", "method", "air", "shape", "surfaces", "objects",
-            "sources", "receivers", "target", "candidates", "materials")
+TOP_KEYS = ("version", "title", "units", "bands_hz", "method", "air", "shape", "surfaces",
+            "objects", "sources", "receivers", "target", "candidates", "materials")
 AIR_KEYS = ("temperature", "relative_humidity", "pressure_kpa")
 SHAPE_KEYS = ("length", "width", "height", "volume")
 SURFACE_KEYS = ("name", "area", "count", "face", "material", "alpha")
