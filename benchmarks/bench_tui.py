@@ -43,7 +43,7 @@ if str(ROOT) not in sys.path:
 
 from roomcalc.io.catalog import load_catalog  # noqa: E402
 from roomcalc.io.roomfile import (ReceiverSpec, RoomSpec, ShapeSpec, SourceSpec,  # noqa: E402
-                                  SurfaceSpec, save_spec)
+                                  SurfaceSpec, face_areas, save_spec)
 from roomcalc.tui.app import AppConfig, make_app  # noqa: E402
 from roomcalc.tui.document import Document  # noqa: E402
 
@@ -55,8 +55,7 @@ def big_room(path: Path) -> Path:
     cat = load_catalog(include_user=False)
     mats = cat.ids("surface")[:25]
     L, W, H = 20.0, 15.0, 6.0
-    face_area = {"floor": L * W, "ceiling": L * W, "front": W * H, "back": W * H,
-                 "left": L * H, "right": L * H}
+    face_area = face_areas((L, W, H))
     spec = RoomSpec(title="Benchmark hall, 100 surfaces", shape=ShapeSpec(L, W, H))
     for i in range(100):
         face = FACES[i % 6]

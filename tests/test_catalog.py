@@ -61,3 +61,73 @@ source = "{src}"
         load_catalog([dup])
     msg = str(e.value)
     assert "dup.toml" in msg and "mine.toml" in msg and "my-panel" in msg
+
+
+# ----------------------------------------------------------------------------- occupancy marks
+
+def test_people_entries_are_marked(catalog):
+    # Common practice: people are the part of a room's absorption that comes and goes; each
+    # entry that is, or includes, people says so, and names what remains when they leave.
+    expect = {"person-seated": None, "person-standing": None, "child-seated": None,
+              "child-standing": None,
+              "audience-upholstered-occupied": "upholstered-seating-unoccupied",
+              "audience-hard-seats-occupied": "hard-seating-unoccupied",
+              "upholstered-seat-occupied": "upholstered-seat-unoccupied",
+              "school-desk-with-pupil": "hard-chair-unoccupied"}
+    marked = {m.id: m.unoccupied for m in catalog.materials.values() if m.occupant}
+    assert marked == expect
+    for mid, other in expect.items():
+        if other is not None:
+            assert catalog[other].kind == catalog[mid].kind and not catalog[other].occupant
+    assert all(m.unoccupied is None for m in catalog.materials.values() if not m.occupant)
+    # A surface cannot leave with its people, so a surface occupant always has a counterpart.
+    assert all(m.unoccupied for m in catalog.materials.values()
+               if m.occupant and m.kind == "surface")
+
+
+PEOPLE = """[[materials]]
+id = "{id}"
+name = "Test entry"
+category = "seats and people"
+kind = "{kind}"
+values = {{ 125 = 0.1, 250 = 0.3, 500 = 0.6, 1000 = 0.8, 2000 = 0.8, 4000 = 0.8 }}
+source = "typical value, from memory; verify against a test report to ISO 354 / ASTM C423"
+{extra}
+"""
+
+
+@pytest.mark.parametrize("entries, where, message", [
+    ([("crowd", "object", 'occupant = "yes"')], "materials[0].occupant",
+     "must be true or false, not text"),
+    ([("crowd", "object", 'unoccupied = "hard-chair-unoccupied"')], "materials[0].unoccupied",
+     "only goes with occupant = true"),
+    ([("crowd", "surface", "occupant = true")], "materials[0].unoccupied",
+     "is required with occupant = true for a surface"),
+    ([("crowd", "object", 'occupant = true\nunoccupied = "crowd"')], "materials[0].unoccupied",
+     "'crowd' is this entry"),
+    ([("crowd", "object", 'occupant = true\nunoccupied = "hard-chair-unocupied"')],
+     "materials id 'crowd': unoccupied",
+     "unknown entry 'hard-chair-unocupied'; did you mean 'hard-chair-unoccupied'?"),
+    ([("crowd", "object", 'occupant = true\nunoccupied = "upholstered-seating-unoccupied"')],
+     "materials id 'crowd': unoccupied",
+     "'upholstered-seating-unoccupied' is of kind surface; the entry that remains when the "
+     "people leave is of the same kind as this one (object)"),
+    ([("crowd", "object", 'occupant = true\nunoccupied = "person-seated"')],
+     "materials id 'crowd': unoccupied",
+     "'person-seated' is marked occupant itself; name an entry without people (no chains)"),
+])
+def test_bad_occupancy_marks(tmp_path, entries, where, message):
+    f = tmp_path / "mine.toml"
+    f.write_text("".join(PEOPLE.format(id=i, kind=k, extra=x) for i, k, x in entries))
+    with pytest.raises(RoomFileError) as e:
+        load_catalog([f], include_user=False)
+    (p,) = e.value.problems
+    assert (p.file, p.where) == (str(f), where) and p.message.startswith(message), p
+
+
+def test_user_entry_may_name_a_shipped_counterpart(tmp_path):
+    f = tmp_path / "mine.toml"
+    f.write_text(PEOPLE.format(id="pupil-at-bench", kind="object",
+                               extra='occupant = true\nunoccupied = "hard-chair-unoccupied"'))
+    m = load_catalog([f], include_user=False)["pupil-at-bench"]
+    assert (m.occupant, m.unoccupied) == (True, "hard-chair-unoccupied")

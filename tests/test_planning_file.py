@@ -27,6 +27,7 @@ from roomcalc.engine.analysis import evaluate
 from roomcalc.engine.criteria import user_window
 from roomcalc.engine.planner import Plan
 from roomcalc.io import roomfile
+from roomcalc.io.criteria import shipped_criteria
 from roomcalc.io.errors import RoomFileError
 from roomcalc.io.planning import apply_plan, resolve_candidates, resolve_goals, work_patterns
 from roomcalc.io.roomfile import (check_room, parse_spec, read_room, save_spec, spec_to_dict,
@@ -457,6 +458,14 @@ def test_own_limits_number_list_and_table(catalog):
     assert g.rt60_min is None
 
 
+def test_goals_plan_with_the_rooms_method(catalog):
+    # The top-level method is the formula in force; [target] need not repeat it.
+    spec = parse_spec(ROOM.replace("version = 1\n", 'version = 1\nmethod = "sabine"\n', 1)
+                      + "\n[target]\nrt60_max = 0.8\n")
+    assert spec.method == "sabine"
+    assert resolve_goals(spec, check_room(spec, catalog)).method == "sabine"
+
+
 def test_level_goals(catalog):
     g = _goals('max_level_dba = { Bench = 80.0 }\n'
                'max_level_db = { Bench = { 125 = 85.0, 4000 = 70 } }\n', catalog)
@@ -513,7 +522,7 @@ def test_unknown_criterion_in_check_room_lists_the_known(catalog):
     with pytest.raises(RoomFileError) as info:
         check_room(spec, catalog)
     (p,) = info.value.problems
-    known = sorted(roomfile.shipped_criteria())
+    known = sorted(shipped_criteria())
     assert p.where == "target.criterion"
     assert p.message.startswith("unknown criterion 'din-18041-2016-a9'; did you mean "
                                 "'din-18041-2016-a")
@@ -527,7 +536,8 @@ def test_resolve_goals_without_a_target(catalog):
 
 
 def test_the_file_layer_repeats_the_planner_constants():
-    assert roomfile.PLAN_METHODS == planner.PLAN_METHODS
+    # A room file names any formula the planner can plan with.
+    assert set(planner.PLAN_METHODS) <= set(roomfile.METHODS)
     assert roomfile.OBJECTIVES == planner.OBJECTIVES
     assert set(roomfile.CANDIDATE_KEYS) == set(roomfile.COVER_KEYS) | set(roomfile.UNIT_KEYS) \
         | {"name", "material"}

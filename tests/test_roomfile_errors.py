@@ -866,8 +866,10 @@ def test_the_good_planning_file_is_good(tmp_path, catalog):
     ("rt60_max = [1.0, 0.7, 0.6, 0.6, 0.6, 0.6]", 'rt60_max = "short"',
      f"target.rt60_max: must be a number (every band), a list ({SIX}) or a table by band such "
      "as { 500 = ..., 1000 = ... } (only those bands), not text"),
-    ('method = "eyring"', 'method = "millington"',
-     "target.method: 'millington' is not one of sabine, eyring"),
+    # [target] method takes the five formulas of a room's top-level method
+    ('method = "eyring"', 'method = "millingtin"',
+     "target.method: 'millingtin' is not one of sabine, eyring, millington, fitzroy, "
+     "arau_puchades (did you mean 'millington'?)"),
     ("max_area = 40.0", "max_area = 40.0\nmax_count = 3",
      "candidates[0].max_count: only goes with a candidate added as units (one without "
      "surface); this one covers a surface"),
@@ -1009,3 +1011,70 @@ def test_planning_cli_check(tmp_path, capsys):
     out, err = capsys.readouterr()
     assert out == "" and err.splitlines()[0] == (
         f"{path}: candidates[1].max_count: -40 is outside the allowed range: at least 0 units")
+
+
+# ----------------------------------------------------------------------------- empty ids
+
+@pytest.mark.parametrize("where, text", [
+    ("surfaces[0].material", edit(('"concrete-floor-painted"', '""'))),
+    ("objects[0].material",
+     GOOD + '\n[[objects]]\nname = "Chairs"\ncount = 4\nmaterial = ""\n'),
+    ("objects[0].material",
+     GOOD + '\n[[objects]]\nname = "Chairs"\ncount = 4\nmaterial = "  "\n'),
+    ("candidates[0].material",
+     GOOD + '\n[[candidates]]\nname = "Baffle"\nmaterial = ""\ncost_each = 10.0\n'),
+])
+def test_empty_material_is_a_problem(tmp_path, catalog, where, text):
+    # An empty id used to drop its surface or object from the room without a word.
+    assert only(tmp_path, catalog, text) == f"{where}: is empty: give a value, or leave the key out"
+
+
+def test_empty_material_in_an_edited_spec(catalog):
+    # The interface's path (check_room) says the same of a spec edited to an empty id.
+    spec = parse_spec(GOOD)
+    spec.surfaces[0].material = ""
+    with pytest.raises(RoomFileError) as info:
+        check_room(spec, catalog)
+    assert [str(p) for p in info.value.problems] == [
+        "<room>: surfaces[0].material: is empty: give a value, or leave the key out"]
+
+
+# ----------------------------------------------------------------------------- method
+
+@pytest.mark.parametrize("method", ["sabine", "eyring", "millington", "fitzroy",
+                                    "arau_puchades"])
+def test_top_level_method_is_kept_and_written_back(method):
+    spec = parse_spec(edit(('units = "metric"\n', f'units = "metric"\nmethod = "{method}"\n')))
+    assert spec.method == method and spec.method_in_force == method
+    text = spec_to_toml(spec)
+    assert f'\nmethod = "{method}"\n' in text
+    assert parse_spec(text) == spec
+
+
+def test_method_in_force_comes_from_the_room_then_the_target():
+    spec = parse_spec(GOOD)
+    assert spec.method is None and spec.method_in_force is None      # the engine recommends
+    spec = parse_spec(GOOD + '\n[target]\nmethod = "millington"\nrt60_max = 0.8\n')
+    assert spec.method is None and spec.target.plan_method == "millington"
+    assert spec.method_in_force == "millington"
+    spec = parse_spec(GOOD + '\n[target]\nrt60_max = 0.8\n')
+    assert spec.target.plan_method is None and spec.method_in_force is None   # no default
+    same = edit(('units = "metric"\n', 'units = "metric"\nmethod = "fitzroy"\n')) + \
+        '\n[target]\nmethod = "fitzroy"\n'
+    assert parse_spec(same).method_in_force == "fitzroy"
+
+
+def test_unknown_top_level_method(tmp_path, catalog):
+    got = only(tmp_path, catalog, edit(('units = "metric"\n',
+                                        'units = "metric"\nmethod = "eyrng"\n')))
+    assert got == ("method: 'eyrng' is not one of sabine, eyring, millington, fitzroy, "
+                   "arau_puchades (did you mean 'eyring'?)")
+
+
+def test_two_different_methods_are_a_problem(tmp_path, catalog):
+    text = edit(('units = "metric"\n', 'units = "metric"\nmethod = "sabine"\n')) + \
+        '\n[target]\nmethod = "eyring"\n'
+    assert only(tmp_path, catalog, text) == (
+        "target.method: 'eyring' differs from the top-level method 'sabine'; the room is "
+        "evaluated and planned with one formula: give it once (top-level method) or the same "
+        "in both")

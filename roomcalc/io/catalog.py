@@ -11,7 +11,7 @@ import numpy as np
 from roomcalc.engine.bands import ALLOWED_BANDS_HZ, DEFAULT_BANDS_HZ
 from roomcalc.engine.ratings import WeightedAlpha, nrc, saa_octave_estimate, weighted_alpha
 from roomcalc.io import paths
-from roomcalc.io.checks import Checker, read_toml_file, toml_files
+from roomcalc.io.checks import Checker, kind_of, nearest, read_toml_file, toml_files
 from roomcalc.io.errors import Problem, RoomFileError
 
 ID_PATTERN = re.compile(r"^[a-z0-9]+(-[a-z0-9]+)*$")
@@ -19,14 +19,20 @@ KINDS = ("surface", "object")
 CATEGORIES = ("hard surfaces", "floors", "ceilings", "glazing and doors", "porous panels",
               "foams", "curtains", "carpets", "seats and people", "low-frequency absorbers",
               "furniture", "user")
-ENTRY_KEYS = ("id", "name", "category", "kind", "values", "source", "notes")
+ENTRY_KEYS = ("id", "name", "category", "kind", "values", "source", "notes", "occupant",
+              "unoccupied")
 #: Largest surface coefficient accepted (test reports show values a little above 1).
 ALPHA_MAX = 1.2
 
 
 @dataclass(frozen=True)
 class Material:
-    """A catalogue entry. ``values`` maps band [Hz] to alpha (surface) or m^2 per unit (object)."""
+    """A catalogue entry. ``values`` maps band [Hz] to alpha (surface) or m^2 per unit (object).
+
+    ``occupant``: the entry is, or includes, people; ``unoccupied``: the id of the entry of the
+    same kind that remains when they leave (required for a surface; for an object None means
+    the object leaves with its people).
+    """
 
     id: str
     name: str
@@ -36,6 +42,8 @@ class Material:
     source: str
     notes: str = ""
     file: str = ""
+    occupant: bool = False
+    unoccupied: str | None = None
 
     def values_for(self, bands_hz) -> np.ndarray:
         """Values at the given bands; KeyError lists the bands this entry lacks."""
@@ -156,8 +164,53 @@ def parse_entries(entries: list, chk: Checker, where: str = "materials",
             if missing:
                 chk.add(f"{w}.values", f"missing bands {', '.join(map(str, missing))} Hz "
                         "(125 to 4000 Hz are required)")
+        occupant, unoccupied = _occupancy(e, w, chk, mid, kind)
         if len(chk.problems) == before:
-            out.append(Material(mid, name, cat, kind, values, source, notes, chk.filename))
+            out.append(Material(mid, name, cat, kind, values, source, notes, chk.filename,
+                                occupant=occupant, unoccupied=unoccupied))
+    return out
+
+
+def _occupancy(e: dict, w: str, chk: Checker, mid: str | None, kind: str | None):
+    """An entry's ``occupant`` and ``unoccupied`` as far as one entry can check them (the
+    counterpart itself: :func:`counterpart_problems`)."""
+    occupant = e.get("occupant", False)
+    if not isinstance(occupant, bool):
+        chk.add(f"{w}.occupant", f"must be true or false, not {kind_of(occupant)}")
+        occupant = False
+    unoccupied = chk.text(e, "unoccupied", w, nonempty=True)
+    if unoccupied is not None and e.get("occupant") is not True:
+        chk.add(f"{w}.unoccupied", "only goes with occupant = true (the entry is, or includes, "
+                "people; unoccupied names what remains when they leave)")
+    elif unoccupied is not None and unoccupied == mid:
+        chk.add(f"{w}.unoccupied", f"'{unoccupied}' is this entry; name the entry that remains "
+                "when the people leave")
+    elif occupant and kind == "surface" and "unoccupied" not in e:
+        chk.add(f"{w}.unoccupied", "is required with occupant = true for a surface (a surface "
+                "stays when its people leave): the id of the surface entry that remains, such "
+                "as the empty seating")
+    return occupant, unoccupied
+
+
+def counterpart_problems(materials: dict, entries) -> list[tuple[Material, str]]:
+    """Problems of the ``unoccupied`` counterparts of ``entries``, looked up in ``materials``
+    (id -> Material): unknown, of another kind, or people themselves (no chains). Returns
+    (entry, message) pairs for the caller to place."""
+    out = []
+    for m in entries:
+        if m.unoccupied is None:
+            continue
+        other = materials.get(m.unoccupied)
+        if other is None:
+            near = nearest(m.unoccupied, [k for k, x in materials.items() if x.kind == m.kind])
+            out.append((m, f"unknown entry '{m.unoccupied}'"
+                        + (f"; did you mean '{near}'?" if near else "")))
+        elif other.kind != m.kind:
+            out.append((m, f"'{other.id}' is of kind {other.kind}; the entry that remains when "
+                        f"the people leave is of the same kind as this one ({m.kind})"))
+        elif other.occupant:
+            out.append((m, f"'{other.id}' is marked occupant itself; name an entry without "
+                        "people (no chains)"))
     return out
 
 
@@ -192,6 +245,8 @@ def load_catalog(extra=(), include_user: bool = True) -> Catalog:
             cat = cat.with_materials(mats)
         except RoomFileError as exc:
             problems.extend(exc.problems)
+    problems += [Problem(m.file, f"materials id '{m.id}': unoccupied", msg)
+                 for m, msg in counterpart_problems(cat.materials, cat.materials.values())]
     if problems:
         raise RoomFileError(problems)
     return cat

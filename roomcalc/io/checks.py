@@ -73,6 +73,18 @@ def read_toml(text: str, filename: str) -> dict:
                                      "nested too deeply")]) from None
 
 
+def nearest(word: str, choices, cutoff: float = 0.6) -> str | None:
+    """The choice nearest to ``word`` (for "did you mean ...?"), or None if none is close."""
+    m = difflib.get_close_matches(word, list(choices), n=1, cutoff=cutoff)
+    return m[0] if m else None
+
+
+def kind_of(v) -> str:
+    """What a TOML value is, in the words of a problem ("a number", "text", "a table")."""
+    return {bool: "true/false", str: "text", list: "a list", dict: "a table", int: "a number",
+            float: "a number"}.get(type(v), type(v).__name__)
+
+
 class Checker:
     """Collects problems for one file."""
 
@@ -99,7 +111,7 @@ class Checker:
                 self.add(_join(where, key), "is required (a table)")
             return None
         if not isinstance(v, dict):
-            self.add(_join(where, key), f"must be a table, not {_kind(v)}")
+            self.add(_join(where, key), f"must be a table, not {kind_of(v)}")
             return None
         return v
 
@@ -111,14 +123,18 @@ class Checker:
         return v
 
     def text(self, table: dict, key: str, where: str, required=False, default=None,
-             choices=None):
+             choices=None, nonempty=False):
+        """Text at ``table[key]``; ``nonempty``: empty text (or only spaces) is a problem."""
         if key not in table:
             if required:
                 self.add(_join(where, key), "is required (text)")
             return default
         v = table[key]
         if not isinstance(v, str):
-            self.add(_join(where, key), f"must be text, not {_kind(v)}")
+            self.add(_join(where, key), f"must be text, not {kind_of(v)}")
+            return default
+        if nonempty and not v.strip():
+            self.add(_join(where, key), "is empty: give a value, or leave the key out")
             return default
         if choices is not None and v not in choices:
             near = difflib.get_close_matches(v, list(choices), n=1, cutoff=0.4)
@@ -144,7 +160,7 @@ class Checker:
         if isinstance(v, bool) or not isinstance(v, (int, float)) or \
                 (integer and not isinstance(v, int)):
             want = "a whole number" if integer else "a number"
-            self.add(where, f"must be {want}, not {_kind(v)}")
+            self.add(where, f"must be {want}, not {kind_of(v)}")
             return default
         # tomllib reads integers of any length; one too large for a float is out of every range.
         if isinstance(v, int) and abs(v) > 1e300:
@@ -169,7 +185,7 @@ class Checker:
         v = table[key]
         path = _join(where, key)
         if not isinstance(v, list):
-            self.add(path, f"must be a list of numbers, not {_kind(v)}")
+            self.add(path, f"must be a list of numbers, not {kind_of(v)}")
             return None
         if length is not None and len(v) != length:
             self.add(path, f"has {len(v)} {what}; {length} are needed ({unit})" if unit else
@@ -181,11 +197,6 @@ class Checker:
             ok &= y is not None
             out.append(y)
         return [float(x) for x in out] if ok else None
-
-
-def _kind(v) -> str:
-    return {bool: "true/false", str: "text", list: "a list", dict: "a table", int: "a number",
-            float: "a number"}.get(type(v), type(v).__name__)
 
 
 def _fmt(v) -> str:

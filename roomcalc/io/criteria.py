@@ -39,6 +39,7 @@ The semantics (windows, margins, verdicts) are in :mod:`roomcalc.engine.criteria
 
 from __future__ import annotations
 
+import functools
 import math
 import re
 from pathlib import Path
@@ -48,7 +49,7 @@ from roomcalc.engine.criteria import (ASSESS_MODES, CONFIDENCE, KINDS, OCCUPANCI
                                       NoiseStep,
                                       Tolerance, VolumeStep)
 from roomcalc.io import paths
-from roomcalc.io.checks import Checker, read_toml_file, toml_files
+from roomcalc.io.checks import Checker, nearest, read_toml_file, toml_files
 from roomcalc.io.errors import Problem, RoomFileError
 
 ID_PATTERN = re.compile(r"^[a-z0-9]+(\.[a-z0-9]+)*(-[a-z0-9]+(\.[a-z0-9]+)*)*$")
@@ -107,6 +108,33 @@ def load_criteria(extra=()) -> dict[str, Criterion]:
     if problems:
         raise RoomFileError(problems)
     return out
+
+
+def shipped_criteria() -> dict[str, Criterion]:
+    """The shipped criteria library (:func:`load_criteria` without extra files), by id.
+
+    Read once (the shipped files do not change while roomcalc runs, and the interface checks
+    the room after every edit); each call returns a new dict of the same criteria.
+    """
+    return dict(_shipped_criteria())
+
+
+@functools.lru_cache(maxsize=1)
+def _shipped_criteria() -> dict[str, Criterion]:
+    return load_criteria()
+
+
+def check_criterion_id(cid: str, chk: Checker, criteria=None) -> bool:
+    """Whether the criteria library (None: the shipped one) has ``cid``; if not, report
+    ``target.criterion`` to chk with the nearest and the known ids."""
+    known = criteria if criteria is not None else shipped_criteria()
+    if cid not in known:
+        near = nearest(cid, list(known))
+        chk.add("target.criterion", f"unknown criterion '{cid}'"
+                + (f"; did you mean '{near}'?" if near else "")
+                + f" (known: {', '.join(known) or 'none'})")
+        return False
+    return True
 
 
 def load_criteria_file(path) -> list[Criterion]:

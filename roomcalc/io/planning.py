@@ -22,11 +22,11 @@ from roomcalc.engine.criteria import applicability, target_window
 from roomcalc.engine.planner import Candidate, Goals, LevelGoal, Plan
 from roomcalc.io.catalog import Catalog
 from roomcalc.io.checks import Checker
+from roomcalc.io.criteria import check_criterion_id, shipped_criteria
 from roomcalc.io.errors import Problem, RoomFileError
 from roomcalc.io.roomfile import (AREA_COST_KEY, CANDIDATE_ALPHA_MAX, CandidateSpec,
                                   ObjectSpec, RoomSpec, SurfaceSpec, candidate_material,
-                                  check_criterion_id, limit_values, room_catalog,
-                                  shipped_criteria)
+                                  limit_values, room_catalog, surface_area_m2)
 from roomcalc.io.units import UNITS
 
 #: A cover leaving less than this share of its surface uncovered covers all of it (the rest
@@ -93,8 +93,9 @@ def resolve_goals(spec: RoomSpec, room, criteria=None, *, filename: str = "<room
             levels.append(LevelGoal(r.name, float(dba) if dba is not None else None,
                                     np.array(limit_values(db, bands)) if db is not None
                                     else None))
-    return Goals(method=t.plan_method, rt60_max=rt_max, rt60_min=rt_min, levels=tuple(levels),
-                 objective=t.plan_objective, source=t.criterion or "")
+    # TODO(lead): the core passes the recommended method when the file names none.
+    return Goals(method=spec.method_in_force or "eyring", rt60_max=rt_max, rt60_min=rt_min,
+                 levels=tuple(levels), objective=t.plan_objective, source=t.criterion or "")
 
 
 def _criterion_window(cid: str, room, criteria, filename: str):
@@ -308,19 +309,12 @@ def apply_plan(spec: RoomSpec, plan: Plan, candidates: list[Candidate]) -> RoomS
 
 
 def _total_area_m2(spec: RoomSpec, i: int) -> float:
-    """A surface's total area [m^2] over its count, by the rule of resolve: its own area, or the
-    rest of its box face after the other surfaces on that face."""
-    u = spec.unit_system
-    s = spec.surfaces[i]
-    if s.area is not None:
-        return float(s.area) * u.area * s.count
-    L, W, H = (float(x) * u.length for x in (spec.shape.length, spec.shape.width,
-                                             spec.shape.height))
-    face = {"floor": L * W, "ceiling": L * W, "front": W * H, "back": W * H, "left": L * H,
-            "right": L * H}[s.face]
-    taken = sum(float(o.area) * u.area * o.count for j, o in enumerate(spec.surfaces)
-                if j != i and o.face == s.face)
-    return face - taken
+    """A surface's total area [m^2] over its count (:func:`roomcalc.io.roomfile.surface_area_m2`:
+    its own area, or the rest of its box face)."""
+    area, problem = surface_area_m2(spec, i)
+    if problem:
+        raise ValueError(f"surfaces[{i}].area: {problem}")
+    return area * spec.surfaces[i].count
 
 
 def _tidy(x: float) -> float:

@@ -15,11 +15,14 @@ from textual.containers import Horizontal, VerticalScroll
 from textual.message import Message
 from textual.widgets import Button, Input, Select, Static
 
+from roomcalc.engine.analysis import METHOD_TITLES, METHODS
 from roomcalc.tui.widgets.grid import CellGrid
 from roomcalc.tui.widgets.results import BandTable
 
 OWN = "own"            # the criterion option for the room file's own limits
 NONE = "none"          # no RT target
+#: The formulas offered, Eyring first (the one a plan uses when the room file names none).
+METHOD_ORDER = ("eyring",) + tuple(m for m in METHODS if m != "eyring")
 
 
 def _f(x, nd=2) -> str:
@@ -95,7 +98,7 @@ class PlanView(VerticalScroll):
                     id="plan-own", compact=True)
         yield Static("", id="plan-own-error", markup=False)
         with Horizontal(id="plan-controls-2"):
-            yield Select([("Eyring", "eyring"), ("Sabine", "sabine")], id="plan-method",
+            yield Select([(METHOD_TITLES[m], m) for m in METHOD_ORDER], id="plan-method",
                          allow_blank=False)
             yield Select([("least cost", "cost"), ("least area", "area")],
                          id="plan-objective", allow_blank=False)
@@ -138,7 +141,8 @@ class PlanView(VerticalScroll):
             value = t.criterion
         elif t is not None and (t.rt60_max is not None or t.rt60_min is not None):
             value = OWN
-        self._shown = {"criterion": value, "method": t.plan_method if t else "eyring",
+        method = spec.method_in_force or "eyring"     # what resolve_goals plans with
+        self._shown = {"criterion": value, "method": method,
                        "objective": t.plan_objective if t else "cost"}
         with crit.prevent(Select.Changed):
             if options != self._crit_options:
@@ -154,7 +158,7 @@ class PlanView(VerticalScroll):
         if own.value != text and not own.has_focus:
             with own.prevent(Input.Changed):
                 own.value = text
-        for sel_id, val in (("#plan-method", t.plan_method if t else "eyring"),
+        for sel_id, val in (("#plan-method", method),
                             ("#plan-objective", t.plan_objective if t else "cost")):
             sel = self.query_one(sel_id, Select)
             if sel.value != val:

@@ -1,0 +1,311 @@
+"""Reading a room file: TOML data to a checked :class:`RoomSpec`, every problem at once.
+
+The planning tables (``[target]``, ``[[candidates]]``) are read by
+:mod:`roomcalc.io.roomfile.parse_target`; materials are looked up when the spec is resolved
+(:mod:`roomcalc.io.roomfile.resolve`).
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from roomcalc.engine.bands import ALLOWED_BANDS_HZ, DEFAULT_BANDS_HZ
+from roomcalc.engine.exposure import MAX_DAY_HOURS
+from roomcalc.engine.field import PLACEMENT_Q
+from roomcalc.engine.model import FACES
+from roomcalc.engine.spectra import SPECTRUM_SHAPES
+from roomcalc.io.catalog import ALPHA_MAX, parse_entries
+from roomcalc.io.checks import Checker, kind_of, read_toml
+from roomcalc.io.errors import Problem, RoomFileError
+from roomcalc.io.roomfile.faces import missing_area
+from roomcalc.io.roomfile.parse_target import check_one_method, parse_candidates, parse_target
+from roomcalc.io.roomfile.spec import (AIR_KEYS, FORMAT_VERSION, METHODS, OBJECT_KEYS,
+                                       RECEIVER_KEYS, SHAPE_KEYS, SOURCE_KEYS, SURFACE_KEYS,
+                                       TOP_KEYS, ObjectSpec, ReceiverSpec, RoomSpec, SourceSpec,
+                                       SurfaceSpec, band_text)
+from roomcalc.io.units import UNITS, Units
+
+
+class SpecProblems(RoomFileError):
+    """The parser's error, with the spec as far as it was read and the ids of the file's own
+    [[materials]] entries that have problems (so that resolving can add what the catalogue
+    says, and every problem shows at once)."""
+
+    def __init__(self, problems, spec: RoomSpec, inline_ids: set):
+        super().__init__(problems)
+        self.spec, self.inline_ids = spec, inline_ids
+
+
+def read_spec(path) -> RoomSpec:
+    """Read and check a room file without resolving materials."""
+    path = Path(path)
+    try:
+        text = path.read_text(encoding="utf-8")
+    except FileNotFoundError:
+        raise RoomFileError([Problem(str(path), "", "no such file")]) from None
+    except (OSError, UnicodeDecodeError) as exc:
+        reason = getattr(exc, "strerror", None) or str(exc)
+        raise RoomFileError([Problem(str(path), "", f"cannot be read: {reason}")]) from None
+    return parse_spec(text, str(path))
+
+
+def parse_spec(text: str, filename: str = "<room>") -> RoomSpec:
+    """Check room-file text and build a RoomSpec; every problem is reported at once."""
+    return parse_data(read_toml(text, filename), filename)
+
+
+def parse_data(data: dict, filename: str = "<room>") -> RoomSpec:
+    """Check a parsed room document (a dict as tomllib gives it) and build a RoomSpec.
+
+    Raises :class:`SpecProblems` (a RoomFileError) with every problem found.
+    """
+    chk = Checker(filename)
+    chk.keys(data, "", TOP_KEYS)
+    spec = RoomSpec()
+    version = chk.number(data, "version", "", required=True, integer=True)
+    if version is not None and version != FORMAT_VERSION:
+        chk.add("version", f"{version} is not a version this roomcalc reads (it reads "
+                f"{FORMAT_VERSION})")
+    spec.title = chk.text(data, "title", "", default="")
+    spec.units = chk.text(data, "units", "", default="metric", choices=tuple(UNITS))
+    u = UNITS[spec.units]
+    spec.bands_hz = _bands(chk, data)
+    spec.method = chk.text(data, "method", "", choices=METHODS)
+    _air(chk, data, spec, u)
+    _shape(chk, data, spec, u)
+    _surfaces(chk, data, spec, u)
+    _objects(chk, data, spec, u)
+    bad_position = _sources(chk, data, spec)
+    _receivers(chk, data, spec, u, bad_position)
+    spec.target = parse_target(chk, data, spec.bands, [r.name for r in spec.receivers])
+    check_one_method(chk, spec)
+    spec.candidates = parse_candidates(chk, data, spec, u)
+    spec.materials = parse_entries(chk.array_of_tables(data, "materials"), chk,
+                                   where="materials")
+    _positions_inside(chk, spec, u)
+    if chk.problems:
+        entries = data.get("materials")
+        inline_ids = {e["id"] for e in entries if isinstance(e, dict)
+                      and isinstance(e.get("id"), str)} if isinstance(entries, list) else set()
+        raise SpecProblems(chk.problems, spec, inline_ids - {m.id for m in spec.materials})
+    return spec
+
+
+def _bands(chk: Checker, data: dict) -> list[int] | None:
+    if "bands_hz" not in data:
+        return None
+    b = data["bands_hz"]
+    if not isinstance(b, list) or not all(isinstance(x, int) and not isinstance(x, bool)
+                                          for x in b):
+        chk.add("bands_hz", "must be a list of whole numbers such as [125, 250, 500, 1000, "
+                "2000, 4000]")
+        return None
+    bad = [x for x in b if x not in ALLOWED_BANDS_HZ]
+    missing = [x for x in DEFAULT_BANDS_HZ if x not in b]
+    if bad:
+        chk.add("bands_hz", f"{bad} are not allowed; bands are octaves from "
+                f"{', '.join(map(str, ALLOWED_BANDS_HZ))} Hz")
+    elif missing:
+        chk.add("bands_hz", f"missing {missing}: 125 to 4000 Hz are always computed; "
+                "63 and 8000 Hz may be added")
+    elif b != sorted(set(b)):
+        chk.add("bands_hz", "must list each band once, in rising order")
+    else:
+        return list(b)
+    return None
+
+
+def _air(chk: Checker, data: dict, spec: RoomSpec, u: Units) -> None:
+    air = chk.table(data, "air", "")
+    if air is None:
+        return
+    chk.keys(air, "air", AIR_KEYS)
+    lo, hi = (-40.0, 60.0) if u.name == "metric" else (-40.0, 140.0)
+    spec.air.temperature = chk.number(air, "temperature", "air", low=lo, high=hi,
+                                      unit=u.temperature_label)
+    spec.air.relative_humidity = chk.number(air, "relative_humidity", "air", low=0.0,
+                                            high=100.0, unit="%")
+    spec.air.pressure_kpa = chk.number(air, "pressure_kpa", "air", low=50.0, high=120.0,
+                                       unit="kPa")
+
+
+def _shape(chk: Checker, data: dict, spec: RoomSpec, u: Units) -> None:
+    shape = chk.table(data, "shape", "", required=True)
+    if shape is None:
+        return
+    chk.keys(shape, "shape", SHAPE_KEYS)
+    for k in ("length", "width", "height"):
+        setattr(spec.shape, k, chk.number(shape, k, "shape", low=0.0, low_open=True,
+                                          high=1000.0 / u.length, unit=u.length_label))
+    spec.shape.volume = chk.number(shape, "volume", "shape", low=0.0, low_open=True,
+                                   high=1e7 / u.volume, unit=u.volume_label)
+    given = [k for k in ("length", "width", "height") if k in shape]
+    if given and len(given) < 3:
+        chk.add("shape", "a box needs length, width and height; "
+                f"only {', '.join(given)} given")
+    if not given and "volume" not in shape:
+        chk.add("shape", "give length, width and height (a box) or volume (a free shape)")
+
+
+def _surfaces(chk: Checker, data: dict, spec: RoomSpec, u: Units) -> None:
+    nb, bt = len(spec.bands), band_text(spec.bands)
+    for i, s in enumerate(chk.array_of_tables(data, "surfaces")):
+        w = f"surfaces[{i}]"
+        chk.keys(s, w, SURFACE_KEYS)
+        sp = SurfaceSpec(name=chk.text(s, "name", w, default=f"Surface {i + 1}"))
+        sp.area = chk.number(s, "area", w, low=0.0, low_open=True, unit=u.area_label)
+        sp.count = chk.number(s, "count", w, low=1, integer=True, default=1)
+        sp.face = chk.text(s, "face", w, choices=FACES)
+        sp.material = chk.text(s, "material", w, nonempty=True)
+        sp.alpha = chk.numbers(s, "alpha", w, length=nb, low=0.0, high=ALPHA_MAX, unit=bt)
+        if "material" in s and "alpha" in s:
+            chk.add(w, "give either material or alpha, not both")
+        elif "material" not in s and "alpha" not in s:
+            chk.add(w, "needs material (a catalogue id) or alpha (a list, " + bt + ")")
+        problem = missing_area("area" in s, "face" in s)
+        if problem:
+            chk.add(f"{w}.area", problem)
+        spec.surfaces.append(sp)
+    if not data.get("surfaces"):
+        chk.add("surfaces", "a room needs at least one [[surfaces]] entry")
+
+
+def _objects(chk: Checker, data: dict, spec: RoomSpec, u: Units) -> None:
+    nb, bt = len(spec.bands), band_text(spec.bands)
+    for i, o in enumerate(chk.array_of_tables(data, "objects")):
+        w = f"objects[{i}]"
+        chk.keys(o, w, OBJECT_KEYS)
+        op = ObjectSpec(name=chk.text(o, "name", w, default=f"Object {i + 1}"))
+        op.count = float(chk.number(o, "count", w, low=0.0, default=1))
+        op.material = chk.text(o, "material", w, nonempty=True)
+        op.absorption = chk.numbers(o, "absorption", w, length=nb, low=0.0,
+                                    high=1000.0 / u.area, unit=bt)
+        if ("material" in o) == ("absorption" in o):
+            chk.add(w, "give either material (a catalogue id of kind object) or absorption "
+                    f"({u.area_label} per unit, {bt})")
+        if "occupant" in o:
+            if isinstance(o["occupant"], bool):
+                op.occupant = o["occupant"]
+            else:
+                chk.add(f"{w}.occupant", f"must be true or false, not {kind_of(o['occupant'])}")
+        spec.objects.append(op)
+
+
+def _sources(chk: Checker, data: dict, spec: RoomSpec) -> set[str]:
+    """The sources; returns the names of those whose position is reported as wrong."""
+    bad_position = set()
+    bt = band_text(spec.bands)
+    for i, s in enumerate(chk.array_of_tables(data, "sources")):
+        w = f"sources[{i}]"
+        chk.keys(s, w, SOURCE_KEYS)
+        sp = SourceSpec(name=chk.text(s, "name", w, default=f"Source {i + 1}"))
+        if any(o.name == sp.name for o in spec.sources):
+            chk.add(f"{w}.name", f"'{sp.name}' is used by another source; names must differ")
+        sp.sound_power = chk.numbers(s, "sound_power", w, length=len(spec.bands), low=0.0,
+                                     high=200.0, unit=bt)
+        sp.sound_power_dba = chk.number(s, "sound_power_dba", w, low=0.0, high=200.0,
+                                        unit="dB(A)")
+        sp.spectrum = chk.text(s, "spectrum", w, choices=tuple(SPECTRUM_SHAPES))
+        _source_power_rules(chk, s, w, sp, spec.bands)
+        sp.directivity = chk.number(s, "directivity", w, low=0.0, low_open=True, high=100.0,
+                                    unit="(Q)")
+        sp.placement = chk.text(s, "placement", w, choices=tuple(PLACEMENT_Q))
+        if "directivity" in s and "placement" in s:
+            chk.add(w, "give either directivity (Q) or placement, not both")
+        sp.position = _position(chk, s, w)
+        if "position" in s and sp.position is None:
+            bad_position.add(sp.name)
+        spec.sources.append(sp)
+    return bad_position
+
+
+def _source_power_rules(chk: Checker, s: dict, w: str, sp: SourceSpec, bands) -> None:
+    """sound_power or sound_power_dba, and a spectrum with (only with) sound_power_dba."""
+    if ("sound_power" in s) == ("sound_power_dba" in s):
+        chk.add(w, "give either sound_power (dB re 1 pW, " + band_text(bands) + ") or "
+                "sound_power_dba with spectrum")
+    if "sound_power_dba" in s and "spectrum" not in s:
+        chk.add(f"{w}.spectrum", "is required with sound_power_dba; one of "
+                + ", ".join(SPECTRUM_SHAPES))
+    if sp.spectrum and "sound_power" in s:
+        chk.add(f"{w}.spectrum", "only goes with sound_power_dba")
+    if sp.spectrum and "sound_power_dba" in s:
+        missing = [b for b in bands if b not in SPECTRUM_SHAPES[sp.spectrum]]
+        if missing:
+            chk.add(f"{w}.spectrum", f"'{sp.spectrum}' has no value at "
+                    f"{', '.join(map(str, missing))} Hz")
+
+
+def _receivers(chk: Checker, data: dict, spec: RoomSpec, u: Units, bad_position: set) -> None:
+    """The receivers; ``bad_position``: sources whose position is reported already (no second
+    problem for them here)."""
+    sources = [s.name for s in spec.sources]
+    for i, r in enumerate(chk.array_of_tables(data, "receivers")):
+        w = f"receivers[{i}]"
+        chk.keys(r, w, RECEIVER_KEYS)
+        rp = ReceiverSpec(name=chk.text(r, "name", w, default=f"Receiver {i + 1}"))
+        if any(o.name == rp.name for o in spec.receivers):
+            chk.add(f"{w}.name", f"'{rp.name}' is used by another receiver; names must differ")
+        rp.position = _position(chk, r, w)
+        d = chk.table(r, "distances", w)
+        for k, x in (d or {}).items():
+            if k not in sources:
+                chk.add(f"{w}.distances.{k}", f"'{k}' is not a source of this room"
+                        + (f" (sources: {', '.join(sources)})" if sources else ""))
+            y = chk.value(x, f"{w}.distances.{k}", low=0.0, low_open=True,
+                          high=10000.0, unit=u.length_label)
+            if y is not None:
+                rp.distances[k] = float(y)
+        given = d if d is not None else {}
+        for s in spec.sources:
+            if s.name in bad_position or ("position" in r and rp.position is None):
+                continue  # the bad position is reported; no second problem for it
+            if s.name not in given and (rp.position is None or s.position is None):
+                chk.add(w, f"has no distance to source '{s.name}': give distances."
+                        f"\"{s.name}\" or positions for both")
+        _work_pattern(chk, r, w, rp, sources)
+        spec.receivers.append(rp)
+
+
+def _work_pattern(chk: Checker, r: dict, w: str, rp: ReceiverSpec, sources: list) -> None:
+    """A receiver's hours per day, and the hours each source runs while it is there."""
+    rp.hours = chk.number(r, "hours", w, low=0.0, high=MAX_DAY_HOURS, unit="h per day")
+    sh = chk.table(r, "source_hours", w)
+    if sh is None:
+        return
+    if "hours" not in r:
+        chk.add(f"{w}.source_hours", "needs hours (the hours per day at this position), which "
+                "no source's hours may exceed")
+    for k, x in sh.items():
+        path = f"{w}.source_hours.{k}"
+        if k not in sources:
+            chk.add(path, f"'{k}' is not a source of this room"
+                    + (f" (sources: {', '.join(sources)})" if sources else ""))
+        y = chk.value(x, path, low=0.0, high=MAX_DAY_HOURS, unit="h per day")
+        if y is None:
+            continue
+        if rp.hours is not None and y > rp.hours:
+            chk.add(path, f"{y:g} h is more than hours ({rp.hours:g} h): a source runs at most as "
+                    "long as the receiver is there")
+            continue
+        rp.source_hours[k] = float(y)
+
+
+def _position(chk: Checker, table: dict, where: str):
+    if "position" not in table:
+        return None
+    return chk.numbers(table, "position", where, length=3, unit="x, y, z")
+
+
+def _positions_inside(chk: Checker, spec: RoomSpec, u: Units) -> None:
+    """Positions of sources and receivers lie inside a box room."""
+    if not spec.shape.is_box:
+        return
+    dims = (spec.shape.length, spec.shape.width, spec.shape.height)
+    for group, items in (("sources", spec.sources), ("receivers", spec.receivers)):
+        for i, it in enumerate(items):
+            if it.position is not None and any(
+                    not (0.0 <= p <= d) for p, d in zip(it.position, dims)):
+                chk.add(f"{group}[{i}].position", f"{it.position} lies outside the box "
+                        f"(0 to {dims[0]:g}, 0 to {dims[1]:g}, 0 to {dims[2]:g} "
+                        f"{u.length_label})")

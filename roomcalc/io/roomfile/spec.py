@@ -1,0 +1,220 @@
+"""A room as written in its file: the dataclasses of a room spec (file units, material ids) and
+the keys each table of a room file may hold.
+
+docs/room-files.md describes every key.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+from roomcalc.engine.analysis import METHODS
+from roomcalc.engine.bands import DEFAULT_BANDS_HZ
+from roomcalc.engine.field import PLACEMENT_Q
+from roomcalc.io.catalog import Material
+from roomcalc.io.units import UNITS, Units
+
+FORMAT_VERSION = 1
+TOP_KEYS = ("version", "title", "units", "bands_hz", "method", "air", "shape", "surfaces",
+            "objects", "sources", "receivers", "target", "candidates", "materials")
+AIR_KEYS = ("temperature", "relative_humidity", "pressure_kpa")
+SHAPE_KEYS = ("length", "width", "height", "volume")
+SURFACE_KEYS = ("name", "area", "count", "face", "material", "alpha")
+OBJECT_KEYS = ("name", "count", "material", "absorption", "occupant")
+SOURCE_KEYS = ("name", "sound_power", "sound_power_dba", "spectrum", "directivity", "placement",
+               "position")
+RECEIVER_KEYS = ("name", "position", "distances", "hours", "source_hours")
+TARGET_KEYS = ("method", "objective", "currency", "criterion", "rt60_max", "rt60_min",
+               "max_level_dba", "max_level_db")
+#: Keys of a candidate that covers part of a surface, of one added as units, and of both.
+COVER_KEYS = ("surface", "alpha", "max_area", "step", "cost_per_m2", "cost_per_ft2")
+UNIT_KEYS = ("absorption", "max_count", "whole", "cost_each", "area_each")
+CANDIDATE_KEYS = ("name", "surface", "material", "alpha", "absorption", "max_area", "step",
+                  "cost_per_m2", "cost_per_ft2", "max_count", "whole", "cost_each", "area_each")
+#: Largest alpha of a cover candidate: the planner takes 0 to 1 (a surface may have up to
+#: ALPHA_MAX, as test reports give; a plan is made in the range where Eyring's ln(1 - alpha)
+#: holds).
+CANDIDATE_ALPHA_MAX = 1.0
+#: The key of a cover candidate's cost per unit area, by the file's units.
+AREA_COST_KEY = {"metric": "cost_per_m2", "imperial": "cost_per_ft2"}
+DEFAULT_PLACEMENT = "surface"
+#: The formulas a room file may name (top-level ``method``, ``[target] method``): the engine's
+#: reverberation methods (roomcalc.engine.analysis.METHODS). Not given: the engine recommends.
+#: The planner's objectives (roomcalc.engine.planner.OBJECTIVES, repeated so that reading a
+#: room file never loads the solver; a test keeps them equal).
+OBJECTIVES = ("cost", "area")
+DEFAULT_OBJECTIVE = "cost"
+#: Largest level accepted as a limit at a receiver [dB], as for sound power.
+LEVEL_LIMIT_MAX_DB = 200.0
+
+
+@dataclass
+class AirSpec:
+    temperature: float | None = None        # file units (degC or degF); None = default
+    relative_humidity: float | None = None  # %
+    pressure_kpa: float | None = None
+
+
+@dataclass
+class ShapeSpec:
+    length: float | None = None
+    width: float | None = None
+    height: float | None = None
+    volume: float | None = None
+
+    @property
+    def is_box(self) -> bool:
+        return None not in (self.length, self.width, self.height)
+
+
+@dataclass
+class SurfaceSpec:
+    name: str
+    material: str | None = None
+    alpha: list[float] | None = None
+    area: float | None = None
+    count: int = 1
+    face: str | None = None
+
+
+@dataclass
+class ObjectSpec:
+    name: str
+    count: float = 1
+    material: str | None = None
+    absorption: list[float] | None = None
+    occupant: bool | None = None            # is, or includes, people; None: as the catalogue
+
+
+@dataclass
+class SourceSpec:
+    name: str
+    sound_power: list[float] | None = None
+    sound_power_dba: float | None = None
+    spectrum: str | None = None
+    directivity: float | None = None
+    placement: str | None = None
+    position: list[float] | None = None
+
+    @property
+    def q(self) -> float:
+        if self.directivity is not None:
+            return float(self.directivity)
+        return PLACEMENT_Q[self.placement or DEFAULT_PLACEMENT]
+
+
+@dataclass
+class ReceiverSpec:
+    name: str
+    position: list[float] | None = None
+    distances: dict[str, float] = field(default_factory=dict)
+    hours: float | None = None              # working pattern: hours per day here; None = none
+    source_hours: dict[str, float] = field(default_factory=dict)  # hours each source runs
+
+
+def band_text(bands) -> str:
+    """How a list of one value per band is described in problems."""
+    return f"one per band: {', '.join(map(str, bands))} Hz"
+
+
+#: A limit per band as written: one number (every band), a list (one per band) or a table
+#: band [Hz] -> value (only the bands it names).
+BandLimit = float | list[float] | dict[int, float]
+
+
+def limit_values(limit: BandLimit | None, bands) -> list[float]:
+    """A band limit as one value per band, NaN where it sets none (None: NaN everywhere)."""
+    if limit is None:
+        return [math.nan] * len(bands)
+    if isinstance(limit, dict):
+        return [float(limit[b]) if b in limit else math.nan for b in bands]
+    if isinstance(limit, list):
+        return [float(x) for x in limit]
+    return [float(limit)] * len(bands)
+
+
+@dataclass
+class TargetSpec:
+    """The [target] table as written. None = not given (the defaults apply)."""
+
+    method: str | None = None
+    objective: str | None = None
+    currency: str | None = None
+    criterion: str | None = None
+    rt60_max: BandLimit | None = None       # s
+    rt60_min: BandLimit | None = None       # s
+    max_level_dba: dict[str, float] = field(default_factory=dict)      # receiver -> dB(A)
+    max_level_db: dict[str, BandLimit] = field(default_factory=dict)   # receiver -> dB per band
+
+    @property
+    def plan_method(self) -> str | None:
+        """The formula this table names; None: not given (see RoomSpec.method_in_force)."""
+        return self.method
+
+    @property
+    def plan_objective(self) -> str:
+        return self.objective or DEFAULT_OBJECTIVE
+
+
+@dataclass
+class CandidateSpec:
+    """One [[candidates]] entry as written (file units). With ``surface`` it covers part of that
+    surface; without, it is added as units."""
+
+    name: str
+    surface: str | None = None
+    material: str | None = None
+    alpha: list[float] | None = None        # cover
+    absorption: list[float] | None = None   # units: area per unit per band (m^2 or ft^2)
+    max_area: float | None = None           # cover, m^2 or ft^2; None = the whole surface
+    step: float | None = None               # cover, m^2 or ft^2 per panel
+    cost_per_m2: float | None = None        # cover, metric files
+    cost_per_ft2: float | None = None       # cover, imperial files
+    max_count: float | None = None          # units; None = no limit
+    whole: bool | None = None               # units; None = whole units
+    cost_each: float | None = None          # units
+    area_each: float | None = None          # units, m^2 or ft^2 each
+
+    @property
+    def covers(self) -> bool:
+        return self.surface is not None
+
+    @property
+    def area_cost(self) -> float | None:
+        """The cost per unit area of the file's units, whichever key holds it."""
+        return self.cost_per_m2 if self.cost_per_m2 is not None else self.cost_per_ft2
+
+
+@dataclass
+class RoomSpec:
+    """A room as written in its file (file units, material ids)."""
+
+    title: str = ""
+    units: str = "metric"
+    bands_hz: list[int] | None = None
+    method: str | None = None               # one of METHODS; None: the recommended one
+    air: AirSpec = field(default_factory=AirSpec)
+    shape: ShapeSpec = field(default_factory=ShapeSpec)
+    surfaces: list[SurfaceSpec] = field(default_factory=list)
+    objects: list[ObjectSpec] = field(default_factory=list)
+    sources: list[SourceSpec] = field(default_factory=list)
+    receivers: list[ReceiverSpec] = field(default_factory=list)
+    materials: list[Material] = field(default_factory=list)
+    version: int = FORMAT_VERSION
+    target: TargetSpec | None = None
+    candidates: list[CandidateSpec] = field(default_factory=list)
+
+    @property
+    def bands(self) -> tuple[int, ...]:
+        return tuple(self.bands_hz) if self.bands_hz else DEFAULT_BANDS_HZ
+
+    @property
+    def unit_system(self) -> Units:
+        return UNITS[self.units]
+
+    @property
+    def method_in_force(self) -> str | None:
+        """The formula the file asks for: top-level ``method``, else ``[target] method``;
+        None: the file names none (the engine's recommendation applies)."""
+        return self.method or (self.target.method if self.target is not None else None)

@@ -1,0 +1,139 @@
+"""Writing a room spec back: the TOML document, its text (keys in the order of
+docs/room-files.md, each list on one line), and atomic saving."""
+
+from __future__ import annotations
+
+import re
+
+import tomli_w
+
+from roomcalc.io.atomic import write_text_atomic
+from roomcalc.io.roomfile.spec import CANDIDATE_KEYS, SHAPE_KEYS, RoomSpec
+
+
+def spec_to_dict(spec: RoomSpec) -> dict:
+    """The TOML document of a spec, keys in the order of docs/room-files.md."""
+    d: dict = {"version": spec.version}
+    if spec.title:
+        d["title"] = spec.title
+    d["units"] = spec.units
+    if spec.bands_hz:
+        d["bands_hz"] = list(spec.bands_hz)
+    if spec.method is not None:
+        d["method"] = spec.method
+    air = {k: v for k, v in (("temperature", spec.air.temperature),
+                             ("relative_humidity", spec.air.relative_humidity),
+                             ("pressure_kpa", spec.air.pressure_kpa)) if v is not None}
+    if air:
+        d["air"] = air
+    d["shape"] = {k: getattr(spec.shape, k) for k in SHAPE_KEYS
+                  if getattr(spec.shape, k) is not None}
+    d["surfaces"] = [_clean({"name": s.name, "area": s.area,
+                             "count": _whole(s.count) if s.count != 1 else None, "face": s.face,
+                             "material": s.material, "alpha": s.alpha}) for s in spec.surfaces]
+    if spec.objects:
+        d["objects"] = [_clean({"name": o.name, "count": _whole(o.count),
+                                "material": o.material, "absorption": o.absorption,
+                                "occupant": o.occupant})
+                        for o in spec.objects]
+    if spec.sources:
+        d["sources"] = [_clean({"name": s.name, "sound_power": s.sound_power,
+                                "sound_power_dba": s.sound_power_dba, "spectrum": s.spectrum,
+                                "directivity": s.directivity, "placement": s.placement,
+                                "position": s.position}) for s in spec.sources]
+    if spec.receivers:
+        d["receivers"] = [_clean({"name": r.name, "position": r.position,
+                                  "distances": dict(r.distances) or None, "hours": r.hours,
+                                  "source_hours": dict(r.source_hours) or None})
+                          for r in spec.receivers]
+    _planning(spec, d)
+    if spec.materials:
+        d["materials"] = [_clean({"id": m.id, "name": m.name, "category": m.category,
+                                  "kind": m.kind,
+                                  "values": {str(k): v for k, v in sorted(m.values.items())},
+                                  "source": m.source, "notes": m.notes or None,
+                                  "occupant": m.occupant or None, "unoccupied": m.unoccupied})
+                          for m in spec.materials]
+    return d
+
+
+def _planning(spec: RoomSpec, d: dict) -> None:
+    """[target] and [[candidates]] into the document ``d``."""
+    if spec.target is not None:
+        t = spec.target
+        d["target"] = _clean({
+            "method": t.method, "objective": t.objective, "currency": t.currency,
+            "criterion": t.criterion, "rt60_max": _limit_out(t.rt60_max),
+            "rt60_min": _limit_out(t.rt60_min), "max_level_dba": dict(t.max_level_dba) or None,
+            "max_level_db": {k: _limit_out(v) for k, v in t.max_level_db.items()} or None})
+    if spec.candidates:
+        d["candidates"] = [_candidate_out(c) for c in spec.candidates]
+
+
+def _candidate_out(c) -> dict:
+    d = {k: _limit_out(getattr(c, k)) for k in CANDIDATE_KEYS}
+    d["max_count"] = _whole(c.max_count)
+    return _clean(d)
+
+
+def _whole(v):
+    """A count as a file keeps it: a whole number without a decimal point (28, not 28.0)."""
+    if isinstance(v, float) and v.is_integer() and abs(v) < 2.0 ** 53:
+        return int(v)
+    return v
+
+
+def _limit_out(v):
+    """A value as TOML holds it: a table by band gets text keys; lists are copied."""
+    if isinstance(v, dict):
+        return {str(k): x for k, x in v.items()}
+    return list(v) if isinstance(v, list) else v
+
+
+def _clean(d: dict) -> dict:
+    return {k: v for k, v in d.items() if v is not None}
+
+
+def spec_to_toml(spec: RoomSpec) -> str:
+    """Room-file text of a spec: top-level keys, then [air] and [shape], then one [[table]] per
+    surface, object, source and receiver, then [target], one [[table]] per candidate and per
+    material, each list of numbers on one line.
+    ``tomllib.loads(spec_to_toml(s)) == spec_to_dict(s)`` (a test checks it)."""
+    d = spec_to_dict(spec)
+    out = [f"{_key(k)} = {_value(v)}" for k, v in d.items() if not isinstance(v, (dict, list))
+           or (isinstance(v, list) and not (v and isinstance(v[0], dict)))]
+    for k, v in d.items():
+        if isinstance(v, dict):
+            out += ["", f"[{_key(k)}]"] + [f"{_key(a)} = {_value(b)}" for a, b in v.items()]
+        elif isinstance(v, list) and v and isinstance(v[0], dict):
+            for item in v:
+                out += ["", f"[[{_key(k)}]]"] + [f"{_key(a)} = {_value(b)}"
+                                                 for a, b in item.items()]
+    return "\n".join(out) + "\n"
+
+
+_BARE_KEY = re.compile(r"[A-Za-z0-9_-]+")
+
+
+def _key(k: str) -> str:
+    return k if _BARE_KEY.fullmatch(k) else _value(k)
+
+
+def _value(v) -> str:
+    if isinstance(v, bool):
+        return "true" if v else "false"
+    if isinstance(v, (int, float)):
+        return repr(v)
+    if isinstance(v, str):
+        return tomli_w.dumps({"x": v})[4:].rstrip("\n")
+    if isinstance(v, list):
+        return "[" + ", ".join(_value(x) for x in v) + "]"
+    if isinstance(v, dict):
+        return "{ " + ", ".join(f"{_key(a)} = {_value(b)}" for a, b in v.items()) + " }" \
+            if v else "{}"
+    raise TypeError(f"cannot write {type(v).__name__} to a room file")
+
+
+def save_spec(spec: RoomSpec, path) -> None:
+    """Write a spec to a room file atomically (temporary file, fsync, rename)."""
+    write_text_atomic(path, spec_to_toml(spec))
