@@ -10,6 +10,7 @@ import numpy as np
 
 from roomcalc.cli import main
 from roomcalc.engine.analysis import evaluate
+from roomcalc.engine.model import at_occupancy
 from roomcalc.engine.bands import a_weighted_total
 from roomcalc.io.roomfile import read_room
 
@@ -174,7 +175,9 @@ def test_example_classroom_against_ansi_s12_60(capsys, catalog):
     path = EXAMPLES / "classroom.toml"
     code, out, _ = run(capsys, "check", str(path))
     assert code == 0
-    res = evaluate(read_room(path, catalog)[1])
+    # The standard assesses the unoccupied furnished room ([memory], as the criteria library
+    # marks it): the check's estimate is for the room without its pupils and teacher.
+    res = evaluate(at_occupancy(read_room(path, catalog)[1], 0.0), method="eyring")
     rows = {ln.split()[0]: ln.split() for ln in out.splitlines()
             if ln.strip().split()[:1] and ln.strip().split()[0] in ("500", "1k", "2k")}
     assert set(rows) == {"500", "1k", "2k"}

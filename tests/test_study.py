@@ -28,8 +28,7 @@ def _study(name, catalog, **kw):
 def _without_method(spec):
     if spec.target is not None:
         spec.target.method = None
-    if hasattr(spec, "method"):
-        spec.method = None
+    spec.method = None
     return spec
 
 

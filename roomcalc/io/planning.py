@@ -36,7 +36,8 @@ FULL_COVER_SHARE = 1e-6
 AMOUNT_RTOL = 1e-9
 
 
-def resolve_goals(spec: RoomSpec, room, criteria=None, *, filename: str = "<room>") -> Goals:
+def resolve_goals(spec: RoomSpec, room, criteria=None, *, method: str | None = None,
+                  filename: str = "<room>") -> Goals:
     """The planner's goals from a room's ``[target]`` table.
 
     Parameters
@@ -45,6 +46,8 @@ def resolve_goals(spec: RoomSpec, room, criteria=None, *, filename: str = "<room
     room : Room -- the room ``spec`` resolved to (its volume [m^3] and bands are used)
     criteria : dict of id -> Criterion, optional -- the library ``criterion`` names; None:
         the shipped library (:func:`roomcalc.io.criteria.load_criteria`)
+    method : str, optional -- the formula in force (roomcalc.study passes it); None: the one
+        the file names, else Eyring
     filename : str -- named in problems
 
     Returns
@@ -93,8 +96,8 @@ def resolve_goals(spec: RoomSpec, room, criteria=None, *, filename: str = "<room
             levels.append(LevelGoal(r.name, float(dba) if dba is not None else None,
                                     np.array(limit_values(db, bands)) if db is not None
                                     else None))
-    # TODO(lead): the core passes the recommended method when the file names none.
-    return Goals(method=spec.method_in_force or "eyring", rt60_max=rt_max, rt60_min=rt_min,
+    # The core (roomcalc.study) passes the formula in force; other callers get the file's.
+    return Goals(method=method or spec.method_in_force or "eyring", rt60_max=rt_max, rt60_min=rt_min,
                  levels=tuple(levels), objective=t.plan_objective, source=t.criterion or "")
 
 

@@ -12,7 +12,7 @@ the engine's numbers for one room, put together the same way for every front end
 
 from __future__ import annotations
 
-from dataclasses import dataclass, replace
+from dataclasses import dataclass
 
 import numpy as np
 
@@ -187,7 +187,7 @@ def make_plan(spec: RoomSpec, room: Room, result: RoomResult, catalog, criteria:
     from roomcalc.engine.planner import apply_to_room, plan
 
     method = result.method
-    goals = replace(resolve_goals(spec, room, criteria, filename=filename), method=method)
+    goals = resolve_goals(spec, room, criteria, method=method, filename=filename)
     occ = occupancy_for(criterion_of(spec, criteria), room, result, method)
     planned_room = occ.room
     cands = resolve_candidates(spec, planned_room, catalog, objective=objective,

@@ -31,16 +31,7 @@ from roomcalc.io.roomfile import RoomSpec, check_room, read_room
 from roomcalc.study.assessment import (PlanRun, TargetCheck, exposures, make_plan,
                                        target_check)
 
-__all__ = ["Answer", "Study", "chosen_method"]
-
-
-def chosen_method(spec: RoomSpec) -> str | None:
-    """The formula the room file chooses: top-level ``method``, else ``[target] method``;
-    None: the engine's recommendation."""
-    own = getattr(spec, "method", None)
-    if own:
-        return own
-    return spec.target.method if spec.target is not None else None
+__all__ = ["Answer", "Study"]
 
 
 @dataclass(frozen=True, eq=False)
@@ -94,7 +85,7 @@ class Study:
     @property
     def method_choice(self) -> str | None:
         """The formula chosen by the user or the file; None: the recommendation."""
-        return self.method or chosen_method(self.spec)
+        return self.method or self.spec.method_in_force
 
     def check(self) -> Room:
         """The spec checked as a file would be, resolved to SI (RoomFileError otherwise)."""

@@ -17,7 +17,6 @@ from types import SimpleNamespace
 import pytest
 
 from roomcalc.engine.analysis import METHOD_TITLES, evaluate
-from roomcalc.study import chosen_method
 from roomcalc.io.errors import RoomFileError
 from roomcalc.io.roomfile import check_room, read_room, spec_to_toml
 
@@ -57,7 +56,7 @@ def engine(tmp_path, catalog):
         path.parent.mkdir(exist_ok=True)
         path.write_text(spec_to_toml(spec), encoding="utf-8")
         spec, room = read_room(path, catalog)
-        return evaluate(room, method=chosen_method(spec))     # the formula the file chooses
+        return evaluate(room, method=spec.method_in_force)     # the formula the file chooses
 
     def rt_text(res, band: int = 500, method: str | None = None) -> str:
         """The RT of ``method`` (default: the recommended one) at ``band``, as the table shows
