@@ -223,7 +223,7 @@ def _plan(args, catalog) -> int:
     else:
         sys.stdout.write(sections.plan_text(run, u))
         if answer.exposures:
-            after = study.answer(study.after_room(run)).exposures
+            after = study.answer(result=run.described_after).exposures
             sys.stdout.write(sections.exposure_text(answer.exposures, after))
         if args.write:
             print(f"Treated room written to {args.write}")

@@ -13,7 +13,7 @@ from roomcalc.present.numbers import band_label, finite_or_none, fmt, floats, wr
 from roomcalc.study.assessment import Occupancy, PlanRun, TargetCheck
 
 __all__ = ["window_text", "occupancy_text", "target_text", "target_dict", "exposure_text",
-           "exposure_dict", "plan_totals_text", "plan_text", "plan_dict", "occupancy_dict"]
+           "exposure_dict", "plan_levels", "plan_totals_text", "plan_text", "plan_dict", "occupancy_dict"]
 
 
 def window_text(lo: float, hi: float) -> str:
@@ -28,7 +28,7 @@ def window_text(lo: float, hi: float) -> str:
 
 
 def occupancy_text(occ: Occupancy) -> str:
-    return f"assessed {occ.label}" + (f" ({occ.source})" if occ.source else "")
+    return f"assessed {occ.label}." + (f" {occ.source}" if occ.source else "")
 
 
 def occupancy_dict(occ: Occupancy) -> dict:
@@ -51,7 +51,7 @@ def target_text(check: TargetCheck, width=None, described=None) -> str:
         if not a.applicable:
             lines.append(wrap(f"not applicable: {a.reason}", "  ", "    ", width=width))
         else:
-            lines += _assessment_lines(check, described)
+            lines += _assessment_lines(check, described, width)
         if c.source:
             lines.append(wrap(f"source: {c.source}", "  ", "    ", width=width))
         if a.provenance:
@@ -67,7 +67,7 @@ def target_text(check: TargetCheck, width=None, described=None) -> str:
     return "\n".join(lines) + "\n"
 
 
-def _assessment_lines(check: TargetCheck, described) -> list[str]:
+def _assessment_lines(check: TargetCheck, described, width) -> list[str]:
     a = check.assessment
     mean = math.isfinite(a.mean_s)
     show_described = described is not None and check.occupancy.differs
@@ -94,8 +94,9 @@ def _assessment_lines(check: TargetCheck, described) -> list[str]:
                      f"{window_text(a.mean_min_s, a.mean_max_s)}, margin "
                      f"{a.mean_margin_s:+.2f} s: {a.mean_status}")
     if show_described:
-        lines.append(f"  (estimate: {check.occupancy.label}; described: the room as its "
-                     "file gives it; the verdict is for the estimate)")
+        lines.append(wrap(f"(estimate: {check.occupancy.label}; described: the room as its "
+                          "file gives it; the verdict is for the estimate)", "  ", "   ",
+                          width=width))
     lines.append(f"  overall: {a.status}")
     return lines
 
@@ -200,9 +201,16 @@ def plan_dict(run: PlanRun, u: Units = METRIC) -> dict:
             "rt60_after_s": floats(p.rt60_after),
             "rt60_max_s": None if hi is None else finite_or_none(hi),
             "rt60_min_s": None if lo is None else finite_or_none(lo),
-            "levels_before_dba": {k: float(v) for k, v in p.levels_before.items()},
-            "levels_after_dba": {k: float(v) for k, v in p.levels_after.items()},
+            "levels_before_dba": {n: b for n, b, _ in plan_levels(run)},
+            "levels_after_dba": {n: a for n, _, a in plan_levels(run)},
             "reasons": list(p.reasons), "solver": p.solver}
+
+
+def plan_levels(run: PlanRun) -> list[tuple[str, float, float]]:
+    """(receiver, dB(A) before, dB(A) after) for the room as described (all its people)."""
+    after = {r.name: r.level_dba for r in run.described_after.receivers}
+    return [(r.name, float(r.level_dba), float(after[r.name]))
+            for r in run.described_before.receivers if r.name in after]
 
 
 def plan_text(run: PlanRun, u: Units = METRIC, width=None) -> str:
@@ -235,8 +243,7 @@ def plan_text(run: PlanRun, u: Units = METRIC, width=None) -> str:
         lines.append("  " + f"{'at most':16}" + "".join(f"{fmt(x):>7}" for x in hi))
     if lo is not None:
         lines.append("  " + f"{'at least':16}" + "".join(f"{fmt(x):>7}" for x in lo))
-    for name, before in p.levels_before.items():
-        after = p.levels_after.get(name)
+    for name, before, after in plan_levels(run):
         lines.append(f"  {name}: {before:.1f} -> {after:.1f} dB(A) ({after - before:+.1f} dB)")
     for r in p.reasons:
         lines.append(wrap(r, "  ! ", "    ", width=width))

@@ -96,6 +96,8 @@ class PlanRun:
     after_room: Room
     goals: Goals
     occupancy: Occupancy
+    described_before: RoomResult      # the room as described (all its people), by the method
+    described_after: RoomResult       # the same with the plan's treatment
 
 
 def criterion_of(spec: RoomSpec, criteria: dict) -> Criterion | None:
@@ -199,8 +201,15 @@ def make_plan(spec: RoomSpec, room: Room, result: RoomResult, catalog, criteria:
                          "file (or tick some)")
     p = plan(planned_room, cands, goals, objective=objective)
     before = occ.result if occ.result is not None else result
-    return PlanRun(p, tuple(cands), spec.target.currency or "", before,
-                   apply_to_room(planned_room, cands, p.amounts), goals, occ)
+    treated = apply_to_room(planned_room, cands, p.amounts)
+    if occ.result is None:
+        described_after = evaluate(treated, reverberant_model=result.reverberant_model,
+                                   method=method)
+    else:
+        described_after = evaluate(apply_to_room(room, cands, p.amounts),
+                                   reverberant_model=result.reverberant_model, method=method)
+    return PlanRun(p, tuple(cands), spec.target.currency or "", before, treated, goals, occ,
+                   result, described_after)
 
 
 def window_of(goals: Goals) -> tuple:

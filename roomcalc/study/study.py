@@ -131,12 +131,6 @@ class Study:
         return make_plan(self.spec, room, result, self.catalog, self.criteria,
                          objective=objective, enabled=enabled, filename=self.filename)
 
-    def after_room(self, run: PlanRun) -> Room:
-        """The room as described (all its people) with the plan's treatment added."""
-        from roomcalc.engine.planner import apply_to_room
-
-        return apply_to_room(self.room, run.candidates, run.plan.amounts)
-
     def treated_spec(self, run: PlanRun) -> RoomSpec:
         """A copy of the spec with the plan's treatment added (for saving or applying)."""
         return apply_plan(self.spec, run.plan, list(run.candidates))

@@ -40,7 +40,9 @@ def read_spec(path) -> RoomSpec:
     """Read and check a room file without resolving materials."""
     path = Path(path)
     try:
-        text = path.read_text(encoding="utf-8")
+        # Bytes decoded as they are: the text parsed is the file's, line ends included
+        # (read_text would turn a stray carriage return into a new line).
+        text = path.read_bytes().decode("utf-8")
     except FileNotFoundError:
         raise RoomFileError([Problem(str(path), "", "no such file")]) from None
     except (OSError, UnicodeDecodeError) as exc:

@@ -15,6 +15,7 @@ from textual.containers import Horizontal, VerticalScroll
 from textual.message import Message
 from textual.widgets import Button, Input, Select, Static
 
+from roomcalc.present.sections import plan_levels
 from roomcalc.engine.analysis import METHOD_TITLES, METHODS
 from roomcalc.tui.widgets.grid import CellGrid
 from roomcalc.tui.widgets.results import BandTable
@@ -210,8 +211,7 @@ class PlanView(VerticalScroll):
         lo, hi = run.goals.rt60_min, run.goals.rt60_max
         rt.show(run.before.bands_hz, p.rt60_before, p.rt60_after, lo, hi)
         rt.display = True
-        lines = [f"{name}: {b:.1f} -> {p.levels_after.get(name, float('nan')):.1f} dB(A)"
-                 for name, b in p.levels_before.items()]
+        lines = [f"{name}: {b:.1f} -> {a:.1f} dB(A)" for name, b, a in plan_levels(run)]
         lines += [f"! {r}" for r in p.reasons]
         self.query_one("#plan-reasons", Static).update("\n".join(lines))
         self.query_one("#plan-apply", Button).disabled = not p.items
