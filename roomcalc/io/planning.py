@@ -18,12 +18,13 @@ import math
 
 import numpy as np
 
+from roomcalc.engine.analysis import evaluate
 from roomcalc.engine.criteria import applicability, target_window
 from roomcalc.engine.planner import Candidate, Goals, LevelGoal, Plan
 from roomcalc.io.catalog import Catalog
 from roomcalc.io.checks import Checker
 from roomcalc.io.errors import Problem, RoomFileError
-from roomcalc.io.roomfile import (AREA_COST_KEY, CANDIDATE_ALPHA_MAX, CandidateSpec,
+from roomcalc.io.roomfile import (AREA_COST_KEY, CandidateSpec,
                                   ObjectSpec, RoomSpec, SurfaceSpec, candidate_material,
                                   check_criterion_id, limit_values, room_catalog,
                                   shipped_criteria)
@@ -93,8 +94,23 @@ def resolve_goals(spec: RoomSpec, room, criteria=None, *, filename: str = "<room
             levels.append(LevelGoal(r.name, float(dba) if dba is not None else None,
                                     np.array(limit_values(db, bands)) if db is not None
                                     else None))
+    _check_method_available(t.plan_method, room, filename)
     return Goals(method=t.plan_method, rt60_max=rt_max, rt60_min=rt_min, levels=tuple(levels),
                  objective=t.plan_objective, source=t.criterion or "")
+
+
+def _check_method_available(method: str, room, filename: str) -> None:
+    """Fitzroy and Arau-Puchades need a box whose every surface names its face: say so as a
+    problem of ``target.method`` (the engine gives the reason)."""
+    if method not in ("fitzroy", "arau_puchades"):
+        return
+    res = evaluate(room)
+    if method not in res.rt60_s:
+        why = getattr(res, "unavailable", {}).get(method, "it cannot be evaluated here")
+        raise RoomFileError([Problem(filename, "target.method", f"'{method}' cannot be used "
+                                     f"for this room: {why}; give the room as a box (shape) "
+                                     "with a face on every surface, or use 'eyring', "
+                                     "'millington' or 'sabine'")])
 
 
 def _criterion_window(cid: str, room, criteria, filename: str):
@@ -149,8 +165,7 @@ def resolve_candidates(spec: RoomSpec, room, catalog: Catalog, *, objective: str
 
     Raises
     ------
-    RoomFileError -- a material the catalogue lacks, of the wrong kind or without a band, or
-    a cover material with alpha above 1 (the planner's range; a surface may have more); a
+    RoomFileError -- a material the catalogue lacks, of the wrong kind or without a band; a
     cost missing when the objective is cost, an ``area_each`` missing when it is area (a room
     file may leave them out while it is drafted; a plan needs them)
     ValueError -- ``room`` does not have ``spec``'s surfaces
@@ -183,12 +198,6 @@ def resolve_candidates(spec: RoomSpec, room, catalog: Catalog, *, objective: str
                     f"unit counts for ({u.area_label}), above 0")
         values = candidate_material(cat, chk, c, i, bands) if c.material else None
         if c.material and values is None:
-            continue
-        if c.covers and values is not None and np.any(values > CANDIDATE_ALPHA_MAX):
-            k = int(np.argmax(values > CANDIDATE_ALPHA_MAX))
-            chk.add(f"{w}.material", f"'{c.material}' has alpha {values[k]:g} at {bands[k]} Hz; "
-                    f"a plan takes alpha 0 to {CANDIDATE_ALPHA_MAX:g}: give the candidate's "
-                    "alpha inline (at most 1)")
             continue
         if c.covers:
             j = index[c.surface]

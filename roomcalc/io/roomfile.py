@@ -47,16 +47,15 @@ COVER_KEYS = ("surface", "alpha", "max_area", "step", "cost_per_m2", "cost_per_f
 UNIT_KEYS = ("absorption", "max_count", "whole", "cost_each", "area_each")
 CANDIDATE_KEYS = ("name", "surface", "material", "alpha", "absorption", "max_area", "step",
                   "cost_per_m2", "cost_per_ft2", "max_count", "whole", "cost_each", "area_each")
-#: Largest alpha of a cover candidate: the planner takes 0 to 1 (a surface may have up to
-#: ALPHA_MAX, as test reports give; a plan is made in the range where Eyring's ln(1 - alpha)
-#: holds).
-CANDIDATE_ALPHA_MAX = 1.0
+#: Largest alpha of a cover candidate: the catalogue's largest, as for a surface
+#: (roomcalc.engine.planner.ALPHA_MAX; the logarithmic formulas cap alpha at 0.99).
+CANDIDATE_ALPHA_MAX = ALPHA_MAX
 #: The key of a cover candidate's cost per unit area, by the file's units.
 AREA_COST_KEY = {"metric": "cost_per_m2", "imperial": "cost_per_ft2"}
 DEFAULT_PLACEMENT = "surface"
 #: The planner's formulas and objectives (roomcalc.engine.planner.PLAN_METHODS and OBJECTIVES,
 #: repeated so that reading a room file never loads the solver; a test keeps them equal).
-PLAN_METHODS = ("sabine", "eyring")
+PLAN_METHODS = ("sabine", "eyring", "millington", "fitzroy", "arau_puchades")
 OBJECTIVES = ("cost", "area")
 DEFAULT_PLAN_METHOD = "eyring"
 DEFAULT_OBJECTIVE = "cost"
