@@ -12,11 +12,12 @@ numbers (from the engine) turned into report sections and dictionaries. No Textu
 from __future__ import annotations
 
 import math
+import textwrap
 from dataclasses import dataclass
 
 import numpy as np
 
-from roomcalc.engine.analysis import RoomResult, evaluate
+from roomcalc.engine.analysis import METHOD_TITLES, RoomResult, evaluate
 from roomcalc.engine.bands import a_weighted_total
 from roomcalc.engine.criteria import Assessment, assess, user_window
 from roomcalc.engine.exposure import (EXPOSURE_CAUTION, ExposureSummary, compare_exposure,
@@ -26,7 +27,8 @@ from roomcalc.engine.planner import Candidate, Plan
 from roomcalc.io.roomfile import RoomSpec
 from roomcalc.io.units import METRIC, Units
 
-METHOD_NAMES = {"sabine": "Sabine", "eyring": "Eyring"}
+#: Names of the formulas for people (the engine's titles).
+METHOD_NAMES = dict(METHOD_TITLES)
 
 
 def _f(x, nd=2) -> str:
@@ -258,7 +260,8 @@ def make_plan(spec: RoomSpec, room: Room, catalog, criteria=None, *, objective=N
 
 def plan_dict(run: PlanRun, u: Units = METRIC) -> dict:
     """The plan as JSON (SI): ``feasible``, ``items`` (``candidate``, ``surface`` or null,
-    ``area_m2`` or ``count``, ``cost``), ``total_cost``, ``rt60_after_s``, ``method``, and more."""
+    ``area_m2`` or ``count``, ``cost``), ``total_cost``, ``total_area_m2`` (covered area
+    only), ``total_units`` (units added), ``rt60_after_s``, ``method``, and more."""
     p = run.plan
     items = []
     for it in p.items:
@@ -268,7 +271,7 @@ def plan_dict(run: PlanRun, u: Units = METRIC) -> dict:
         items.append(d)
     return {"feasible": p.feasible, "method": p.method, "objective": p.objective,
             "currency": run.currency, "items": items, "total_cost": p.total_cost,
-            "total_area_m2": p.total_area, "bands_hz": [int(b) for b in run.before.bands_hz],
+            "total_area_m2": p.total_area, "total_units": p.total_units, "bands_hz": [int(b) for b in run.before.bands_hz],
             "rt60_before_s": [float(x) for x in p.rt60_before],
             "rt60_after_s": [float(x) for x in p.rt60_after],
             "levels_before_dba": {k: float(v) for k, v in p.levels_before.items()},
@@ -288,8 +291,7 @@ def plan_text(run: PlanRun, u: Units = METRIC, goals_window=None) -> str:
                       else f"{it.amount:g} units")
             lines.append(f"  {it.candidate[:34]:34} {(it.surface or 'added')[:18]:18} "
                          f"{amount:>12} {it.cost:>10.2f}")
-        lines.append(f"  {'total':34} {'':18} {p.total_area / u.area:>8.2f} {u.area_label:>3} "
-                     f"{p.total_cost:>10.2f}")
+        lines.append(f"  {'total':34} {total_amount_text(p, u):>31} {p.total_cost:>10.2f}")
     else:
         lines.append("  nothing to add: the room already meets its target" if p.feasible
                      else "  no candidate helps")
@@ -306,11 +308,23 @@ def plan_text(run: PlanRun, u: Units = METRIC, goals_window=None) -> str:
     for name, before in p.levels_before.items():
         after = p.levels_after.get(name)
         lines.append(f"  {name}: {before:.1f} -> {after:.1f} dB(A) ({after - before:+.1f} dB)")
-    from roomcalc.io.report import _wrap
+    from roomcalc.io.report import WIDTH
 
     for r in p.reasons:
-        lines.append(_wrap(r, "  ! ", "    "))
+        lines.append(textwrap.fill(r, WIDTH - 1, initial_indent="  ! ",
+                                   subsequent_indent="    "))
     return "\n".join(lines) + "\n"
+
+
+def total_amount_text(p: Plan, u: Units = METRIC) -> str:
+    """A plan's covered area and units apart, e.g. "48.62 m^2 and 40 units" (only the parts
+    that are not zero; area in the file's units; "nothing" when both are)."""
+    parts = []
+    if p.total_area > 0:
+        parts.append(f"{p.total_area / u.area:.2f} {u.area_label}")
+    if p.total_units > 0:
+        parts.append(f"{p.total_units:g} unit{'s' if p.total_units != 1 else ''}")
+    return " and ".join(parts) or "nothing"
 
 
 def window_of(goals) -> tuple:

@@ -164,7 +164,7 @@ def plan(room: Room, candidates: Sequence[Candidate], goals: Goals, *,
     - Fitzroy [4]_ and Arau-Puchades [5]_ are not linear in x: the plan is made with Eyring's
       bound, the treated room is evaluated by the formula in force, and each band that misses
       gets its Eyring limit moved (first scaled by :math:`T_{max} / T_b`, then by secant
-      steps in :math:`\ln T`, aiming at SURROGATE_MARGIN inside the goal) and the plan is
+      steps in :math:`\\ln T`, aiming at SURROGATE_MARGIN inside the goal) and the plan is
       made again, until the engine confirms, the bounds can no longer be met
       (then the least-shortfall plan and its reasons), or MAX_SURROGATE_ROUNDS plans. The same
       rounds catch a rounded plan that an exact formula finds a hair short.
