@@ -342,3 +342,36 @@ def test_plan_totals_from_the_engine_api():
                                                 rt60_max=[np.nan, np.nan, 0.5, 0.5, np.nan,
                                                           np.nan]))
     assert by_area.feasible and by_area.total_area == pytest.approx(by_area.amounts[0])
+
+
+# ------------------------------------------------------ the linear model against the engine
+
+@pytest.mark.parametrize("method", ["sabine", "eyring", "millington"])
+def test_linear_model_is_the_engine_for_the_exact_formulas(method):
+    # Consistency with the engine, no published source: for these three formulas the
+    # planner's absorption is affine in the amounts and gives the engine's time exactly
+    # (alpha above 1 as given by Sabine, capped at 0.99 by the logarithmic ones).
+    from roomcalc.engine.planner.build import build_model
+
+    room = read_room_from_text(WITH_BAFFLES)
+    cands = [Candidate("Panel", "cover", surface=1, alpha=[0.3, 1.1, 1.0, 0.95, 0.9, 0.85]),
+             Candidate("Wall", "cover", surface=4, alpha=[0.2, 0.5, 0.8, 0.9, 0.9, 0.9]),
+             Candidate("Baffle", "units", max_amount=10, absorption=[0.2, 0.5, 1.0, 1.2, 1.2,
+                                                                     1.1])]
+    model = build_model(room, cands, Goals(method=method, rt60_max=[1.0] * 6), None)
+    air = 4.0 * model.m * model.volume
+    for x in ([0.0, 0.0, 0.0], [48.0, 0.0, 0.0], [12.5, 7.25, 3.0], [30.0, 18.0, 10.0]):
+        a = model.a0_rt + np.asarray(x) @ model.g_rt
+        t_lin = (model.kv / (-model.s_tot * np.log1p(-a / model.s_tot) + air)
+                 if method == "eyring" else model.kv / (a + air))
+        t_eng = evaluate(apply_to_room(room, cands, x), method=method).rt60_s[method]
+        np.testing.assert_allclose(t_lin, t_eng, rtol=1e-12)
+
+
+def test_engine_api_names_the_method_a_room_cannot_use():
+    room = read_room_from_text(STUDIO.replace("METHOD", "eyring")
+                               .replace('face = "front"\n', "area = 18.0\n"))
+    panel = Candidate("Panel", "cover", surface=1, alpha=[0.3, 0.8, 1.0, 1.0, 1.0, 1.0])
+    with pytest.raises(ValueError, match=r"goals\.method: Arau-Puchades is unavailable for "
+                                         r"this room \(surfaces .*Front"):
+        plan(room, [panel], Goals(method="arau_puchades", rt60_max=[1.0] * 6))

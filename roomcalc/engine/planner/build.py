@@ -172,18 +172,28 @@ def _level_goals(goals: Goals, direct, bands, g_log, u0, s_tot, cap_area):
     return tuple(rows), tuple(cuts)
 
 
+def _evaluate_before(room: Room, method: str):
+    """The untreated room by ``method``; a ValueError naming ``goals.method`` when the room
+    cannot be evaluated by it (Fitzroy and Arau-Puchades need a box with faces)."""
+    try:
+        return evaluate(room, method=method)
+    except ValueError:
+        plain = evaluate(room)                  # raises if the room itself is the problem
+        if method in plain.rt60_s:
+            raise
+        why = getattr(plain, "unavailable", {}).get(method, "it cannot be evaluated here")
+        raise ValueError(f"goals.method: {METHOD_TITLES[method]} is unavailable for this room "
+                         f"({why}); plan with 'sabine', 'eyring' or 'millington'") from None
+
+
 def build_model(room: Room, candidates, goals: Goals, objective) -> PlanModel:
     """Check the inputs, evaluate the untreated room and build its linear programme."""
     if not isinstance(room, Room):
         raise ValueError(f"room: must be a Room, got {type(room).__name__}")
     objective, rt_max, rt_min = check_goals(room, goals, objective)
     cands = check_candidates(room, candidates)
-    before = evaluate(room)
     method = goals.method
-    if method not in before.rt60_s:
-        why = getattr(before, "unavailable", {}).get(method, "it cannot be evaluated here")
-        raise ValueError(f"goals.method: {METHOD_TITLES[method]} is unavailable for this room "
-                         f"({why}); plan with 'sabine', 'eyring' or 'millington'")
+    before = _evaluate_before(room, method)
     lin = linear_method_of(method)
     bands = tuple(before.bands_hz)
     v, s_tot, m = before.volume_m3, before.surface_area_m2, before.air_m_per_m
