@@ -822,10 +822,10 @@ def test_the_good_planning_file_is_good(tmp_path, catalog):
     ("rt60_max = [1.0, 0.7, 0.6, 0.6, 0.6, 0.6]", "rt60_max = [1.0, 0.7, 0.6]",
      f"target.rt60_max: has 3 values; 6 are needed ({SIX})"),
     # ranges
-    # A candidate's alpha is 0 to 1, the planner's range (a surface's may reach 1.2).
-    ("alpha = [0.20, 0.55,", "alpha = [0.20, 1.05,", "candidates[0].alpha[1]: 1.05 is outside 0 to 1"),
-    ("alpha = [0.20, 0.55,", "alpha = [0.20, 1.55,", "candidates[0].alpha[1]: 1.55 is outside 0 to 1"),
-    ("alpha = [0.20,", "alpha = [-0.20,", "candidates[0].alpha[0]: -0.2 is outside 0 to 1"),
+    # A candidate's alpha is 0 to 1.2, the catalogue's range, as a surface's.
+    ("alpha = [0.20, 0.55,", "alpha = [0.20, 1.25,", "candidates[0].alpha[1]: 1.25 is outside 0 to 1.2"),
+    ("alpha = [0.20, 0.55,", "alpha = [0.20, 1.55,", "candidates[0].alpha[1]: 1.55 is outside 0 to 1.2"),
+    ("alpha = [0.20,", "alpha = [-0.20,", "candidates[0].alpha[0]: -0.2 is outside 0 to 1.2"),
     ("cost_per_m2 = 65.0", "cost_per_m2 = -65.0",
      "candidates[0].cost_per_m2: -65 is outside the allowed range: at least 0 per m^2"),
     ("cost_each = 55.0", "cost_each = -55.0",

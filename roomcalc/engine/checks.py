@@ -11,7 +11,7 @@ from __future__ import annotations
 import numpy as np
 
 __all__ = ["as_floats", "finite", "in_range", "positive", "non_negative", "per_band",
-           "range_text"]
+           "range_text", "band_values"]
 
 
 def _unit(unit: str) -> str:
@@ -94,4 +94,32 @@ def per_band(name: str, x, n_bands: int) -> np.ndarray:
     if a.ndim == 0 or a.shape[-1] != n_bands:
         n = 1 if a.ndim == 0 else a.shape[-1]
         raise ValueError(f"{name}: needs {n_bands} values, one per band; got {n}")
+    return a
+
+
+def band_values(name: str, x, bands_hz, low=None, high=None, *, low_inclusive=True,
+                nan_ok: bool = False, unit: str = "") -> np.ndarray:
+    """One value per band (a 1-d array of ``len(bands_hz)``), each finite and within
+    [low, high] (low open when ``low_inclusive`` is False), or NaN where ``nan_ok`` (no
+    limit in that band). The message names the first bad value by index and band, e.g.
+    ``alpha[2]: 1.3 at 500 Hz must be from 0 to 1.2``."""
+    a = as_floats(name, x)
+    nb = len(bands_hz)
+    if a.shape != (nb,):
+        raise ValueError(f"{name}: must have {nb} values, one per band "
+                         f"({', '.join(f'{b:g}' for b in bands_hz)} Hz); got shape {a.shape}")
+    ok = np.isfinite(a)
+    if low is not None:
+        ok &= (a >= low) if low_inclusive else (a > low)
+    if high is not None:
+        ok &= a <= high
+    if nan_ok:
+        ok |= np.isnan(a)
+    if not ok.all():
+        i = int(np.argmin(ok))
+        rng = range_text(low, high, low_inclusive=low_inclusive, unit=unit)
+        if low is None and high is None:
+            rng = "finite" + _unit(unit)
+        raise ValueError(f"{name}[{i}]: {a[i]:g} at {bands_hz[i]:g} Hz must be {rng}"
+                         + (" (NaN for no limit)" if nan_ok else ""))
     return a

@@ -24,7 +24,7 @@ from roomcalc.io.catalog import Catalog
 from roomcalc.io.checks import Checker
 from roomcalc.io.criteria import check_criterion_id, shipped_criteria
 from roomcalc.io.errors import Problem, RoomFileError
-from roomcalc.io.roomfile import (AREA_COST_KEY, CANDIDATE_ALPHA_MAX, CandidateSpec,
+from roomcalc.io.roomfile import (AREA_COST_KEY, CandidateSpec,
                                   ObjectSpec, RoomSpec, SurfaceSpec, candidate_material,
                                   limit_values, room_catalog, surface_area_m2)
 from roomcalc.io.units import UNITS
@@ -97,8 +97,9 @@ def resolve_goals(spec: RoomSpec, room, criteria=None, *, method: str | None = N
                                     np.array(limit_values(db, bands)) if db is not None
                                     else None))
     # The core (roomcalc.study) passes the formula in force; other callers get the file's.
-    return Goals(method=method or spec.method_in_force or "eyring", rt60_max=rt_max, rt60_min=rt_min,
-                 levels=tuple(levels), objective=t.plan_objective, source=t.criterion or "")
+    return Goals(method=method or spec.method_in_force or "eyring", rt60_max=rt_max,
+                 rt60_min=rt_min, levels=tuple(levels), objective=t.plan_objective,
+                 source=t.criterion or "")
 
 
 def _criterion_window(cid: str, room, criteria, filename: str):
@@ -153,8 +154,7 @@ def resolve_candidates(spec: RoomSpec, room, catalog: Catalog, *, objective: str
 
     Raises
     ------
-    RoomFileError -- a material the catalogue lacks, of the wrong kind or without a band, or
-    a cover material with alpha above 1 (the planner's range; a surface may have more); a
+    RoomFileError -- a material the catalogue lacks, of the wrong kind or without a band; a
     cost missing when the objective is cost, an ``area_each`` missing when it is area (a room
     file may leave them out while it is drafted; a plan needs them)
     ValueError -- ``room`` does not have ``spec``'s surfaces
@@ -187,12 +187,6 @@ def resolve_candidates(spec: RoomSpec, room, catalog: Catalog, *, objective: str
                     f"unit counts for ({u.area_label}), above 0")
         values = candidate_material(cat, chk, c, i, bands) if c.material else None
         if c.material and values is None:
-            continue
-        if c.covers and values is not None and np.any(values > CANDIDATE_ALPHA_MAX):
-            k = int(np.argmax(values > CANDIDATE_ALPHA_MAX))
-            chk.add(f"{w}.material", f"'{c.material}' has alpha {values[k]:g} at {bands[k]} Hz; "
-                    f"a plan takes alpha 0 to {CANDIDATE_ALPHA_MAX:g}: give the candidate's "
-                    "alpha inline (at most 1)")
             continue
         if c.covers:
             j = index[c.surface]

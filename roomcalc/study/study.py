@@ -25,7 +25,7 @@ from roomcalc.engine.analysis import Comparison, RoomResult, compare, evaluate
 from roomcalc.engine.exposure import ExposureSummary
 from roomcalc.engine.model import Room
 from roomcalc.io.catalog import Catalog
-from roomcalc.io.errors import RoomFileError
+from roomcalc.io.errors import Problem, RoomFileError
 from roomcalc.io.planning import apply_plan
 from roomcalc.io.roomfile import RoomSpec, check_room, read_room
 from roomcalc.study.assessment import (PlanRun, TargetCheck, exposures, make_plan,
@@ -101,9 +101,21 @@ class Study:
     def evaluate(self, room: Room | None = None, *, method: str | None = None) -> RoomResult:
         """The room (default: this study's) by every formula, the one in force marked
         (``method``: another formula to put in force, e.g. the one of a "before" room)."""
-        return evaluate(self.room if room is None else room,
-                        reverberant_model=self.reverberant_model,
-                        method=method or self.method_choice)
+        room = self.room if room is None else room
+        chosen = method or self.method_choice
+        try:
+            return evaluate(room, reverberant_model=self.reverberant_model, method=chosen)
+        except ValueError:
+            if chosen is None or method or self.method:
+                raise
+            # The file names a formula this room cannot use: a problem of that field.
+            why = evaluate(room, reverberant_model=self.reverberant_model).unavailable.get(chosen)
+            if why is None:
+                raise
+            field = "method" if self.spec.method else "target.method"
+            raise RoomFileError([Problem(self.filename, field, (
+                f"'{chosen}' cannot be used for this room: {why}; give the room as a box "
+                "(shape) with a face on every surface, or choose another formula"))]) from None
 
     def answer(self, room: Room | None = None, *, result: RoomResult | None = None) -> Answer:
         """The evaluated room (``result``: already evaluated, by this study), its target check

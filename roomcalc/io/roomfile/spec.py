@@ -12,7 +12,7 @@ from dataclasses import dataclass, field
 from roomcalc.engine.analysis import METHODS
 from roomcalc.engine.bands import DEFAULT_BANDS_HZ
 from roomcalc.engine.field import PLACEMENT_Q
-from roomcalc.io.catalog import Material
+from roomcalc.io.catalog import ALPHA_MAX, Material
 from roomcalc.io.units import UNITS, Units
 
 FORMAT_VERSION = 1
@@ -32,10 +32,9 @@ COVER_KEYS = ("surface", "alpha", "max_area", "step", "cost_per_m2", "cost_per_f
 UNIT_KEYS = ("absorption", "max_count", "whole", "cost_each", "area_each")
 CANDIDATE_KEYS = ("name", "surface", "material", "alpha", "absorption", "max_area", "step",
                   "cost_per_m2", "cost_per_ft2", "max_count", "whole", "cost_each", "area_each")
-#: Largest alpha of a cover candidate: the planner takes 0 to 1 (a surface may have up to
-#: ALPHA_MAX, as test reports give; a plan is made in the range where Eyring's ln(1 - alpha)
-#: holds).
-CANDIDATE_ALPHA_MAX = 1.0
+#: Largest alpha of a cover candidate: as for a surface, the catalogue's largest (test reports to
+#: ISO 354 give values a little above 1; the logarithmic formulas cap alpha at 0.99).
+CANDIDATE_ALPHA_MAX = ALPHA_MAX
 #: The key of a cover candidate's cost per unit area, by the file's units.
 AREA_COST_KEY = {"metric": "cost_per_m2", "imperial": "cost_per_ft2"}
 DEFAULT_PLACEMENT = "surface"
