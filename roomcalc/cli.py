@@ -162,7 +162,7 @@ def _run(args) -> int:
                 (len(room.sources), "source"), (len(room.receivers), "receiver")))
             print(f"{shown}: ok ({counts})")
             for w in result.warnings:
-                print(report._wrap(w.message, "  warning: ", "    "))
+                print(report.wrap(w.message, "  warning: ", "    "))
             sys.stdout.write(_extras_text(spec, room, result, str(path)))
             return EXIT_OK
         result = evaluate(room, reverberant_model=args.reverberant, method=args.method)

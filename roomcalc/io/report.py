@@ -35,7 +35,7 @@ def _list(a, nd=None):
     return out
 
 
-def _wrap(text, first="  - ", rest="    ", width=None):
+def wrap(text, first="  - ", rest="    ", width=None):
     """Wrapped to the report's width (``width`` 0: one line, for a screen that wraps itself)."""
     if width == 0:
         return first + text
@@ -80,7 +80,7 @@ def _tables(res: RoomResult, u: Units):
     rt = _Table("RT60 [s]", bands)
     for k in METHODS:
         if k in res.rt60_s:
-            mark = " *" if k == res.recommended else ""
+            mark = " *" if k == res.method else ""
             rt.add(METHOD_TITLES[k] + mark, res.rt60_s[k])
     room = _Table("Room", bands)
     room.add(f"Absorption A [{u.area_label}]", res.absorption_area_m2 / u.area, 1)
@@ -124,10 +124,10 @@ def _header(res: RoomResult, u: Units, source_name: str) -> list[str]:
 
 
 def _method_lines(res: RoomResult) -> list[str]:
-    lines = [_wrap(f"* {METHOD_TITLES[res.recommended]} is the one to use here: "
-                   f"{res.recommended_reason}.", "  ", "    ")]
+    lines = [wrap(f"* {METHOD_TITLES[res.method]} is the one to use here: "
+                  f"{res.method_reason}.", "  ", "    ")]
     for k, why in res.unavailable.items():
-        lines.append(_wrap(f"{METHOD_TITLES[k]} not available: {why}.", "  ", "    "))
+        lines.append(wrap(f"{METHOD_TITLES[k]} not available: {why}.", "  ", "    "))
     return lines
 
 
@@ -148,12 +148,12 @@ def report_text(res: RoomResult, source_name: str, u: Units = METRIC) -> str:
     if lv:
         model = "Barron & Lee revised theory" if res.reverberant_model == "barron-lee" \
             else "diffuse field, 4/R"
-        out += ["", lv.text(), _wrap(f"Levels re 20 uPa, sources summed; reverberant part "
+        out += ["", lv.text(), wrap(f"Levels re 20 uPa, sources summed; reverberant part "
                                      f"by {model}; no rho-c correction.", "  ", "  ")]
     if res.warnings:
-        out += ["", "Warnings"] + [_wrap(w.message) for w in res.warnings]
+        out += ["", "Warnings"] + [wrap(w.message) for w in res.warnings]
     if res.cautions:
-        out += ["", "CAUTION: HEARING"] + [_wrap(c, "  ! ", "    ") for c in res.cautions]
+        out += ["", "CAUTION: HEARING"] + [wrap(c, "  ! ", "    ") for c in res.cautions]
     return "\n".join(out) + "\n"
 
 
@@ -162,8 +162,8 @@ def report_markdown(res: RoomResult, source_name: str, u: Units = METRIC) -> str
     head = _header(res, u, source_name)
     out = [f"# {head[0]}", ""] + [f"- {h.strip()}" for h in head[1:]] + ["", "## Reverberation",
                                                                           "", rt.markdown(), ""]
-    out += [f"\\* {METHOD_TITLES[res.recommended]} is the one to use here: "
-            f"{res.recommended_reason}."]
+    out += [f"\\* {METHOD_TITLES[res.method]} is the one to use here: "
+            f"{res.method_reason}."]
     for k, why in res.unavailable.items():
         out += ["", f"{METHOD_TITLES[k]} not available: {why}."]
     out += ["", "## Room", "", room.markdown()]
@@ -190,8 +190,10 @@ def result_dict(res: RoomResult) -> dict:
         "speed_of_sound_m_s": res.speed_of_sound_m_s,
         "rt60_s": {k: _list(v) for k, v in res.rt60_s.items()},
         "rt60_unavailable": dict(res.unavailable),
-        "recommended_method": res.recommended,
-        "recommended_reason": res.recommended_reason,
+        "method": res.method,
+        "method_reason": res.method_reason,
+        "recommended": res.recommended,
+        "rt60_unreliable": dict(res.unreliable),
         "room_constant_m2": _list(res.room_constant_m2),
         "schroeder_frequency_hz": _list(res.schroeder_hz),
         "reverberant_model": res.reverberant_model,
@@ -244,12 +246,9 @@ REPORTERS = {"text": report_text, "markdown": report_markdown, "json": report_js
 # ----------------------------------------------------------------------------- compare
 
 def comparison_method(cmp: Comparison) -> str:
-    """One method for both rooms, like for like: the treated room's recommendation when the
-    untreated room has it too (treatment makes a room deader, where Sabine runs long)."""
-    for k in (cmp.after.recommended, cmp.before.recommended):
-        if k in cmp.before.rt60_s and k in cmp.after.rt60_s:
-            return k
-    return "sabine"
+    """The one formula both rooms are compared by, like for like: the one in force for the room
+    before (:attr:`Comparison.method`)."""
+    return cmp.method
 
 
 def comparison_dict(cmp: Comparison) -> dict:
@@ -320,12 +319,12 @@ def compare_text(cmp: Comparison, names: tuple[str, str], fmt: str = "text") -> 
     if lv:
         out += ["", lv.markdown() if md else lv.text()]
     if cmp.notes:
-        out += ["", "Notes"] + [(f"- {n}" if md else _wrap(n)) for n in cmp.notes]
+        out += ["", "Notes"] + [(f"- {n}" if md else wrap(n)) for n in cmp.notes]
     if cmp.after.warnings:
-        out += ["", "Warnings (after)"] + [(f"- {w.message}" if md else _wrap(w.message))
+        out += ["", "Warnings (after)"] + [(f"- {w.message}" if md else wrap(w.message))
                                           for w in cmp.after.warnings]
     if cmp.after.cautions:
-        out += ["", "CAUTION: HEARING (after)"] + [(f"- **{c}**" if md else _wrap(c, "  ! ", "    "))
+        out += ["", "CAUTION: HEARING (after)"] + [(f"- **{c}**" if md else wrap(c, "  ! ", "    "))
                                                   for c in cmp.after.cautions]
     return "\n".join(out) + "\n"
 
@@ -378,7 +377,7 @@ def materials_text(mats: list[Material], fmt: str = "text") -> str:
         else:
             lines += [f"{m.id}  [{m.category}]", f"    {m.name}",
                       f"    {m.bands_text}: {vals}", f"    {rating}",
-                      _wrap(f"source: {m.source}", "    ", "      "), ""]
+                      wrap(f"source: {m.source}", "    ", "      "), ""]
     if not md:
         lines.append(f"{len(mats)} material(s). SAA~ is an estimate from octave data; a "
                      "product's test report\nto ISO 354 / ASTM C423 supersedes these values.")

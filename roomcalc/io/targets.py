@@ -108,7 +108,7 @@ def target_check(spec: RoomSpec, room: Room, result: RoomResult, criteria=None,
 
 def target_text(check: TargetCheck, width=None) -> str:
     """The target section of the text report (``width`` 0: lines unwrapped)."""
-    from roomcalc.io.report import _wrap
+    from roomcalc.io.report import wrap
 
     lines = [f"Target (RT60 by {METHOD_NAMES.get(check.method, check.method)})"]
     a = check.assessment
@@ -116,7 +116,7 @@ def target_text(check: TargetCheck, width=None) -> str:
         c = a.criterion
         lines.append(f"  {c.title}" + (f" ({c.edition})" if c.edition else ""))
         if not a.applicable:
-            lines.append(_wrap(f"not applicable: {a.reason}", "  ", "    ", width=width))
+            lines.append(wrap(f"not applicable: {a.reason}", "  ", "    ", width=width))
         else:
             if math.isfinite(a.nominal_s):
                 lines.append(f"  nominal target {a.nominal_s:.2f} s")
@@ -134,13 +134,13 @@ def target_text(check: TargetCheck, width=None) -> str:
                              f"{_f(a.mean_margin_s)} s: {a.mean_status}")
             lines.append(f"  overall: {a.status}")
         if c.source:
-            lines.append(_wrap(f"source: {c.source}", "  ", "    ", width=width))
+            lines.append(wrap(f"source: {c.source}", "  ", "    ", width=width))
         if a.provenance:
-            lines.append(_wrap(f"values: {a.provenance}", "  ", "    ", width=width))
+            lines.append(wrap(f"values: {a.provenance}", "  ", "    ", width=width))
         if math.isfinite(a.background_dba):
             lines.append(f"  background noise limit (not checked here): {a.background_dba:g} "
                          "dB(A)")
-        lines.append(_wrap(a.governs, "  ", "  ", width=width))
+        lines.append(wrap(a.governs, "  ", "  ", width=width))
     for lc in check.levels:
         lines.append(f"  {lc.receiver}: {lc.level_dba:.1f} dB(A) against at most "
                      f"{lc.max_dba:.1f} dB(A), margin {lc.margin_db:+.1f} dB: "
@@ -192,7 +192,7 @@ def exposures(spec: RoomSpec, result: RoomResult) -> dict[str, ExposureSummary]:
 def exposure_text(days: dict[str, ExposureSummary], after: dict | None = None,
                   width=None) -> str:
     """The daily-exposure section of the text report (``width`` 0: lines unwrapped)."""
-    from roomcalc.io.report import _wrap
+    from roomcalc.io.report import wrap
 
     if not days:
         return ""
@@ -200,8 +200,8 @@ def exposure_text(days: dict[str, ExposureSummary], after: dict | None = None,
     for name, d in days.items():
         lines.append(f"  {name}: {d.total_hours:g} h; LAeq {d.laeq_dba:.1f} dB(A), "
                      f"LEX,8h {d.lex_8h_dba:.1f} dB(A)")
-        lines.append(_wrap(f"EU 2003/10/EC: {d.eu.label}", "    ", "    ", width=width))
-        lines.append(_wrap(f"OSHA dose {d.osha_dose_percent:.0f} % (TWA {d.osha_twa_dba:.1f} dBA"
+        lines.append(wrap(f"EU 2003/10/EC: {d.eu.label}", "    ", "    ", width=width))
+        lines.append(wrap(f"OSHA dose {d.osha_dose_percent:.0f} % (TWA {d.osha_twa_dba:.1f} dBA"
                            f"{', action level reached' if d.osha_action_level_reached else ''}"
                            f"{', PEL exceeded' if d.osha_pel_exceeded else ''}); NIOSH dose "
                            f"{d.niosh_dose_percent:.0f} %"
@@ -212,7 +212,7 @@ def exposure_text(days: dict[str, ExposureSummary], after: dict | None = None,
             lines.append(f"    after the plan: LEX,8h {after[name].lex_8h_dba:.1f} dB(A) "
                          f"({ch.lex_8h_change_db:+.1f} dB), OSHA dose "
                          f"{after[name].osha_dose_percent:.0f} %")
-    lines.append(_wrap(EXPOSURE_CAUTION, "  ! ", "    ", width=width))
+    lines.append(wrap(EXPOSURE_CAUTION, "  ! ", "    ", width=width))
     return "\n".join(lines) + "\n"
 
 
@@ -306,10 +306,10 @@ def plan_text(run: PlanRun, u: Units = METRIC, goals_window=None) -> str:
     for name, before in p.levels_before.items():
         after = p.levels_after.get(name)
         lines.append(f"  {name}: {before:.1f} -> {after:.1f} dB(A) ({after - before:+.1f} dB)")
-    from roomcalc.io.report import _wrap
+    from roomcalc.io.report import wrap
 
     for r in p.reasons:
-        lines.append(_wrap(r, "  ! ", "    "))
+        lines.append(wrap(r, "  ! ", "    "))
     return "\n".join(lines) + "\n"
 
 

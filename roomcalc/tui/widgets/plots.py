@@ -17,8 +17,8 @@ class RtPlot(Chart):
 
     def show(self, res: RoomResult, stale: bool = False) -> None:
         x = list(range(len(res.bands_hz)))
-        series = [Series(METHOD_TITLES[k] + (" (used)" if k == res.recommended else ""), x,
-                         [float(v) for v in res.rt60_s[k]], heavy=k == res.recommended)
+        series = [Series(METHOD_TITLES[k] + (" (used)" if k == res.method else ""), x,
+                         [float(v) for v in res.rt60_s[k]], heavy=k == res.method)
                   for k in METHODS if k in res.rt60_s]
         top = max(float(np.max(v)) for v in res.rt60_s.values()) * 1.15
         self.show_data(ChartData(

@@ -55,14 +55,14 @@ class BandTable(CellGrid):
 
 
 class ReverbTable(BandTable):
-    """RT by every method (the recommended one marked), room constant, critical distance,
+    """RT by every method (the one in force marked), room constant, critical distance,
     Schroeder frequency."""
 
     def show(self, res: RoomResult, units: Units = METRIC) -> None:
         self._columns(res.bands_hz, "RT60 [s]")
         for k in METHODS:
             if k in res.rt60_s:
-                rec = k == res.recommended
+                rec = k == res.method
                 self._row(("> " if rec else "  ") + METHOD_TITLES[k], res.rt60_s[k],
                           style="bold" if rec else "")
         self._row(f"R [{units.area_label}]", res.room_constant_m2 / units.area, 1)
