@@ -161,3 +161,120 @@ def test_pipeline_rule_catches_a_front_end_that_evaluates(tmp_path):
     f.write_text("from roomcalc.engine.analysis import evaluate\n", encoding="utf-8")
     assert [(m, n) for m, n, _ in _imported_names(f) if (m, n) in PIPELINE] == \
         [("roomcalc.engine.analysis", "evaluate")]
+def test_io_does_not_import_study_or_present():
+    # io sits below the core without UI (roomcalc.study) and the presentation layer
+    # (roomcalc.present): it may import neither, whether or not they exist yet.
+    bad = []
+    for f in _modules("io"):
+        for mod, line in _imports(f):
+            if mod.startswith(("roomcalc.study", "roomcalc.present")):
+                bad.append(f"io/{f.relative_to(PKG / 'io')}:{line} imports {mod}")
+        for node in ast.walk(ast.parse(f.read_text(encoding="utf-8"))):
+            if isinstance(node, ast.ImportFrom) and node.module == "roomcalc" and any(
+                    a.name in ("study", "present") for a in node.names):
+                bad.append(f"io/{f.relative_to(PKG / 'io')}:{node.lineno} imports "
+                           "roomcalc.study or roomcalc.present")
+    assert not bad, bad
+
+
+# ----------------------------------------------------------------------------- private names
+
+def _is_private(name: str) -> bool:
+    return name.startswith("_") and not (name.startswith("__") and name.endswith("__"))
+
+
+def private_imports(source: str) -> list[tuple[int, str]]:
+    """Where a module uses another module's underscored (private) name: ``from x import _y``
+    or ``from _x import y`` (absolute or relative), or ``m._y`` / ``m.sub._y`` where ``m`` was
+    bound by an import statement. Attributes of anything else (``self._x``, a local object)
+    are the module's own business and are not looked at."""
+    tree = ast.parse(source)
+    imported: set[str] = set()
+    bad = []
+    for node in ast.walk(tree):
+        if isinstance(node, ast.ImportFrom):
+            if any(_is_private(part) for part in (node.module or "").split(".")):
+                bad.append((node.lineno, f"from {'.' * node.level}{node.module} import ..."))
+                continue
+            for a in node.names:
+                if _is_private(a.name):
+                    bad.append((node.lineno, f"from {'.' * node.level}{node.module or ''} "
+                                             f"import {a.name}"))
+                else:
+                    imported.add(a.asname or a.name)
+        elif isinstance(node, ast.Import):
+            for a in node.names:
+                if any(_is_private(part) for part in a.name.split(".")):
+                    bad.append((node.lineno, f"import {a.name}"))
+                imported.add(a.asname or a.name.split(".")[0])
+    for node in ast.walk(tree):
+        if isinstance(node, ast.Attribute) and _is_private(node.attr):
+            base = node.value
+            while isinstance(base, ast.Attribute):
+                base = base.value
+            if isinstance(base, ast.Name) and base.id in imported:
+                bad.append((node.lineno, f"{ast.unparse(node)}"))
+    return sorted(bad)
+
+
+# Modules allowed to break the rule for now, each with its reason. Remove an entry as soon as
+# the module is fixed; add none without a reason.
+PRIVATE_IMPORT_ALLOWED = {
+    # The planner imports reverb's _positive/_non_negative (kept there only for it); another
+    # branch rewrites it into a package that calls roomcalc.engine.checks. The lead removes
+    # this entry after merging that branch.
+    "engine/planner.py",
+}
+
+
+def test_no_module_uses_another_modules_private_names():
+    bad = []
+    for f in sorted(PKG.rglob("*.py")):
+        rel = f.relative_to(PKG).as_posix()
+        if rel in PRIVATE_IMPORT_ALLOWED:
+            continue
+        bad += [f"{rel}:{line} {what}" for line, what in
+                private_imports(f.read_text(encoding="utf-8"))]
+    assert not bad, bad
+
+
+def test_private_import_scanner_catches_each_form():
+    # A synthetic module with one violation of each form, and uses that are allowed.
+    src = (
+        "import roomcalc.engine.reverb\n"
+        "import roomcalc.engine.air as air_mod\n"
+        "from roomcalc.engine import field\n"
+        "from roomcalc.engine.reverb import _sabine\n"            # 4: private name imported
+        "from ._secret import thing\n"                            # 5: private module
+        "from . import _helpers\n"                                # 6: private name, relative
+        "def f(self, local):\n"
+        "    air_mod._iso9613_1(1, 2, 3, 4)\n"                    # 8: attribute of a module
+        "    field._check('x', 1)\n"                              # 9: attribute of a module
+        "    roomcalc.engine.reverb._eyring(1)\n"                 # 10: through the package
+        "    self._own = local._fine\n"                           # allowed: not imports
+        "    return field.__name__, field.room_constant\n"        # allowed: dunder, public
+    )
+    found = private_imports(src)
+    assert [line for line, _ in found] == [4, 5, 6, 8, 9, 10], found
+    assert private_imports("from roomcalc.engine import reverb\nreverb.sabine(1, 2)\n") == []
+
+
+def test_every_engine_module_declares_its_public_names():
+    # engine/planner.py excepted: another branch rewrites it.
+    import importlib
+
+    bad = []
+    for f in _modules("engine"):
+        rel = f.relative_to(PKG).as_posix()
+        if rel == "engine/planner.py":
+            continue
+        name = "roomcalc." + rel.removesuffix(".py").removesuffix("/__init__").replace("/", ".")
+        mod = importlib.import_module(name)
+        names = getattr(mod, "__all__", None)
+        if names is None:
+            bad.append(f"{rel}: no __all__")
+            continue
+        bad += [f"{rel}: __all__ names {n!r}, which it does not define" for n in names
+                if not hasattr(mod, n)]
+        bad += [f"{rel}: __all__ names the private {n!r}" for n in names if _is_private(n)]
+    assert not bad, bad

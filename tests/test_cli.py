@@ -60,6 +60,8 @@ def test_method_and_reverberant_options(capsys):
                        "barron-lee", "--format", "json")
     d = json.loads(out)
     assert d["method"] == "eyring" and d["reverberant_model"] == "barron-lee"
+    # The demo's own recommendation is kept beside the formula in force.
+    assert d["recommended"] in ("sabine", "eyring", "millington", "fitzroy", "arau_puchades")
 
 
 def test_imperial_file_gives_the_same_si_numbers(tmp_path, capsys):

@@ -325,7 +325,7 @@ def test_user_window_min_only():
 @pytest.mark.parametrize("kwargs, words", [
     ({}, "give at least one"),
     ({"rt60_max": [0.5, 0.5]}, "2 values for 3 bands"),
-    ({"rt60_max": [0.5, -0.5, 0.5]}, "above 0 s"),
+    ({"rt60_max": [0.5, -0.5, 0.5]}, r"above 0 \[s\]"),
     ({"rt60_min": [0.6, 0.2, 0.2], "rt60_max": [0.5, 0.5, 0.5]}, "0.6 s at 125 Hz is above"),
     ({"rt60_max": [float("nan")] * 3}, "every band is NaN"),
 ])

@@ -6,6 +6,22 @@ import warnings
 
 import numpy as np
 
+from roomcalc.engine.checks import in_range, non_negative, positive
+
+__all__ = ["REFERENCE_PRESSURE_KPA", "REFERENCE_TEMPERATURE_K", "TRIPLE_POINT_K",
+           "DB_PER_NEPER_ENERGY", "ABSOLUTE_ZERO_C", "ACCURACY_TEMPERATURE_K",
+           "ACCURACY_MOLAR_H_PERCENT",
+           "AirRangeWarning", "speed_of_sound", "speed_of_sound_unchecked", "check_conditions",
+           "attenuation_db_per_m", "attenuation_unchecked", "outside_accuracy_range",
+           "energy_coefficient", "energy_coefficient_unchecked"]
+
+#: Lowest air temperature the formulas take [degC] (absolute zero, excluded).
+ABSOLUTE_ZERO_C = -273.15
+#: Range of temperature [K] and of molar concentration of water vapour [%] where ISO 9613-1:1993
+#: states the accuracy of its formula (clause 7).
+ACCURACY_TEMPERATURE_K = (253.0, 323.0)
+ACCURACY_MOLAR_H_PERCENT = (0.05, 5.0)
+
 #: Reference ambient pressure p_r [kPa], ISO 9613-1:1993, 6.1.
 REFERENCE_PRESSURE_KPA = 101.325
 #: Reference air temperature T_0 [K], ISO 9613-1:1993, 6.2.
@@ -45,10 +61,35 @@ def speed_of_sound(temperature_c) -> np.ndarray:
     >>> round(float(speed_of_sound(20.0)), 1)
     343.2
     """
-    t = np.asarray(temperature_c, dtype=float)
-    if not np.all(np.isfinite(t)) or np.any(t <= -273.15):
-        raise ValueError(f"temperature_c: {t} must be finite and above -273.15 degC")
-    return 331.3 * np.sqrt(1.0 + t / 273.15)
+    t = in_range("temperature_c", temperature_c, ABSOLUTE_ZERO_C, low_inclusive=False,
+                 unit="degC")
+    return speed_of_sound_unchecked(t)
+
+
+def speed_of_sound_unchecked(temperature_c):
+    """:func:`speed_of_sound` without input checks, for callers that checked the temperature.
+
+    Notes
+    -----
+    .. math:: c = 331.3 \\sqrt{1 + t / 273.15}
+    """
+    return 331.3 * np.sqrt(1.0 + temperature_c / 273.15)
+
+
+def check_conditions(temperature_c, relative_humidity, pressure_kpa):
+    """Check air conditions; return them as float arrays, or raise ``ValueError`` naming the
+    argument and its range.
+
+    Notes
+    -----
+    Temperature above -273.15 degC, relative humidity from 0 to 100 %, pressure above 0 kPa:
+    where the ISO 9613-1 formula has a value at all (its stated accuracy is narrower, see
+    :func:`outside_accuracy_range`).
+    """
+    return (in_range("temperature_c", temperature_c, ABSOLUTE_ZERO_C, low_inclusive=False,
+                     unit="degC"),
+            in_range("relative_humidity", relative_humidity, 0.0, 100.0, unit="%"),
+            positive("pressure_kpa", pressure_kpa, "kPa"))
 
 
 def attenuation_db_per_m(frequency_hz, temperature_c=20.0, relative_humidity=50.0,
@@ -98,33 +139,30 @@ def attenuation_db_per_m(frequency_hz, temperature_c=20.0, relative_humidity=50.
     >>> round(float(attenuation_db_per_m(1000.0, 20.0, 50.0)) * 1000, 2)
     4.66
     """
-    f = np.asarray(frequency_hz, dtype=float)
-    t_c = np.asarray(temperature_c, dtype=float)
-    hr = np.asarray(relative_humidity, dtype=float)
-    pa = np.asarray(pressure_kpa, dtype=float)
-    for name, val in (("frequency_hz", f), ("temperature_c", t_c),
-                      ("relative_humidity", hr), ("pressure_kpa", pa)):
-        if not np.all(np.isfinite(val)):
-            raise ValueError(f"{name}: must be finite")
-    if np.any(f <= 0):
-        raise ValueError("frequency_hz: must be above 0 Hz")
-    if np.any(hr < 0) or np.any(hr > 100):
-        raise ValueError("relative_humidity: must be 0 to 100 %")
-    if np.any(pa <= 0):
-        raise ValueError("pressure_kpa: must be above 0 kPa")
-    if np.any(t_c <= -273.15):
-        raise ValueError("temperature_c: must be above -273.15 degC")
-    alpha, h = _iso9613_1(f, t_c + 273.15, hr, pa)
-    t_k = t_c + 273.15
-    if np.any(t_k < 253.0) or np.any(t_k > 323.0) or np.any(h < 0.05) or np.any(h > 5.0):
+    f = positive("frequency_hz", frequency_hz, "Hz")
+    t_c, hr, pa = check_conditions(temperature_c, relative_humidity, pressure_kpa)
+    alpha, h = attenuation_unchecked(f, t_c, hr, pa)
+    if outside_accuracy_range(t_c, h):
         warnings.warn("air: conditions outside ISO 9613-1 accuracy range (253-323 K, "
                       "0.05-5 % molar water vapour); absorption is approximate",
                       AirRangeWarning, stacklevel=2)
     return alpha
 
 
-def _iso9613_1(f, t_k, hr, pa):
-    """ISO 9613-1 eqs. (3)-(5); returns (alpha [dB/m], molar water vapour h [%])."""
+def attenuation_unchecked(frequency_hz, temperature_c, relative_humidity, pressure_kpa):
+    """:func:`attenuation_db_per_m` without input checks or warning, for callers that checked
+    the conditions (with :func:`check_conditions`) and report the range themselves.
+
+    Returns
+    -------
+    (alpha, h) -- attenuation [dB/m] and the molar concentration of water vapour h [%]
+
+    Notes
+    -----
+    ISO 9613-1:1993 eqs. (3)-(5) and Annex B, as written under :func:`attenuation_db_per_m`.
+    """
+    f, hr, pa = frequency_hz, relative_humidity, pressure_kpa
+    t_k = temperature_c - ABSOLUTE_ZERO_C
     pr = REFERENCE_PRESSURE_KPA
     c_exp = -6.8346 * (TRIPLE_POINT_K / t_k) ** 1.261 + 4.6151
     h = hr * (10.0 ** c_exp) / (pa / pr)
@@ -136,6 +174,27 @@ def _iso9613_1(f, t_k, hr, pa):
         + tr ** -2.5 * (0.01275 * np.exp(-2239.1 / t_k) / (fro + f ** 2 / fro)
                         + 0.1068 * np.exp(-3352.0 / t_k) / (frn + f ** 2 / frn)))
     return alpha, h
+
+
+def outside_accuracy_range(temperature_c, h) -> bool:
+    """Whether any condition lies outside the range where ISO 9613-1 states its accuracy.
+
+    Parameters
+    ----------
+    temperature_c : array_like -- air temperature [degC]
+    h : array_like -- molar concentration of water vapour [%] (from :func:`attenuation_unchecked`)
+
+    Notes
+    -----
+    Inside means 253 K <= T <= 323 K and 0.05 % <= h <= 5 %.
+
+    References
+    ----------
+    .. [1] ISO 9613-1:1993, clause 7 (accuracy).
+    """
+    t_k, h = np.asarray(temperature_c) - ABSOLUTE_ZERO_C, np.asarray(h)
+    (t_lo, t_hi), (h_lo, h_hi) = ACCURACY_TEMPERATURE_K, ACCURACY_MOLAR_H_PERCENT
+    return bool(((t_k < t_lo) | (t_k > t_hi)).any() or ((h < h_lo) | (h > h_hi)).any())
 
 
 def energy_coefficient(attenuation_db_m) -> np.ndarray:
@@ -162,7 +221,15 @@ def energy_coefficient(attenuation_db_m) -> np.ndarray:
     >>> round(float(energy_coefficient(0.00466)) * 1e3, 4)
     1.073
     """
-    a = np.asarray(attenuation_db_m, dtype=float)
-    if np.any(a < 0) or not np.all(np.isfinite(a)):
-        raise ValueError("attenuation_db_m: must be finite and >= 0 dB/m")
-    return a / DB_PER_NEPER_ENERGY
+    return energy_coefficient_unchecked(non_negative("attenuation_db_m", attenuation_db_m,
+                                                     "dB/m"))
+
+
+def energy_coefficient_unchecked(attenuation_db_m):
+    """:func:`energy_coefficient` without input checks.
+
+    Notes
+    -----
+    .. math:: m = \\alpha / (10 \\lg e)
+    """
+    return attenuation_db_m / DB_PER_NEPER_ENERGY

@@ -9,6 +9,11 @@ from functools import lru_cache
 
 import numpy as np
 
+__all__ = ["NOMINAL_OCTAVES_HZ", "DEFAULT_BANDS_HZ", "ALLOWED_BANDS_HZ", "OCTAVE_RATIO",
+           "exact_centre", "band_edges", "a_weighting", "db_from_ratio", "ratio_from_db",
+           "energetic_sum", "a_weighted_total", "a_weighted_total_from_energy",
+           "band_constants"]
+
 #: Nominal octave-band centre frequencies [Hz], IEC 61260-1:2014, Table E.1 (nominal values).
 NOMINAL_OCTAVES_HZ = (31.5, 63, 125, 250, 500, 1000, 2000, 4000, 8000, 16000)
 
@@ -151,6 +156,39 @@ def a_weighted_total(band_levels_db, nominal_hz, axis=-1) -> np.ndarray:
     """
     levels = np.moveaxis(np.asarray(band_levels_db, dtype=float), axis, -1)
     return energetic_sum(levels + a_weighting(nominal_hz), axis=-1)
+
+
+def a_weighted_total_from_energy(band_energy, nominal_hz) -> np.ndarray:
+    """A-weighted total of octave-band energies (ratios 10^(L/10)), on the last axis [dB(A)].
+
+    Notes
+    -----
+    .. math:: L_A = 10 \\lg \\sum_k E_k \\, 10^{A_k/10}
+
+    the sum of :func:`a_weighted_total` written on the energies, one weighted sum instead of a
+    power per band.
+
+    References
+    ----------
+    .. [1] IEC 61672-1:2013, Table 3 (weightings).
+
+    Examples
+    --------
+    80 dB at 125 Hz and at 1 kHz: 80 + 10 lg(1 + 10^(-16.1/10)) = 80.1053 dB(A) (hand value):
+
+    >>> e = ratio_from_db([80.0, 80.0])
+    >>> round(float(a_weighted_total_from_energy(e, (125, 1000))), 4)
+    80.1053
+    """
+    return db_from_ratio(np.asarray(band_energy, dtype=float)
+                         @ _a_weight_energy(tuple(float(b) for b in nominal_hz)))
+
+
+@lru_cache(maxsize=32)
+def _a_weight_energy(nominal_hz: tuple) -> np.ndarray:
+    w = ratio_from_db(a_weighting(nominal_hz))
+    w.setflags(write=False)
+    return w
 
 
 @lru_cache(maxsize=32)

@@ -8,10 +8,12 @@ functions; the unchecked kernels they guard do the arithmetic.
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
 __all__ = ["as_floats", "finite", "in_range", "positive", "non_negative", "per_band",
-           "range_text", "band_values"]
+           "positive_or_nan", "range_text", "band_values"]
 
 
 def _unit(unit: str) -> str:
@@ -57,24 +59,33 @@ def range_text(low=None, high=None, *, low_inclusive=True, high_inclusive=True,
 def finite(name: str, x, unit: str = "") -> np.ndarray:
     """Every value finite (no NaN, no infinity)."""
     a = as_floats(name, x)
-    if not np.all(np.isfinite(a)):
+    if not np.isfinite(a).all():
         raise ValueError(f"{name}: every value must be a finite number{_unit(unit)}")
     return a
 
 
 def in_range(name: str, x, low=None, high=None, *, low_inclusive=True, high_inclusive=True,
-             unit: str = "") -> np.ndarray:
-    """Every value finite and within [low, high] (each end open or closed, or absent)."""
+             unit: str = "", why: str = "") -> np.ndarray:
+    """Every value finite and within [low, high] (each end open or closed, or absent).
+
+    ``why``, when given, is added to the message in brackets (e.g. why a formula needs the
+    range)."""
+    if type(x) is float or type(x) is int:     # one number, as a room's scalars: no arrays
+        f = float(x)
+        if (math.isfinite(f) and (low is None or (f >= low if low_inclusive else f > low))
+                and (high is None or (f <= high if high_inclusive else f < high))):
+            return np.float64(f)
     a = as_floats(name, x)
     ok = np.isfinite(a)
     if low is not None:
         ok &= (a >= low) if low_inclusive else (a > low)
     if high is not None:
         ok &= (a <= high) if high_inclusive else (a < high)
-    if not np.all(ok):
+    if not ok.all():
         rng = range_text(low, high, low_inclusive=low_inclusive, high_inclusive=high_inclusive,
                          unit=unit)
-        raise ValueError(f"{name}: must be finite and {rng}{_got(a[~ok])}")
+        note = f" ({why})" if why else ""
+        raise ValueError(f"{name}: must be finite and {rng}{note}{_got(a[~ok])}")
     return a
 
 
@@ -122,4 +133,15 @@ def band_values(name: str, x, bands_hz, low=None, high=None, *, low_inclusive=Tr
             rng = "finite" + _unit(unit)
         raise ValueError(f"{name}[{i}]: {a[i]:g} at {bands_hz[i]:g} Hz must be {rng}"
                          + (" (NaN for no limit)" if nan_ok else ""))
+    return a
+
+
+def positive_or_nan(name: str, x, unit: str = "") -> np.ndarray:
+    """Every value above 0 and finite, or NaN (no value: e.g. no limit on that side)."""
+    a = as_floats(name, x)
+    given = ~np.isnan(a)
+    ok = ~given | (np.isfinite(a) & (a > 0))
+    if not np.all(ok):
+        raise ValueError(f"{name}: must be above 0{_unit(unit)}, or NaN for none"
+                         f"{_got(a[~ok])}")
     return a

@@ -45,6 +45,12 @@ from dataclasses import dataclass
 import numpy as np
 
 from roomcalc.engine.bands import NOMINAL_OCTAVES_HZ
+from roomcalc.engine.checks import finite, positive, positive_or_nan
+
+__all__ = ["KINDS", "ASSESS_MODES", "TOLERANCE_KINDS", "CONFIDENCE", "BAND_STATUSES",
+           "STATUSES", "MARGIN_EPS_S", "USER_WINDOW_GOVERNS", "VolumeStep", "Tolerance",
+           "NoiseStep", "Criterion", "Assessment", "log_volume_target", "cube_root_target",
+           "applicability", "target_window", "assess", "user_window"]
 
 KINDS = ("fixed", "by-volume-steps", "formula-log-volume", "formula-cube-root")
 ASSESS_MODES = ("each-band", "mean-of-bands")
@@ -181,8 +187,11 @@ def _check_criterion(c: Criterion) -> None:
             bad(f"rt60_min and rt60_max need one value per band ({n})")
         if np.any(np.isnan(lo) & np.isnan(hi)):
             bad("every assessed band needs rt60_min or rt60_max")
-        _positive_or_nan(bad, "rt60_min", lo)
-        _positive_or_nan(bad, "rt60_max", hi)
+        for name, x in (("rt60_min", lo), ("rt60_max", hi)):
+            try:
+                positive_or_nan(name, x, "s")
+            except ValueError as exc:
+                bad(str(exc))
         if np.any(lo > hi):
             bad("rt60_min is above rt60_max")
         if c.assess == "mean-of-bands" and (np.unique(lo).size > 1 or np.unique(hi).size > 1):
@@ -227,11 +236,6 @@ def _check_criterion(c: Criterion) -> None:
             bad("a mean-of-bands criterion has one tolerance for all bands")
     elif c.tolerance is not None:
         bad(f"kind '{c.kind}' takes its limits directly, not a tolerance")
-
-
-def _positive_or_nan(bad, name, x):
-    if np.any(~np.isnan(x) & ~(np.isfinite(x) & (x > 0))):
-        bad(f"{name} must be above 0 s (NaN for no limit)")
 
 
 @dataclass(frozen=True, eq=False)
@@ -308,9 +312,9 @@ def log_volume_target(volume, slope, intercept) -> np.ndarray:
     >>> round(float(log_volume_target(200.0, 0.32, -0.17)), 3)
     0.566
     """
-    v = _positive("volume", volume)
-    a = _finite("slope", slope)
-    b = _finite("intercept", intercept)
+    v = positive("volume", volume, "m^3")
+    a = finite("slope", slope, "s")
+    b = finite("intercept", intercept, "s")
     return _log_target(v, a, b)
 
 
@@ -350,9 +354,9 @@ def cube_root_target(volume, coefficient=0.25, reference_volume=100.0) -> np.nda
     >>> round(float(cube_root_target(200.0)), 3)
     0.315
     """
-    v = _positive("volume", volume)
-    t0 = _positive("coefficient", coefficient)
-    v0 = _positive("reference_volume", reference_volume)
+    v = positive("volume", volume, "m^3")
+    t0 = positive("coefficient", coefficient, "s")
+    v0 = positive("reference_volume", reference_volume, "m^3")
     return t0 * np.cbrt(v / v0)
 
 
@@ -378,7 +382,7 @@ def applicability(criterion: Criterion, volume: float) -> tuple[bool, str]:
     ----------
     .. [1] The volume ranges are those of each criterion's source, named in the criterion.
     """
-    v = float(_positive("volume", volume))
+    v = float(positive("volume", volume, "m^3"))
     c = criterion
     note = f" {c.not_applicable_note}" if c.not_applicable_note else ""
     if v < c.volume_min:
@@ -493,9 +497,9 @@ def assess(criterion: Criterion, volume, bands_hz, rt60) -> Assessment:
     [0.05, 0.0, -0.05]
     """
     c = criterion
-    v = float(_positive("volume", volume))
+    v = float(positive("volume", volume, "m^3"))
     bands = np.asarray(bands_hz, dtype=float)
-    est = _positive("rt60", rt60)
+    est = positive("rt60", rt60, "s")
     if bands.ndim != 1 or est.shape != bands.shape:
         raise ValueError(f"rt60: shape {est.shape} does not match bands_hz {bands.shape} "
                          "(one value per band)")
@@ -611,25 +615,10 @@ def user_window(bands_hz, rt60_min=None, rt60_max=None, *, id="user-window",
 
 
 def _limit(name, x, bands):
+    """A user's limit per band, NaN where there is none."""
     if x is None:
         return np.full(bands.shape, np.nan)
-    a = np.asarray(x, dtype=float)
+    a = positive_or_nan(name, x, "s")
     if a.shape != bands.shape:
         raise ValueError(f"{name}: {a.size} values for {bands.size} bands (one per band)")
-    if np.any(np.isinf(a)) or np.any(a[~np.isnan(a)] <= 0):
-        raise ValueError(f"{name}: must be above 0 s in every band (NaN for no limit)")
     return a
-
-
-def _positive(name, x):
-    x = np.asarray(x, dtype=float)
-    if not np.all(np.isfinite(x)) or np.any(x <= 0):
-        raise ValueError(f"{name}: must be finite and above 0")
-    return x
-
-
-def _finite(name, x):
-    x = np.asarray(x, dtype=float)
-    if not np.all(np.isfinite(x)):
-        raise ValueError(f"{name}: must be finite")
-    return x

@@ -14,6 +14,16 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from roomcalc.engine.checks import as_floats, finite, non_negative
+
+__all__ = ["REFERENCE_HOURS", "MAX_DAY_HOURS", "EU_LOWER_ACTION_DBA", "EU_UPPER_ACTION_DBA",
+           "EU_LIMIT_DBA", "OSHA_PEL_DBA", "OSHA_ACTION_LEVEL_DBA", "OSHA_EXCHANGE_DB",
+           "OSHA_THRESHOLD_DBA", "NIOSH_REL_DBA", "NIOSH_EXCHANGE_DB", "EU_BAND_LABELS",
+           "EXPOSURE_CAUTION", "laeq_over_period", "lex_8h", "EUAction", "eu_action",
+           "osha_allowed_hours", "osha_dose", "osha_twa", "niosh_allowed_hours", "niosh_dose",
+           "niosh_twa", "ExposureSummary", "exposure_summary", "day_periods", "ExposureChange",
+           "compare_exposure"]
+
 #: Reference duration of the daily exposure level and of the doses [h].
 REFERENCE_HOURS = 8.0
 
@@ -61,31 +71,16 @@ EXPOSURE_CAUTION = (
 
 # ----------------------------------------------------------------------------- input checks
 
-def _floats(name, x):
-    try:
-        return np.asarray(x, dtype=float)
-    except (TypeError, ValueError):
-        raise ValueError(f"{name}: must be numbers, got {x!r}") from None
-
-
-def _finite(name, x, unit):
-    x = _floats(name, x)
-    if not np.all(np.isfinite(x)):
-        raise ValueError(f"{name}: every value must be a finite number [{unit}]")
-    return x
-
-
 def _periods(levels_dba, hours):
     """Check a day of exposure periods; return (levels, hours), at least 1-D, same shape."""
-    lv = np.atleast_1d(_finite("levels_dba", levels_dba, "dB(A)"))
-    h = np.atleast_1d(_floats("hours", hours))
+    lv = np.atleast_1d(finite("levels_dba", levels_dba, "dB(A)"))
+    h = np.atleast_1d(as_floats("hours", hours))
     if lv.shape != h.shape:
         raise ValueError(f"hours: shape {h.shape} does not match levels_dba {lv.shape}; "
                          "give one duration per level")
     if lv.shape[-1] == 0:
         raise ValueError("levels_dba: at least one exposure period is needed")
-    if not np.all(np.isfinite(h) & (h >= 0.0)):
-        raise ValueError("hours: every duration must be finite and >= 0 [h]")
+    non_negative("hours", h, "h")
     total = h.sum(axis=-1)
     if np.any(total > MAX_DAY_HOURS * (1.0 + 1e-12)):
         raise ValueError(f"hours: the periods of one day must total <= {MAX_DAY_HOURS:g} h, "
@@ -245,7 +240,7 @@ def eu_action(lex):
     >>> r.band, round(r.margin_upper_db, 1), round(r.margin_limit_db, 1)
     ('upper', -1.0, 1.0)
     """
-    x = _finite("lex", lex, "dB(A)")
+    x = finite("lex", lex, "dB(A)")
     band = np.select([x >= EU_LIMIT_DBA, x >= EU_UPPER_ACTION_DBA, x >= EU_LOWER_ACTION_DBA],
                      ["limit", "upper", "lower"], default="below")
     margins = (EU_LOWER_ACTION_DBA - x, EU_UPPER_ACTION_DBA - x, EU_LIMIT_DBA - x)
@@ -257,12 +252,12 @@ def eu_action(lex):
 # ----------------------------------------------------------------------------- OSHA, NIOSH
 
 def _allowed_hours(name, level_dba, criterion, exchange, threshold_dba):
-    lv = _finite(name, level_dba, "dBA")
+    lv = finite(name, level_dba, "dBA")
     with np.errstate(over="ignore", divide="ignore"):
         t = REFERENCE_HOURS / 2.0 ** ((lv - criterion) / exchange)
     if threshold_dba is None:
         return t
-    thr = _finite("threshold_dba", threshold_dba, "dBA")
+    thr = finite("threshold_dba", threshold_dba, "dBA")
     return np.where(lv >= thr, t, np.inf)
 
 
@@ -360,9 +355,7 @@ def osha_twa(dose_percent):
     >>> [round(float(x), 1) for x in osha_twa([50.0, 100.0, 200.0])]
     [85.0, 90.0, 95.0]
     """
-    d = _finite("dose_percent", dose_percent, "%")
-    if np.any(d < 0.0):
-        raise ValueError("dose_percent: must be >= 0 [%]")
+    d = non_negative("dose_percent", dose_percent, "%")
     with np.errstate(divide="ignore"):
         return _OSHA_TWA_SLOPE * np.log10(d / 100.0) + OSHA_PEL_DBA
 
@@ -464,9 +457,7 @@ def niosh_twa(dose_percent):
     >>> [round(float(x), 2) for x in niosh_twa([100.0, 200.0])]
     [85.0, 88.01]
     """
-    d = _finite("dose_percent", dose_percent, "%")
-    if np.any(d < 0.0):
-        raise ValueError("dose_percent: must be >= 0 [%]")
+    d = non_negative("dose_percent", dose_percent, "%")
     with np.errstate(divide="ignore"):
         return 10.0 * np.log10(d / 100.0) + NIOSH_REL_DBA
 

@@ -9,20 +9,20 @@ from __future__ import annotations
 import numpy as np
 
 from roomcalc.engine.bands import db_from_ratio
+from roomcalc.engine.checks import in_range, non_negative, positive
+
+__all__ = ["PLACEMENT_Q", "mean_alpha_with_air", "mean_alpha_with_air_unchecked",
+           "room_constant", "room_constant_unchecked", "critical_distance",
+           "critical_distance_unchecked", "direct_term", "direct_term_unchecked",
+           "reverberant_term", "reverberant_term_unchecked", "levels",
+           "barron_lee_reverberant_term", "barron_lee_reverberant_term_unchecked",
+           "distance_curve"]
 
 #: Directivity factor Q of a source by where it stands (common practice).
 PLACEMENT_Q = {"free": 1.0, "surface": 2.0, "edge": 4.0, "corner": 8.0}
 
-
-def _check(name, x, *, low=0.0, inclusive=False, high=None):
-    x = np.asarray(x, dtype=float)
-    ok = np.isfinite(x) & ((x >= low) if inclusive else (x > low))
-    if high is not None:
-        ok &= x < high
-    if not np.all(ok):
-        rng = f"{'>=' if inclusive else '>'} {low:g}" + (f" and < {high:g}" if high is not None else "")
-        raise ValueError(f"{name}: must be finite and {rng}")
-    return x
+# Unchecked entry points (``*_unchecked``) run the formula of the public function of the same
+# name without its input checks, for callers that check whole arrays once (evaluate).
 
 
 def mean_alpha_with_air(surface_area, absorption_area, volume, m=0.0) -> np.ndarray:
@@ -32,11 +32,21 @@ def mean_alpha_with_air(surface_area, absorption_area, volume, m=0.0) -> np.ndar
     ----------
     .. [1] L. L. Beranek, Acoustics (1954), ch. 10.
     """
-    s = _check("surface_area", surface_area)
-    a = _check("absorption_area", absorption_area, inclusive=True)
-    v = _check("volume", volume)
-    m = _check("m", m, inclusive=True)
-    return (a + 4.0 * m * v) / s
+    s = positive("surface_area", surface_area, "m^2")
+    a = non_negative("absorption_area", absorption_area, "m^2")
+    v = positive("volume", volume, "m^3")
+    m = non_negative("m", m, "1/m")
+    return mean_alpha_with_air_unchecked(s, a, v, m)
+
+
+def mean_alpha_with_air_unchecked(surface_area, absorption_area, volume, m):
+    """:func:`mean_alpha_with_air` without input checks.
+
+    Notes
+    -----
+    .. math:: \\bar\\alpha_t = (A + 4 m V) / S
+    """
+    return (absorption_area + 4.0 * m * volume) / surface_area
 
 
 def room_constant(surface_area, mean_alpha) -> np.ndarray:
@@ -65,9 +75,19 @@ def room_constant(surface_area, mean_alpha) -> np.ndarray:
     >>> round(float(room_constant(100.0, 0.2)), 6)
     25.0
     """
-    s = _check("surface_area", surface_area)
-    a = _check("mean_alpha", mean_alpha, high=1.0)
-    return s * a / (1.0 - a)
+    s = positive("surface_area", surface_area, "m^2")
+    a = in_range("mean_alpha", mean_alpha, 0.0, 1.0, low_inclusive=False, high_inclusive=False)
+    return room_constant_unchecked(s, a)
+
+
+def room_constant_unchecked(surface_area, mean_alpha):
+    """:func:`room_constant` without input checks.
+
+    Notes
+    -----
+    .. math:: R = S \\bar\\alpha_t / (1 - \\bar\\alpha_t)
+    """
+    return surface_area * mean_alpha / (1.0 - mean_alpha)
 
 
 def critical_distance(directivity, room_constant_m2) -> np.ndarray:
@@ -98,22 +118,50 @@ def critical_distance(directivity, room_constant_m2) -> np.ndarray:
     >>> round(float(critical_distance(2.0, 50.0)), 4)
     1.4105
     """
-    q = _check("directivity", directivity)
-    r = _check("room_constant_m2", room_constant_m2)
-    return np.sqrt(q * r / (16.0 * np.pi))
+    q = positive("directivity", directivity)
+    r = positive("room_constant_m2", room_constant_m2, "m^2")
+    return critical_distance_unchecked(q, r)
+
+
+def critical_distance_unchecked(directivity, room_constant_m2):
+    """:func:`critical_distance` without input checks.
+
+    Notes
+    -----
+    .. math:: r_c = \\sqrt{Q R / (16 \\pi)}
+    """
+    return np.sqrt(directivity * room_constant_m2 / (16.0 * np.pi))
 
 
 def direct_term(directivity, distance_m) -> np.ndarray:
     """Direct-field energy term Q / (4 pi r^2) [1/m^2] (inverse-square law)."""
-    q = _check("directivity", directivity)
-    r = _check("distance_m", distance_m)
-    return q / (4.0 * np.pi * r ** 2)
+    return direct_term_unchecked(positive("directivity", directivity),
+                                 positive("distance_m", distance_m, "m"))
+
+
+def direct_term_unchecked(directivity, distance_m):
+    """:func:`direct_term` without input checks.
+
+    Notes
+    -----
+    .. math:: Q / (4 \\pi r^2)
+    """
+    return directivity / (4.0 * np.pi * distance_m ** 2)
 
 
 def reverberant_term(room_constant_m2) -> np.ndarray:
     """Diffuse reverberant-field energy term 4 / R [1/m^2]."""
-    r = _check("room_constant_m2", room_constant_m2)
-    return 4.0 / r
+    return reverberant_term_unchecked(positive("room_constant_m2", room_constant_m2, "m^2"))
+
+
+def reverberant_term_unchecked(room_constant_m2):
+    """:func:`reverberant_term` without input checks.
+
+    Notes
+    -----
+    .. math:: 4 / R
+    """
+    return 4.0 / room_constant_m2
 
 
 def levels(sound_power_db, directivity, distance_m, room_constant_m2):
@@ -187,10 +235,21 @@ def barron_lee_reverberant_term(rt60, volume, distance_m) -> np.ndarray:
     >>> round(float(barron_lee_reverberant_term(1.0, 1000.0, 0.0)), 6)
     0.024828
     """
-    t = _check("rt60", rt60)
-    v = _check("volume", volume)
-    r = _check("distance_m", distance_m, inclusive=True)
-    return 31200.0 * t * np.exp(-0.04 * r / t) / (400.0 * np.pi * v)
+    t = positive("rt60", rt60, "s")
+    v = positive("volume", volume, "m^3")
+    r = non_negative("distance_m", distance_m, "m")
+    return barron_lee_reverberant_term_unchecked(t, v, r)
+
+
+def barron_lee_reverberant_term_unchecked(rt60, volume, distance_m):
+    """:func:`barron_lee_reverberant_term` without input checks.
+
+    Notes
+    -----
+    .. math:: 31200\\, T\\, e^{-0.04 r/T} / (400 \\pi V)
+    """
+    return (31200.0 * rt60 * np.exp(-0.04 * distance_m / rt60)
+            / (400.0 * np.pi * volume))
 
 
 def distance_curve(sound_power_db, directivity, distances_m, room_constant_m2=None, *,
@@ -220,7 +279,7 @@ def distance_curve(sound_power_db, directivity, distances_m, room_constant_m2=No
     .. [1] L. L. Beranek, Acoustics (1954), ch. 10; M. Barron & L.-J. Lee, J. Acoust. Soc. Am. 84
        (1988) 618.
     """
-    r = _check("distances_m", distances_m)[:, None]
+    r = positive("distances_m", distances_m, "m")[:, None]
     lw = np.asarray(sound_power_db, dtype=float)[None, :]
     d = direct_term(directivity, r)
     if model == "classic":

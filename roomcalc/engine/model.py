@@ -10,6 +10,9 @@ from dataclasses import dataclass, field, replace
 
 import numpy as np
 
+__all__ = ["FACE_AXIS", "FACES", "Air", "Surface", "RoomObject", "Source", "Receiver", "Room",
+           "at_occupancy"]
+
 #: Box faces and the axis each is normal to: x = length, y = width, z = height.
 FACE_AXIS = {"front": 0, "back": 0, "left": 1, "right": 1, "floor": 2, "ceiling": 2}
 FACES = tuple(FACE_AXIS)

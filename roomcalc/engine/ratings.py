@@ -6,6 +6,11 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from roomcalc.engine.checks import per_band
+
+__all__ = ["ISO11654_REFERENCE", "ISO11654_BANDS_HZ", "nrc", "saa_octave_estimate",
+           "WeightedAlpha", "practical_alpha", "absorption_class", "weighted_alpha"]
+
 #: ISO 11654:1997 reference curve at 250, 500, 1000, 2000, 4000 Hz (from memory, consistent with
 #: the standard's Annex A worked examples).
 ISO11654_REFERENCE = (0.80, 1.00, 1.00, 1.00, 0.90)
@@ -14,12 +19,10 @@ ISO11654_BANDS_HZ = (250, 500, 1000, 2000, 4000)
 
 def _pick(bands_hz, alpha, wanted):
     bands = [int(round(float(b))) for b in bands_hz]
-    a = np.asarray(alpha, dtype=float)
     missing = [w for w in wanted if w not in bands]
     if missing:
         raise ValueError(f"bands_hz: the rating needs {missing} Hz, which are missing")
-    if a.shape[-1] != len(bands):
-        raise ValueError(f"alpha: {a.shape[-1]} values for {len(bands)} bands")
+    a = per_band("alpha", alpha, len(bands))
     return a[..., [bands.index(w) for w in wanted]]
 
 

@@ -8,7 +8,32 @@ from __future__ import annotations
 
 import numpy as np
 
+from roomcalc.engine.checks import in_range, non_negative, positive
+
+__all__ = ["LN10", "ALPHA_LOG_MAX", "sabine_constant", "sabine_constant_unchecked", "sabine",
+           "sabine_unchecked", "eyring", "eyring_unchecked", "millington",
+           "millington_unchecked", "millington_capped_share", "fitzroy", "fitzroy_unchecked",
+           "arau_puchades", "arau_puchades_unchecked", "axis_times_unchecked",
+           "schroeder_frequency", "schroeder_frequency_unchecked"]
+
 LN10 = np.log(10.0)
+
+#: Largest alpha the logarithmic formulas (Eyring, Millington-Sette, Fitzroy, Arau-Puchades)
+#: are given; larger coefficients, including the values above 1 that ISO 354 test reports show
+#: for thick absorbers, are capped at it. ln(1 - alpha) has no value at 1, so some cap is needed,
+#: and any cap is a choice: 0.99 is the largest coefficient below 1 that a report giving two
+#: decimals can state. At the cap a surface counts -ln(0.01) = 4.6 times its area (Sabine counts
+#: it once), so where capped surfaces dominate a sum the cap, not the room, sets the result: see
+#: :func:`millington_capped_share` and docs/methods.md.
+ALPHA_LOG_MAX = 0.99
+
+#: What the logarithmic formulas' alpha checks say about their range.
+_WHY_BELOW_1 = "ln(1 - alpha) has no value at 1"
+
+#: Unchecked entry points (``*_unchecked``) run the same formula as the public function of the
+#: same name without its input checks, for callers that check whole arrays once
+#: (:func:`roomcalc.engine.analysis.evaluate`). Their ``k`` is Sabine's constant
+#: (:func:`sabine_constant`), computed once per room.
 
 
 def sabine_constant(c=343.0) -> np.ndarray:
@@ -24,32 +49,28 @@ def sabine_constant(c=343.0) -> np.ndarray:
     >>> round(float(sabine_constant(343.0)), 4)
     0.1611
     """
-    c = _positive("c", c)
+    return sabine_constant_unchecked(positive("c", c, "m/s"))
+
+
+def sabine_constant_unchecked(c):
+    """:func:`sabine_constant` without input checks.
+
+    Notes
+    -----
+    .. math:: K = 24 \\ln 10 / c
+    """
     return 24.0 * LN10 / c
 
 
-def _positive(name, x):
-    x = np.asarray(x, dtype=float)
-    if not np.all(np.isfinite(x)) or np.any(x <= 0):
-        raise ValueError(f"{name}: must be finite and above 0")
-    return x
-
-
-def _non_negative(name, x):
-    x = np.asarray(x, dtype=float)
-    if not np.all(np.isfinite(x)) or np.any(x < 0):
-        raise ValueError(f"{name}: must be finite and 0 or more")
-    return x
-
-
 def _alpha_log(name, alpha):
-    """Check coefficients for a logarithmic formula: 0 <= alpha < 1."""
-    a = np.asarray(alpha, dtype=float)
-    if not np.all(np.isfinite(a)) or np.any(a < 0) or np.any(a >= 1):
-        raise ValueError(f"{name}: must be 0 or more and below 1 for this method "
-                         f"(ln(1 - alpha) is undefined at 1); got min {np.min(a):.3g}, "
-                         f"max {np.max(a):.3g}")
-    return a
+    """Coefficients for a logarithmic formula: 0 <= alpha < 1."""
+    return in_range(name, alpha, 0.0, 1.0, high_inclusive=False, why=_WHY_BELOW_1)
+
+
+# Kept for roomcalc/engine/planner.py, which imports them under these names until its rewrite
+# (issue 8) lands; new code calls roomcalc.engine.checks. Remove with that import.
+_positive = positive
+_non_negative = non_negative
 
 
 def sabine(volume, absorption_area, m=0.0, c=343.0) -> np.ndarray:
@@ -81,16 +102,22 @@ def sabine(volume, absorption_area, m=0.0, c=343.0) -> np.ndarray:
     >>> round(float(sabine(3000.0, 399.0)), 4)
     1.2114
     """
-    v = _positive("volume", volume)
-    a = _non_negative("absorption_area", absorption_area)
-    m = _non_negative("m", m)
+    v = positive("volume", volume, "m^3")
+    a = non_negative("absorption_area", absorption_area, "m^2")
+    m = non_negative("m", m, "1/m")
     if np.any(a + 4.0 * m * v <= 0):
         raise ValueError("absorption_area: total absorption (with air) must be above 0 m^2")
-    return _sabine(v, a, m, sabine_constant(c))
+    return sabine_unchecked(v, a, m, sabine_constant(c))
 
 
-def _sabine(v, a, m, k):
-    return k * v / (a + 4.0 * m * v)
+def sabine_unchecked(volume, absorption_area, m, k):
+    """:func:`sabine` without input checks; ``k`` is Sabine's constant [s/m].
+
+    Notes
+    -----
+    .. math:: T = \\frac{K V}{A + 4 m V}
+    """
+    return k * volume / (absorption_area + 4.0 * m * volume)
 
 
 def eyring(volume, surface_area, absorption_area, m=0.0, c=343.0) -> np.ndarray:
@@ -121,16 +148,23 @@ def eyring(volume, surface_area, absorption_area, m=0.0, c=343.0) -> np.ndarray:
     >>> round(float(eyring(3000.0, 1340.0, 399.0)), 4)
     1.0204
     """
-    v = _positive("volume", volume)
-    s = _positive("surface_area", surface_area)
-    a = _non_negative("absorption_area", absorption_area)
+    v = positive("volume", volume, "m^3")
+    s = positive("surface_area", surface_area, "m^2")
+    a = non_negative("absorption_area", absorption_area, "m^2")
     abar = _alpha_log("absorption_area / surface_area", a / s)
-    m = _non_negative("m", m)
-    return _eyring(v, s, abar, m, sabine_constant(c))
+    m = non_negative("m", m, "1/m")
+    return eyring_unchecked(v, s, abar, m, sabine_constant(c))
 
 
-def _eyring(v, s, abar, m, k):
-    return k * v / (-s * np.log1p(-abar) + 4.0 * m * v)
+def eyring_unchecked(volume, surface_area, mean_alpha, m, k):
+    """:func:`eyring` without input checks, from the mean alpha (below 1) instead of A; ``k``
+    is Sabine's constant [s/m].
+
+    Notes
+    -----
+    .. math:: T = \\frac{K V}{-S \\ln(1 - \\bar\\alpha) + 4 m V}
+    """
+    return k * volume / (-surface_area * np.log1p(-mean_alpha) + 4.0 * m * volume)
 
 
 def millington(volume, areas, alphas, m=0.0, c=343.0, extra_absorption=0.0) -> np.ndarray:
@@ -163,47 +197,134 @@ def millington(volume, areas, alphas, m=0.0, c=343.0, extra_absorption=0.0) -> n
     >>> round(float(millington(3000.0, [240.0, 600.0, 500.0], [[0.10], [0.25], [0.45]])[0]), 4)
     0.9729
     """
-    v = _positive("volume", volume)
-    s = _non_negative("areas", areas)
+    v = positive("volume", volume, "m^3")
+    s = non_negative("areas", areas, "m^2")
     a = _alpha_log("alphas", alphas)
-    m = _non_negative("m", m)
-    extra = _non_negative("extra_absorption", extra_absorption)
+    m = non_negative("m", m, "1/m")
+    extra = non_negative("extra_absorption", extra_absorption, "m^2")
+    _match_surfaces(s, a)
+    return millington_unchecked(v, s, a, m, sabine_constant(c), extra)
+
+
+def _match_surfaces(s, a):
     if a.shape[:-1][-1:] != s.shape[-1:]:
         raise ValueError(f"alphas: shape {a.shape} does not match areas {s.shape} "
                          "(expected (..., n, bands) with n surfaces)")
-    return _millington(v, s, a, m, sabine_constant(c), extra)
 
 
-def _millington(v, s, a, m, k, extra):
-    absorption = -np.einsum("...i,...ib->...b", s, np.log1p(-a)) + extra
-    return k * v / (absorption + 4.0 * m * v)
+def millington_unchecked(volume, areas, alphas, m, k, extra_absorption):
+    """:func:`millington` without input checks (alphas below 1); ``k`` is Sabine's constant.
+
+    Notes
+    -----
+    .. math:: T = \\frac{K V}{-\\sum_i S_i \\ln(1 - \\alpha_i) + A_{obj} + 4 m V}
+    """
+    absorption = -np.einsum("...i,...ib->...b", areas, np.log1p(-alphas)) + extra_absorption
+    return k * volume / (absorption + 4.0 * m * volume)
+
+
+def millington_capped_share(areas, alphas, extra_absorption=0.0) -> np.ndarray:
+    """Share of the Millington-Sette absorption that each capped surface contributes.
+
+    Parameters
+    ----------
+    areas : array_like, shape (..., n) -- surface areas S_i [m^2]
+    alphas : array_like, shape (..., n, bands) -- coefficients as given (0 or more; values
+        above :data:`ALPHA_LOG_MAX` are the capped ones)
+    extra_absorption : array_like -- absorption area of objects [m^2]
+
+    Returns
+    -------
+    ndarray, shape (..., n, bands) -- share of each surface's term in the sum, 0 for surfaces
+    that are not capped in that band
+
+    Notes
+    -----
+    With :math:`\\alpha'_i = \\min(\\alpha_i, \\alpha_{max})`:
+
+    .. math:: q_i = \\frac{-S_i \\ln(1 - \\alpha'_i)}
+              {-\\sum_j S_j \\ln(1 - \\alpha'_j) + A_{obj}}
+              \\quad (\\alpha_i > \\alpha_{max}), \\qquad q_i = 0 \\text{ otherwise}
+
+    A capped surface counts :math:`-\\ln(1 - 0.99) = 4.6` times its area, a number set by the
+    cap, not by the material. When such terms make up most of the sum, Millington-Sette's time
+    is the cap's (it tends to 0 as any one alpha tends to 1, however small that surface).
+
+    References
+    ----------
+    .. [1] R. H. Millington, J. Sci. Instrum. 9 (1932) 226 (the sum of -S_i ln(1 - alpha_i));
+       the failure of the formula for a nearly totally absorbing surface is common practice
+       (from memory of H. Kuttruff, Room Acoustics, 5th ed. (2009), ch. 5; not checked
+       against a copy).
+
+    Examples
+    --------
+    10 m^2 at alpha 1.1 (capped at 0.99) and 90 m^2 at 0.1: 10 ln 100 = 46.05 and
+    -90 ln 0.9 = 9.48, so the capped surface is 46.05 / 55.53 = 0.829 of the sum:
+
+    >>> [round(float(x), 3) for x in millington_capped_share([10.0, 90.0], [[1.1], [0.1]])[:, 0]]
+    [0.829, 0.0]
+    """
+    s = non_negative("areas", areas, "m^2")
+    a = non_negative("alphas", alphas)
+    extra = non_negative("extra_absorption", extra_absorption, "m^2")
+    _match_surfaces(s, a)
+    terms = -s[..., None] * np.log1p(-np.minimum(a, ALPHA_LOG_MAX))
+    total = terms.sum(axis=-2) + extra
+    with np.errstate(invalid="ignore", divide="ignore"):
+        share = np.where(a > ALPHA_LOG_MAX, terms / total[..., None, :], 0.0)
+    return share
 
 
 def _axis_times(volume, axis_areas, axis_alphas, m, c):
-    """Per-axis Eyring times T_x = K V / (-S ln(1 - abar_x) + 4 m V) and weights S_x / S."""
-    v = _positive("volume", volume)
-    sx = _positive("axis_areas", axis_areas)
+    """Checked inputs of Fitzroy and Arau-Puchades, then :func:`axis_times_unchecked`."""
+    v = positive("volume", volume, "m^3")
+    sx = positive("axis_areas", axis_areas, "m^2")
     ax = _alpha_log("axis_alphas", axis_alphas)
-    m = _non_negative("m", m)
-    if sx.shape[-1] != 3 or ax.shape[-2] != 3:
+    m = non_negative("m", m, "1/m")
+    if sx.shape[-1:] != (3,) or ax.shape[-2:-1] != (3,):
         raise ValueError("axis_areas must have shape (..., 3) and axis_alphas (..., 3, bands): "
                          "one entry per axis x, y, z")
-    return _axis_times_impl(v, sx, ax, m, sabine_constant(c))
+    return axis_times_unchecked(v, sx, ax, m, sabine_constant(c))
 
 
-def _axis_times_impl(v, sx, ax, m, k):
-    s = np.sum(sx, axis=-1)
-    v, m, k = (_per_axis(x) for x in (v, m, k))
-    tx = k * v / (-s[..., None, None] * np.log1p(-ax) + 4.0 * m * v)
-    weights = (sx / s[..., None])[..., None]
+def axis_times_unchecked(volume, axis_areas, axis_alphas, m, k):
+    """Per-axis Eyring times and weights, the common part of Fitzroy and Arau-Puchades, without
+    input checks; ``k`` is Sabine's constant [s/m].
+
+    Returns
+    -------
+    (tx, w) -- T_x [s], shape (..., 3, bands), and weights S_x / S, shape (..., 3, 1)
+
+    Notes
+    -----
+    .. math:: T_x = \\frac{K V}{-S \\ln(1 - \\bar\\alpha_x) + 4 m V}, \\quad w_x = S_x / S
+    """
+    s = np.sum(axis_areas, axis=-1)
+    v, m, k = (_per_axis(x) for x in (volume, m, k))
+    tx = k * v / (-s[..., None, None] * np.log1p(-axis_alphas) + 4.0 * m * v)
+    weights = (axis_areas / s[..., None])[..., None]
     return tx, weights
 
 
-def _fitzroy(tx, w):
+def fitzroy_unchecked(tx, w):
+    """Fitzroy's time from the per-axis times and weights of :func:`axis_times_unchecked`.
+
+    Notes
+    -----
+    .. math:: T = \\sum_x w_x T_x
+    """
     return np.sum(w * tx, axis=-2)
 
 
-def _arau_puchades(tx, w):
+def arau_puchades_unchecked(tx, w):
+    """Arau-Puchades' time from the per-axis times and weights of
+    :func:`axis_times_unchecked`.
+
+    Notes
+    -----
+    .. math:: T = \\prod_x T_x^{w_x}
+    """
     return np.exp(np.sum(w * np.log(tx), axis=-2))
 
 
@@ -249,7 +370,7 @@ def fitzroy(volume, axis_areas, axis_alphas, m=0.0, c=343.0) -> np.ndarray:
     0.6999
     """
     tx, w = _axis_times(volume, axis_areas, axis_alphas, m, c)
-    return _fitzroy(tx, w)
+    return fitzroy_unchecked(tx, w)
 
 
 def arau_puchades(volume, axis_areas, axis_alphas, m=0.0, c=343.0) -> np.ndarray:
@@ -271,7 +392,7 @@ def arau_puchades(volume, axis_areas, axis_alphas, m=0.0, c=343.0) -> np.ndarray
     1.1424
     """
     tx, w = _axis_times(volume, axis_areas, axis_alphas, m, c)
-    return _arau_puchades(tx, w)
+    return arau_puchades_unchecked(tx, w)
 
 
 def schroeder_frequency(rt60, volume) -> np.ndarray:
@@ -300,6 +421,15 @@ def schroeder_frequency(rt60, volume) -> np.ndarray:
     >>> round(float(schroeder_frequency(0.5, 50.0)), 1)
     200.0
     """
-    t = _positive("rt60", rt60)
-    v = _positive("volume", volume)
-    return 2000.0 * np.sqrt(t / v)
+    return schroeder_frequency_unchecked(positive("rt60", rt60, "s"),
+                                         positive("volume", volume, "m^3"))
+
+
+def schroeder_frequency_unchecked(rt60, volume):
+    """:func:`schroeder_frequency` without input checks.
+
+    Notes
+    -----
+    .. math:: f_S = 2000 \\sqrt{T / V}
+    """
+    return 2000.0 * np.sqrt(rt60 / volume)

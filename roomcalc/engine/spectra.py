@@ -10,6 +10,8 @@ import numpy as np
 
 from roomcalc.engine.bands import a_weighting, db_from_ratio, ratio_from_db
 
+__all__ = ["SPECTRUM_SHAPES", "SPECTRUM_DESCRIPTIONS", "band_power_from_dba"]
+
 _OCTAVES = (63, 125, 250, 500, 1000, 2000, 4000, 8000)
 
 #: Relative octave-band power [dB] of each shape.

@@ -198,6 +198,7 @@ def result_dict(res: RoomResult) -> dict:
         "method": res.method,
         "method_reason": res.method_reason,
         "recommended": res.recommended,
+        "rt60_unreliable": dict(res.unreliable),
         "room_constant_m2": floats(res.room_constant_m2),
         "schroeder_frequency_hz": floats(res.schroeder_hz),
         "reverberant_model": res.reverberant_model,

@@ -59,7 +59,7 @@ def engine(tmp_path, catalog):
         return evaluate(room, method=spec.method_in_force)     # the formula the file chooses
 
     def rt_text(res, band: int = 500, method: str | None = None) -> str:
-        """The RT of ``method`` (default: the recommended one) at ``band``, as the table shows
+        """The RT of ``method`` (default: the one in force) at ``band``, as the table shows
         it (2 decimals)."""
         k = method or res.method
         return f"{float(res.rt60_s[k][list(res.bands_hz).index(band)]):.2f}"
@@ -85,7 +85,7 @@ def screen_tables():
     from roomcalc.tui.widgets.grid import CellGrid
 
     def reverb(app) -> dict:
-        """The reverberation table: {"recommended": (title, {band: text}), "rows": {label:
+        """The reverberation table: {"in_force": (title, {band: text}), "rows": {label:
         {band: text}}, "headings": [...]}."""
         t = app.screen.query_one("#reverb-table", CellGrid)
         keys = list(t.columns)
@@ -96,9 +96,9 @@ def screen_tables():
             by_band = {int(k): v for k, v in zip(keys[1:], cells[1:]) if k.isdigit()}
             rows[label.removeprefix("> ").strip()] = by_band
             if label.startswith("> "):
-                assert rec is None, "two rows are marked as recommended"
+                assert rec is None, "two rows are marked as in force"
                 rec = (label[2:].strip(), by_band)
-        return {"recommended": rec, "rows": rows,
+        return {"in_force": rec, "rows": rows,
                 "headings": [str(c.label) for c in t.columns.values()]}
 
     def records(app, coll: str) -> list[list[str]]:

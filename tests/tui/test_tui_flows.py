@@ -48,8 +48,8 @@ def _surfaces(app):
 
 
 def _assert_reverb_matches(reverb, res, engine):
-    """The recommended row and every band of it, and each method's 500 Hz value."""
-    title, by_band = reverb["recommended"]
+    """The row in force and every band of it, and each method's 500 Hz value."""
+    title, by_band = reverb["in_force"]
     assert title == engine.titles[res.method]
     for b in res.bands_hz:
         assert by_band[b] == engine.rt_text(res, b), b
@@ -73,7 +73,7 @@ async def test_material_change_through_chooser(room_file, catalog, engine, scree
         res = engine.result(parse_spec(path.read_text(encoding="utf-8")))
         reverb = screen_tables.reverb(app)
         _assert_reverb_matches(reverb, res, engine)
-        before = reverb["recommended"][1][500]
+        before = reverb["in_force"][1][500]
         # Headings keep their units (a "[s]" must not be eaten as markup).
         assert reverb["headings"][0] == "RT60 [s]"
         assert reverb["headings"][1:] == [f"{b:g}" if b < 1000 else f"{b / 1000:g}k"
@@ -108,7 +108,7 @@ async def test_material_change_through_chooser(room_file, catalog, engine, scree
         res = engine.result(doc.spec)
         reverb = screen_tables.reverb(app)
         _assert_reverb_matches(reverb, res, engine)
-        assert reverb["recommended"][1][500] != before   # the change did reach the table
+        assert reverb["in_force"][1][500] != before   # the change did reach the table
 
         # Key m on another row; the first of several matches is taken.
         back = _index(doc, "Back wall")

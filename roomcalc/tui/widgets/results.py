@@ -55,7 +55,7 @@ class BandTable(CellGrid):
 
 
 class ReverbTable(BandTable):
-    """RT by every method (the recommended one marked), room constant, critical distance,
+    """RT by every method (the one in force marked), room constant, critical distance,
     Schroeder frequency."""
 
     def show(self, res: RoomResult, units: Units = METRIC) -> None:
