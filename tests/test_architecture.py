@@ -219,12 +219,7 @@ def private_imports(source: str) -> list[tuple[int, str]]:
 
 # Modules allowed to break the rule for now, each with its reason. Remove an entry as soon as
 # the module is fixed; add none without a reason.
-PRIVATE_IMPORT_ALLOWED = {
-    # The planner imports reverb's _positive/_non_negative (kept there only for it); another
-    # branch rewrites it into a package that calls roomcalc.engine.checks. The lead removes
-    # this entry after merging that branch.
-    "engine/planner.py",
-}
+PRIVATE_IMPORT_ALLOWED: set[str] = set()
 
 
 def test_no_module_uses_another_modules_private_names():
@@ -260,14 +255,11 @@ def test_private_import_scanner_catches_each_form():
 
 
 def test_every_engine_module_declares_its_public_names():
-    # engine/planner.py excepted: another branch rewrites it.
     import importlib
 
     bad = []
     for f in _modules("engine"):
         rel = f.relative_to(PKG).as_posix()
-        if rel == "engine/planner.py":
-            continue
         name = "roomcalc." + rel.removesuffix(".py").removesuffix("/__init__").replace("/", ".")
         mod = importlib.import_module(name)
         names = getattr(mod, "__all__", None)

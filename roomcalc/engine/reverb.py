@@ -67,12 +67,6 @@ def _alpha_log(name, alpha):
     return in_range(name, alpha, 0.0, 1.0, high_inclusive=False, why=_WHY_BELOW_1)
 
 
-# Kept for roomcalc/engine/planner.py, which imports them under these names until its rewrite
-# (issue 8) lands; new code calls roomcalc.engine.checks. Remove with that import.
-_positive = positive
-_non_negative = non_negative
-
-
 def sabine(volume, absorption_area, m=0.0, c=343.0) -> np.ndarray:
     """Reverberation time by Sabine's formula with air absorption.
 

@@ -92,7 +92,7 @@ class MainScreen(Screen):
         self._tables_drawn = False
         self._catalog_values: dict[tuple, str] = {}   # (material id, bands) -> its alphas
         self._criteria = None                  # the criteria library, read when first needed
-        self._plan_run = None                  # the plan last made (roomcalc.io.targets)
+        self._plan_run = None                  # the plan last made (roomcalc.study.PlanRun)
         self._controls_key = None              # sources and bands the distance selects show
 
     # ------------------------------------------------------------------ layout
