@@ -11,7 +11,8 @@ import pytest
 from roomcalc.engine.analysis import evaluate
 from roomcalc.io import paths
 from roomcalc.io.roomfile import check_room, read_spec
-from roomcalc.study.edits import change_bands, convert_units, rename_item, set_item_fields
+from roomcalc.study.edits import (change_bands, convert_units, rename_item, set_item_fields,
+                                   set_method)
 
 
 def _example(name):
@@ -132,3 +133,15 @@ def test_unit_conversion_round_trip(name, catalog):
         assert res.volume_m3 == pytest.approx(res0.volume_m3, rel=1e-3)
         for k, v in res0.rt60_s.items():
             np.testing.assert_allclose(res.rt60_s[k], v, rtol=2e-3)
+
+
+def test_set_method_is_a_room_setting():
+    # The classroom names its formula in [target]; choosing one for the room moves it to the
+    # top level, so the file never names two.
+    spec = _example("classroom.toml")
+    assert spec.target.method == "eyring"
+    set_method(spec, "arau_puchades")
+    assert spec.method == "arau_puchades" and spec.target.method is None
+    assert spec.method_in_force == "arau_puchades"
+    set_method(spec, None)
+    assert spec.method_in_force is None

@@ -13,7 +13,8 @@ told, if anything. The rules:
 - :func:`change_bands` -- add or remove octave bands, extending or shrinking *every* per-band
   list (surfaces' and candidates' alpha, objects' and candidates' absorption, sources' sound
   power, the target's limits given per band, and the levels of a receiver's band limit);
-- :func:`convert_units` -- re-express the spec in metric or imperial units.
+- :func:`convert_units` -- re-express the spec in metric or imperial units;
+- :func:`set_method` -- put a formula in force for the whole room (or the recommended one).
 """
 
 from __future__ import annotations
@@ -27,7 +28,7 @@ from roomcalc.io.roomfile import RoomSpec
 from roomcalc.io.units import UNITS
 
 __all__ = ["COLLECTIONS", "set_item_fields", "rename_item", "change_bands", "convert_units",
-           "nearest_band_fill"]
+           "nearest_band_fill", "set_method"]
 
 #: The spec's lists of items, in the order the interface shows them.
 COLLECTIONS = ("surfaces", "objects", "sources", "receivers", "candidates")
@@ -95,6 +96,16 @@ def rename_item(spec: RoomSpec, collection: str, index: int, new: str) -> str:
         spec.target.max_level_dba = swap(spec.target.max_level_dba)
         spec.target.max_level_db = swap(spec.target.max_level_db)
     return f"rename {collection[:-1]} '{old}'"
+
+
+def set_method(spec: RoomSpec, method: str | None) -> str:
+    """Put a formula in force for the whole room (None: the recommended one). It is a setting
+    of the room (top-level ``method``); a ``[target] method`` gives way to it, so the file
+    names one formula. Returns an undo label."""
+    spec.method = method
+    if spec.target is not None:
+        spec.target.method = None
+    return f"formula: {method or 'recommended'}"
 
 
 def nearest_band_fill(values, old_bands, new_bands) -> list | None:

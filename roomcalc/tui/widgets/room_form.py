@@ -7,8 +7,12 @@ from textual.containers import Grid, VerticalScroll
 from textual.validation import ValidationResult, Validator
 from textual.widgets import Checkbox, Input, Label, Select, Static
 
+from roomcalc.engine.analysis import METHOD_TITLES, METHODS
 from roomcalc.io.roomfile import RoomSpec
 from roomcalc.tui.messages import FieldEdited
+
+#: The formula choice "none": the one roomcalc recommends for the room.
+RECOMMENDED = "recommended"
 
 #: (key, label, unit kind) of each numeric field. Unit kind picks the label from the room's units.
 NUMBER_FIELDS = (
@@ -50,6 +54,7 @@ class RoomForm(VerticalScroll):
         super().__init__(id=id)
         self._units = {}
         self._shown_units: str | None = None
+        self._shown_method: str | None = None
 
     def compose(self) -> ComposeResult:
         with Grid():
@@ -60,6 +65,13 @@ class RoomForm(VerticalScroll):
             yield Select([("metric (m, m^2, degC)", "metric"),
                           ("imperial (ft, ft^2, degF)", "imperial")],
                          allow_blank=False, value="metric", id="f-units")
+            yield Static("")
+            yield Label("RT formula")
+            yield Select([("recommended for the room", RECOMMENDED)] +
+                         [(METHOD_TITLES[k], k) for k in METHODS],
+                         allow_blank=False, value=RECOMMENDED, id="f-method",
+                         tooltip="The formula in force: every result, the target check, the "
+                         "plan and before/after use it")
             yield Static("")
             for key, label, _ in NUMBER_FIELDS:
                 yield Label(label.split(" (")[0])
@@ -82,6 +94,8 @@ class RoomForm(VerticalScroll):
         with self.prevent(Input.Changed, Select.Changed, Checkbox.Changed):
             self.query_one("#f-title", Input).value = spec.title
             self.query_one("#f-units", Select).value = spec.units
+            self._shown_method = spec.method_in_force or RECOMMENDED
+            self.query_one("#f-method", Select).value = self._shown_method
             for key, _, kind in NUMBER_FIELDS:
                 group, name = key.split(".")
                 v = getattr(getattr(spec, group), name)
@@ -115,6 +129,12 @@ class RoomForm(VerticalScroll):
         # arrive before or after show(): only a value that differs from the room shown is an
         # edit (else an imperial room would be converted to metric on opening).
         value = event.select.value
+        if event.select.id == "f-method" and self._shown_method is not None and \
+                value != self._shown_method and value in (RECOMMENDED, *METHODS):
+            self._shown_method = value
+            self.post_message(FieldEdited("room", None, "method",
+                                          None if value == RECOMMENDED else value))
+            return
         if event.select.id == "f-units" and value in ("metric", "imperial") and \
                 self._shown_units is not None and value != self._shown_units:
             self.post_message(FieldEdited("room", None, "units", value))
