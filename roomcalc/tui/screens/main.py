@@ -23,7 +23,7 @@ from roomcalc.io.catalog import Catalog
 from roomcalc.io.errors import RoomFileError
 from roomcalc.present import sections
 from roomcalc.study import Answer, Study
-from roomcalc.study.edits import change_bands, convert_units, set_item_fields
+from roomcalc.study.edits import change_bands, convert_units, set_item_fields, set_method
 from roomcalc.tui.document import Document
 from roomcalc.tui.messages import FieldEdited, MaterialWanted, RowAction
 from roomcalc.tui.widgets.deferred import Deferred
@@ -32,7 +32,7 @@ from roomcalc.tui.widgets.plan_view import PlanView
 from roomcalc.tui.widgets.plots import DistancePlot, RtPlot
 from roomcalc.tui.widgets.record_table import Column, RecordTable
 from roomcalc.tui.widgets.results import CompareTable, FindingsStrip, ReceiverTable, ReverbTable
-from roomcalc.tui.widgets.room_form import RoomForm, Unparsed
+from roomcalc.tui.widgets.room_form import RECOMMENDED, RoomForm, Unparsed
 
 EDIT_TABS = ("room", "surfaces", "objects", "sources", "receivers", "candidates")
 TAB_TITLES = {"candidates": "Treatments"}
@@ -547,7 +547,8 @@ class MainScreen(Screen):
         current = None if t is None else {
             "criterion": t.criterion or ("own" if (t.rt60_max is not None or
                                                    t.rt60_min is not None) else "none"),
-            "method": t.plan_method, "objective": t.plan_objective}[key]
+            "method": self.document.spec.method_in_force or RECOMMENDED,
+            "objective": t.plan_objective}[key]
         if value == current or (key == "criterion" and value == "own"):
             return
 
@@ -557,6 +558,8 @@ class MainScreen(Screen):
             if key == "criterion":
                 spec.target.criterion = None if value == "none" else value
                 spec.target.rt60_max = spec.target.rt60_min = None   # one or the other
+            elif key == "method":
+                set_method(spec, None if value == RECOMMENDED else value)
             else:
                 setattr(spec.target, key, value)
         self.apply(fn, f"target: {key} {value}")
@@ -686,6 +689,9 @@ class MainScreen(Screen):
             if value != self.document.spec.units:
                 self._needs_form_refresh = True
                 self.apply(lambda spec: convert_units(spec, value), f"units: {value}")
+            return
+        if key == "method":
+            self.apply(lambda spec: set_method(spec, value), f"formula: {value or 'recommended'}")
             return
         if key == "bands_hz":
             notes: list[str] = []

@@ -15,15 +15,16 @@ from textual.containers import Horizontal, VerticalScroll
 from textual.message import Message
 from textual.widgets import Button, Input, Select, Static
 
-from roomcalc.present.sections import plan_levels
 from roomcalc.engine.analysis import METHOD_TITLES, METHODS
+from roomcalc.present.sections import plan_levels
 from roomcalc.tui.widgets.grid import CellGrid
 from roomcalc.tui.widgets.results import BandTable
+from roomcalc.tui.widgets.room_form import RECOMMENDED
 
 OWN = "own"            # the criterion option for the room file's own limits
 NONE = "none"          # no RT target
 #: The formulas offered, Eyring first (the one a plan uses when the room file names none).
-METHOD_ORDER = ("eyring",) + tuple(m for m in METHODS if m != "eyring")
+METHOD_ORDER = METHODS
 
 
 def _f(x, nd=2) -> str:
@@ -99,8 +100,10 @@ class PlanView(VerticalScroll):
                     id="plan-own", compact=True)
         yield Static("", id="plan-own-error", markup=False)
         with Horizontal(id="plan-controls-2"):
-            yield Select([(METHOD_TITLES[m], m) for m in METHOD_ORDER], id="plan-method",
-                         allow_blank=False)
+            yield Select([("recommended formula", RECOMMENDED)] +
+                         [(METHOD_TITLES[m], m) for m in METHOD_ORDER], id="plan-method",
+                         allow_blank=False, tooltip="The formula in force for the whole room "
+                         "(also in the Room tab)")
             yield Select([("least cost", "cost"), ("least area", "area")],
                          id="plan-objective", allow_blank=False)
             yield Button("Plan (r)", id="plan-run", variant="primary")
@@ -142,7 +145,7 @@ class PlanView(VerticalScroll):
             value = t.criterion
         elif t is not None and (t.rt60_max is not None or t.rt60_min is not None):
             value = OWN
-        method = spec.method_in_force or "eyring"     # what resolve_goals plans with
+        method = spec.method_in_force or RECOMMENDED      # the formula the plan is made by
         self._shown = {"criterion": value, "method": method,
                        "objective": t.plan_objective if t else "cost"}
         with crit.prevent(Select.Changed):
