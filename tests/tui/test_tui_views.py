@@ -174,3 +174,21 @@ async def test_reverb_view_marks_the_method_in_force(catalog):
         assert [r[0] for r in marked] == ["> " + METHOD_TITLES[res.method]]
         i = list(res.bands_hz).index(500)
         assert marked[0][1 + i] == f"{float(res.rt60_s[res.method][i]):.2f}"
+
+
+async def test_each_view_says_when_it_is_mounted():
+    """A hidden tab's view is mounted after the first screen; it says so, once, so that the
+    screen can draw it if its tab is already shown."""
+    from roomcalc.tui.widgets.views import ResultView
+
+    for view_type in (ReverbView, DistanceView, ReceiversView, CompareView):
+        got = []
+
+        def hook(msg):
+            if isinstance(msg, ResultView.Ready) and not any(m is msg for m in got):
+                got.append(msg)
+
+        app = ViewApp(view_type(id="the-view"))
+        async with app.run_test(size=SIZE, message_hook=hook) as pilot:
+            await pilot.pause()
+            assert [m.view.id for m in got] == ["the-view"], view_type.__name__

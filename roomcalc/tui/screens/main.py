@@ -35,7 +35,8 @@ from roomcalc.tui.widgets.plan_view import PlanView
 from roomcalc.tui.widgets.record_table import RecordTable
 from roomcalc.tui.widgets.results import FindingsStrip
 from roomcalc.tui.widgets.room_form import RoomForm
-from roomcalc.tui.widgets.views import CompareView, DistanceView, ReceiversView, ReverbView
+from roomcalc.tui.widgets.views import (CompareView, DistanceView, ReceiversView, ResultView,
+                                        ReverbView)
 
 EDIT_TABS = ("room", "surfaces", "objects", "sources", "receivers", "candidates")
 TAB_TITLES = {"candidates": "Treatments"}
@@ -293,6 +294,14 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
     def _view_shown(self, event: TabbedContent.TabActivated) -> None:
         if event.pane is not None:
             self._show_view(event.pane.id)
+
+    @on(ResultView.Ready)
+    def _view_ready(self, msg: ResultView.Ready) -> None:
+        """A hidden result tab got mounted: drawn now if its tab is already shown."""
+        msg.stop()
+        active = self.query_one("#view", TabbedContent).active
+        if VIEW_IDS.get(active) == f"#{msg.view.id}":
+            self._show_view(active)
 
     @on(TabbedContent.TabActivated, "#edit")
     def _edit_tab_shown(self, event: TabbedContent.TabActivated) -> None:

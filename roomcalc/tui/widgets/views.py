@@ -22,7 +22,24 @@ NO_PIN = ("Press p to pin the room as it is now as \"before\"; then edit it and 
           "here.")
 
 
-class ReverbView(Vertical):
+class ResultView(Vertical):
+    """A result tab's widget. It says when it is mounted (``Ready``): a hidden tab is mounted
+    after the first screen, and its tab may be shown before that."""
+
+    class Ready(Message):
+        def __init__(self, view: "ResultView") -> None:
+            super().__init__()
+            self.view = view
+
+        @property
+        def control(self) -> "ResultView":
+            return self.view
+
+    def on_mount(self) -> None:
+        self.post_message(self.Ready(self))
+
+
+class ReverbView(ResultView):
     """RT by every method and the room's figures (a table), and RT against band (a plot)."""
 
     def compose(self) -> ComposeResult:
@@ -34,7 +51,7 @@ class ReverbView(Vertical):
         self.query_one(RtPlot).show(res, stale)
 
 
-class DistanceView(Vertical):
+class DistanceView(ResultView):
     """Level against distance for the source and band picked in its two lists."""
 
     class Chosen(Message):
@@ -102,7 +119,7 @@ class DistanceView(Vertical):
         self.query_one(DistancePlot).show_message(text)
 
 
-class ReceiversView(Vertical):
+class ReceiversView(ResultView):
     """The level at each receiver, and under it a note: the daily exposure, when given."""
 
     def compose(self) -> ComposeResult:
@@ -117,7 +134,7 @@ class ReceiversView(Vertical):
         self.query_one("#receiver-note", Static).update(note)
 
 
-class CompareView(Vertical):
+class CompareView(ResultView):
     """Before and after: a heading, the table, and the comparison's notes."""
 
     def compose(self) -> ComposeResult:
