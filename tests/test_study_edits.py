@@ -11,8 +11,9 @@ import pytest
 from roomcalc.engine.analysis import evaluate
 from roomcalc.io import paths
 from roomcalc.io.roomfile import check_room, read_spec
-from roomcalc.study.edits import (change_bands, convert_units, rename_item, set_item_fields,
-                                   set_method)
+from roomcalc.study.edits import (change_bands, convert_units, parse_rt60_limit, rename_item,
+                                   set_criterion, set_item_fields, set_method, set_objective,
+                                   set_own_rt60_limit)
 
 
 def _example(name):
@@ -145,3 +146,19 @@ def test_set_method_is_a_room_setting():
     assert spec.method_in_force == "arau_puchades"
     set_method(spec, None)
     assert spec.method_in_force is None
+
+
+def test_criterion_and_own_limit_exclude_each_other():
+    spec = _example("classroom.toml")
+    assert spec.target.criterion == "ansi-s12.60-2010-core"
+    set_own_rt60_limit(spec, parse_rt60_limit("0.6", len(spec.bands)))
+    assert spec.target.criterion is None and spec.target.rt60_max == 0.6
+    set_criterion(spec, "bb93-primary-new")
+    assert spec.target.criterion == "bb93-primary-new" and spec.target.rt60_max is None
+    set_objective(spec, "area")
+    assert spec.target.plan_objective == "area"
+    assert parse_rt60_limit("0.8 0.7 0.6 0.6 0.6 0.6", 6) == [0.8, 0.7, 0.6, 0.6, 0.6, 0.6]
+    for bad, words in (("0.6 0.5", "2 values"), ("x", "only numbers"), ("0", "above 0"),
+                       ("25", "at most 20 s")):
+        with pytest.raises(ValueError, match=words):
+            parse_rt60_limit(bad, 6)

@@ -14,7 +14,9 @@ told, if anything. The rules:
   list (surfaces' and candidates' alpha, objects' and candidates' absorption, sources' sound
   power, the target's limits given per band, and the levels of a receiver's band limit);
 - :func:`convert_units` -- re-express the spec in metric or imperial units;
-- :func:`set_method` -- put a formula in force for the whole room (or the recommended one).
+- :func:`set_method` -- put a formula in force for the whole room (or the recommended one);
+- :func:`set_criterion`, :func:`set_own_rt60_limit`, :func:`set_objective` -- what the room
+  must reach: a criterion of the library or the room's own RT60 limit, one or the other.
 """
 
 from __future__ import annotations
@@ -24,11 +26,12 @@ import math
 from roomcalc.engine.bands import DEFAULT_BANDS_HZ
 from roomcalc.io.catalog import Catalog
 from roomcalc.io.planning import convert_candidate_units
-from roomcalc.io.roomfile import RoomSpec
+from roomcalc.io.roomfile import RoomSpec, TargetSpec
 from roomcalc.io.units import UNITS
 
 __all__ = ["COLLECTIONS", "set_item_fields", "rename_item", "change_bands", "convert_units",
-           "nearest_band_fill", "set_method"]
+           "nearest_band_fill", "set_method", "set_criterion", "set_objective",
+           "set_own_rt60_limit", "parse_rt60_limit"]
 
 #: The spec's lists of items, in the order the interface shows them.
 COLLECTIONS = ("surfaces", "objects", "sources", "receivers", "candidates")
@@ -106,6 +109,51 @@ def set_method(spec: RoomSpec, method: str | None) -> str:
     if spec.target is not None:
         spec.target.method = None
     return f"formula: {method or 'recommended'}"
+
+
+def _target(spec: RoomSpec):
+    if spec.target is None:
+        spec.target = TargetSpec()
+    return spec.target
+
+
+def set_criterion(spec: RoomSpec, criterion: str | None) -> str:
+    """Judge the room by a criterion of the library (None: no RT target). A criterion and the
+    room's own RT60 window exclude each other: setting one clears the other."""
+    t = _target(spec)
+    t.criterion = criterion
+    t.rt60_max = t.rt60_min = None
+    return f"target: {criterion or 'no RT target'}"
+
+
+def parse_rt60_limit(text: str, n_bands: int):
+    """The room's own RT60 limit as typed: one number (every band) or one per band [s].
+    Raises ValueError saying what is allowed."""
+    try:
+        vals = [float(x) for x in text.replace(",", " ").split()]
+    except ValueError:
+        raise ValueError("only numbers, in seconds, separated by spaces") from None
+    if len(vals) not in (1, n_bands):
+        raise ValueError(f"{len(vals)} values: give one (every band) or {n_bands}, one per "
+                         "band")
+    if not all(0.0 < v <= 20.0 and math.isfinite(v) for v in vals):
+        raise ValueError("each limit must be above 0 and at most 20 s")
+    return vals[0] if len(vals) == 1 else vals
+
+
+def set_own_rt60_limit(spec: RoomSpec, limit) -> str:
+    """Judge the room by its own RT60 limit (one number, or a list per band) instead of a
+    criterion."""
+    t = _target(spec)
+    t.criterion = None
+    t.rt60_max = limit
+    return "target: own RT60 limit"
+
+
+def set_objective(spec: RoomSpec, objective: str) -> str:
+    """What the plan minimises: "cost" or "area"."""
+    _target(spec).objective = objective
+    return f"target: least {objective}"
 
 
 def nearest_band_fill(values, old_bands, new_bands) -> list | None:

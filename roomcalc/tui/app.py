@@ -96,34 +96,36 @@ class RoomApp(App):
         yield from super().get_system_commands(screen)
         main = self.main
         for title, help_, cb in (
-            ("Save", "Write the room to its file", self.save_document),
-            ("Save as", "Write the room to another file", self.save_document_as),
-            ("Open room file", "Open another room file", self.ask_open),
-            ("New room", "Start a room from a box size", self.ask_new),
+            ("Save", "Write the room to its file", self.action_save),
+            ("Save as", "Write the room to another file", self.action_save_as),
+            ("Open room file", "Open another room file", self.action_open),
+            ("New room", "Start a room from a box size", self.action_new),
             ("Undo", "Take back the last edit", main.action_undo),
             ("Redo", "Do the undone edit again", main.action_redo),
             ("Pin as before", "Keep the room as it is now to compare with", main.action_pin),
             ("Switch reverberant model", "Diffuse field (4/R) or Barron & Lee",
              main.action_toggle_model),
             ("Choose material", "For the highlighted surface or object", main.action_material),
-            ("Help", "Every key, and what each number means", self.action_show_help_screen),
+            ("Help", "Every key, and what each number means", self.action_help),
         ):
             yield SystemCommand(title, help_, cb)
 
-    def action_show_help_screen(self) -> None:
+    # ------------------------------------------------------------------ actions (the main
+    # screen's bindings name them as app.save, app.save_as, app.open, app.new, app.help)
+    def action_help(self) -> None:
         from roomcalc.tui.screens.help import HelpScreen   # Markdown is slow to import
 
         self.push_screen(HelpScreen())
 
     # ------------------------------------------------------------------ files
-    def save_document(self) -> None:
+    def action_save(self) -> None:
         doc = self.main.document
         if doc.path is None or doc.demo:
-            self.save_document_as()
+            self.action_save_as()
             return
         self._write(doc, doc.path)
 
-    def save_document_as(self) -> None:
+    def action_save_as(self) -> None:
         doc = self.main.document
         default = str(doc.path) if doc.path and not doc.demo else "my-room.toml"
 
@@ -150,7 +152,7 @@ class RoomApp(App):
             self.notify(f"Not saved: {path}: {exc.strerror or exc}", severity="error",
                         timeout=8, markup=False)
             return
-        self.main._title()
+        self.main.show_title()
         self.notify(f"Saved {path}", markup=False)
 
     def _guard(self, then) -> None:
@@ -164,7 +166,7 @@ class RoomApp(App):
             if ans == "save":
                 if doc.path is None or doc.demo:
                     self.notify("Save it first (F2), then try again.", severity="warning")
-                    self.save_document_as()
+                    self.action_save_as()
                     return
                 self._write(doc, doc.path)
                 then()
@@ -185,7 +187,7 @@ class RoomApp(App):
             discard_recovery(self.main.document.path)
         self.exit()
 
-    def ask_open(self) -> None:
+    def action_open(self) -> None:
         def ask():
             self.push_screen(AskText("Open a room file:", "", "example_rooms/classroom.toml"),
                              self.open_path)
@@ -216,7 +218,7 @@ class RoomApp(App):
         self._set_document(doc)
         self._offer_recovery(doc)
 
-    def ask_new(self) -> None:
+    def action_new(self) -> None:
         def ask():
             def create(size):
                 if size:

@@ -401,3 +401,40 @@ async def test_quit_with_unsaved_changes_asks(room_file, catalog):
     app._write_recovery()          # what the timer would run if it fired during the close
     assert not recovery_path(path).exists()
 
+
+
+async def test_file_and_help_keys_are_the_apps_actions(room_file, catalog):
+    """The main screen's file and help keys name the app's actions (app.save, ...), keep
+    their ids (a keymap moves them) and the command palette offers the same actions."""
+    from roomcalc.tui.screens.dialogs import AskBox, AskText
+    from roomcalc.tui.screens.help import HelpScreen
+
+    actions = {b.id: b.action for b in MainScreen.BINDINGS}
+    assert {k: actions[k] for k in ("main.save", "main.save_as", "main.open", "main.new",
+                                    "main.help")} == {
+        "main.save": "app.save", "main.save_as": "app.save_as", "main.open": "app.open",
+        "main.new": "app.new", "main.help": "app.help"}
+    app = _app(room_file("garage-studio.toml"), catalog)
+    async with app.run_test(size=SIZE) as pilot:
+        await _ready(pilot)
+        for key, screen_type in (("f1", HelpScreen), ("f2", AskText), ("ctrl+o", AskText),
+                                 ("ctrl+n", AskBox)):
+            await pilot.press(key)
+            await pilot.pause()
+            assert isinstance(app.screen, screen_type), key
+            await pilot.press("escape")
+            await pilot.pause()
+            assert isinstance(app.screen, MainScreen), key
+        # A keymap moves the help key by its id.
+        app.set_keymap({"main.help": "f3"})
+        await pilot.pause()
+        await pilot.press("f3")
+        await pilot.pause()
+        assert isinstance(app.screen, HelpScreen)
+        await pilot.press("escape")
+        await pilot.pause()
+        palette = {c.title: c.callback for c in app.get_system_commands(app.screen)}
+        assert palette["Save"] == app.action_save and palette["Help"] == app.action_help
+        assert palette["Open room file"] == app.action_open
+        assert palette["New room"] == app.action_new
+        assert palette["Save as"] == app.action_save_as
