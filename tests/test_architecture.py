@@ -139,7 +139,8 @@ def test_core_layers():
 #: What only the core may call: the pipeline's steps (check, evaluate, target, exposure, plan).
 PIPELINE = {("roomcalc.engine.analysis", "evaluate"), ("roomcalc.engine.analysis", "compare"),
             ("roomcalc.io.roomfile", "check_room"), ("roomcalc.io.roomfile", "read_room"),
-            ("roomcalc.engine.criteria", "assess"), ("roomcalc.engine.planner", "plan")}
+            ("roomcalc.engine.criteria", "assess"), ("roomcalc.engine.planner", "plan"),
+            ("roomcalc.engine.analysis", "distance_curves")}
 PIPELINE_MODULES = ("roomcalc.io.planning", "roomcalc.engine.exposure",
                     "roomcalc.engine.planner")
 

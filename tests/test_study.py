@@ -225,3 +225,22 @@ def test_classroom_plan_meets_ansi_without_its_pupils(catalog, tmp_path):
     assert not occupied_run.occupancy.differs
     assert sections.plan_dict(occupied_run)["total_area_m2"] < \
         sections.plan_dict(run)["total_area_m2"]
+
+
+def test_distance_picture_points_are_each_receivers_level_from_that_source(catalog):
+    from roomcalc.engine.bands import a_weighted_total
+    from roomcalc.study.distance import distance_picture
+
+    res = _study("workshop.toml", catalog).evaluate()
+    saw = res.sources[0].name
+    pic = distance_picture(res, saw)
+    for (name, dist, level), r in zip(pic.points, res.receivers):
+        assert name == r.name and dist == r.distances_m[saw]
+        # The level from one source is below the level from all sources together.
+        assert level <= r.level_dba + 1e-9
+        assert level == pytest.approx(float(a_weighted_total(r.per_source_db[saw],
+                                                             res.bands_hz)))
+    pic = distance_picture(res, saw, 500)
+    assert pic.band_index == list(res.bands_hz).index(500)
+    with pytest.raises(ValueError, match="not a band"):
+        distance_picture(res, saw, 333)

@@ -19,12 +19,12 @@ from textual.css.query import NoMatches
 from textual.screen import Screen
 from textual.widgets import Static, TabbedContent, TabPane
 
-from roomcalc.engine.analysis import RoomResult, distance_curves
-from roomcalc.engine.bands import a_weighted_total
+from roomcalc.engine.analysis import RoomResult
 from roomcalc.io.catalog import Catalog
 from roomcalc.io.errors import RoomFileError
 from roomcalc.present import sections
 from roomcalc.study import Answer, Study
+from roomcalc.study.distance import distance_picture
 from roomcalc.tui.columns import RecordColumns
 from roomcalc.tui.document import Document
 from roomcalc.tui.screens.edit_routes import EditRoutes
@@ -336,15 +336,10 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
         if res is None or src not in [s.name for s in res.sources]:
             view.show_message("Add a source (Sources tab) to see level against distance")
             return
-        bi = None if band is None else list(res.bands_hz).index(band)
-        curves = distance_curves(res, src, points=120)
-        pts = []
-        for r in res.receivers:
-            lev = r.per_source_db[src]
-            level = float(a_weighted_total(lev, res.bands_hz)) if bi is None else float(lev[bi])
-            pts.append((r.name, r.distances_m[src], level))
+        pic = distance_picture(res, src, band)
         u = self.document.spec.unit_system
-        view.show(curves, bi, res.bands_hz, pts, u.length_label, u.length, self.stale, src)
+        view.show(pic.curves, pic.band_index, res.bands_hz, list(pic.points), u.length_label,
+                  u.length, self.stale, src)
 
     @on(DistanceView.Chosen)
     def _distance_chosen(self, msg: DistanceView.Chosen) -> None:
