@@ -43,6 +43,9 @@ def _parser() -> argparse.ArgumentParser:
                         "Barron & Lee's revised theory")
 
     c = sub.add_parser("check", parents=[common], help="check a room file and say what is wrong")
+    c.add_argument("--format", choices=("text", "json"), default="text",
+                   help="output format (json: problems, or the formula in force, warnings and "
+                        "the target check, in SI units)")
     c.add_argument("file", nargs="?", help="room file (.toml)")
     c.add_argument("--demo", action="store_true", help="check the built-in demo room")
 
@@ -167,6 +170,8 @@ def _report(args, catalog) -> int:
         return EXIT_INPUT
     shown = "built-in demo room" if args.demo else str(path)
     if args.command == "check":
+        if args.format == "json":
+            return _check_json(path, shown, catalog)
         study = Study.from_file(path, catalog)
         sys.stdout.write(report.check_text(study.answer(), shown))
         return EXIT_OK
@@ -174,6 +179,24 @@ def _report(args, catalog) -> int:
                             reverberant_model=args.reverberant)
     sys.stdout.write(report.report(study.answer(), args.format, shown, study.spec.unit_system))
     return EXIT_OK
+
+
+def _check_json(path, shown: str, catalog) -> int:
+    """``check --format json``: the answer's summary, or every problem (exit 2), on stdout."""
+    import json
+
+    from roomcalc.io.errors import RoomFileError
+    from roomcalc.present import report
+    from roomcalc.study import Study
+
+    try:
+        data = report.check_dict(Study.from_file(path, catalog).answer(), shown)
+        code = EXIT_OK
+    except RoomFileError as exc:
+        data = report.problems_dict(exc.problems, shown)
+        code = EXIT_INPUT
+    sys.stdout.write(json.dumps(data, indent=2, allow_nan=False) + "\n")
+    return code
 
 
 def _compare(args, catalog) -> int:

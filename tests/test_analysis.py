@@ -324,5 +324,6 @@ def test_compare_refuses_a_formula_the_room_after_lacks():
 def test_chosen_method_in_force_and_recommendation_kept():
     res = evaluate(box_room(alpha_walls=0.05), method="eyring")
     assert (res.method, res.recommended) == ("eyring", "sabine")
-    assert res.method_reason.startswith("chosen by the user; the recommendation was Sabine")
+    assert res.method_reason.startswith("chosen for this room (in its file or by the user); "
+                                     "the recommendation was Sabine")
     np.testing.assert_array_equal(res.rt60_in_force, res.rt60_s["eyring"])

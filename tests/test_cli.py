@@ -186,3 +186,19 @@ def test_interface_needs_a_terminal():
                          stdin=subprocess.DEVNULL)
     assert out.returncode == 2 and "needs a terminal" in out.stderr
     assert "Traceback" not in out.stderr
+
+
+def test_check_json_gives_the_formula_or_every_problem(tmp_path, capsys):
+    from conftest import EXAMPLES
+
+    code = main(["check", str(EXAMPLES / "workshop.toml"), "--format", "json"])
+    d = json.loads(capsys.readouterr().out)
+    assert code == 0 and d["ok"] and d["method"] == "eyring" and d["method_reason"]
+    assert d["counts"]["surfaces"] == 8 and d["target"]["method"] == "eyring"
+    bad = tmp_path / "bad.toml"
+    bad.write_text((EXAMPLES / "workshop.toml").read_text(encoding="utf-8")
+                   .replace("length = 12.0", "length = -12.0"), encoding="utf-8")
+    code = main(["check", str(bad), "--format", "json"])
+    d = json.loads(capsys.readouterr().out)
+    assert code == 2 and not d["ok"]
+    assert [p["field"] for p in d["problems"]] == ["shape.length"]

@@ -340,8 +340,8 @@ def _choose_method(method, recommended: str, why: str, rt, unavailable):
                          f"{unavailable[method]}")
     if method == recommended:
         return method, why
-    return method, (f"chosen by the user; the recommendation was "
-                    f"{METHOD_TITLES[recommended]} ({why})")
+    return method, ("chosen for this room (in its file or by the user); the recommendation "
+                    f"was {METHOD_TITLES[recommended]} ({why})")
 
 
 def _unreliable_findings(unreliable: dict[str, str], chosen) -> list[Finding]:

@@ -22,7 +22,7 @@ from roomcalc.present.sections import (exposure_dict, exposure_text, target_dict
 from roomcalc.study.study import Answer
 
 __all__ = ["FORMATS", "report", "report_text", "report_markdown", "report_json",
-           "report_csv", "result_dict", "answer_dict", "check_text", "compare_report",
+           "report_csv", "result_dict", "answer_dict", "check_text", "check_dict", "problems_dict", "compare_report",
            "comparison_dict", "material_dict", "materials_text"]
 
 FORMATS = ("text", "markdown", "json", "csv")
@@ -292,6 +292,30 @@ REPORTERS = {"text": report_text, "markdown": report_markdown, "json": report_js
 def report(ans: Answer, form: str, source_name: str, u: Units = METRIC) -> str:
     """The report of a room's answer in one of :data:`FORMATS`."""
     return REPORTERS[form](ans, source_name, u)
+
+
+def check_dict(ans: Answer, shown: str) -> dict:
+    """What ``roomcalc check --format json`` says of a room that passed its checks (SI)."""
+    room, res = ans.room, ans.result
+    data = {"file": shown, "ok": True,
+            "counts": {"surfaces": len(room.surfaces), "objects": len(room.objects),
+                       "sources": len(room.sources), "receivers": len(room.receivers)},
+            "method": res.method, "method_reason": res.method_reason,
+            "recommended": res.recommended,
+            "warnings": [{"code": w.code, "message": w.message} for w in res.warnings],
+            "cautions": list(res.cautions)}
+    if ans.target is not None:
+        data["target"] = target_dict(ans.target)
+    if ans.exposures:
+        data["exposure"] = exposure_dict(ans.exposures)
+    return data
+
+
+def problems_dict(problems, shown: str) -> dict:
+    """Every problem of a refused file, for ``check --format json``."""
+    return {"file": shown, "ok": False,
+            "problems": [{"file": p.file, "field": p.where, "message": p.message}
+                         for p in problems]}
 
 
 def check_text(ans: Answer, shown: str) -> str:

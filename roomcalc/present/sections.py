@@ -192,7 +192,8 @@ def plan_dict(run: PlanRun, u: Units = METRIC) -> dict:
         items.append(d)
     area, units = _totals(run)
     lo, hi = run.goals.rt60_min, run.goals.rt60_max
-    return {"feasible": p.feasible, "method": p.method, "objective": p.objective,
+    return {"feasible": p.feasible, "method": p.method,
+            "method_reason": run.described_before.method_reason, "objective": p.objective,
             "currency": run.currency, "items": items, "total_cost": p.total_cost,
             "total_area_m2": area, "total_units": units,
             "occupancy": occupancy_dict(run.occupancy),

@@ -7,8 +7,6 @@ reports upward with messages; the screen makes the plan and changes the room.
 
 from __future__ import annotations
 
-import math
-
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, VerticalScroll
@@ -25,10 +23,6 @@ OWN = "own"            # the criterion option for the room file's own limits
 NONE = "none"          # no RT target
 #: The formulas offered, Eyring first (the one a plan uses when the room file names none).
 METHOD_ORDER = METHODS
-
-
-def _f(x, nd=2) -> str:
-    return "-" if x is None or not math.isfinite(float(x)) else f"{float(x):.{nd}f}"
 
 
 class PlanRtTable(BandTable):

@@ -3,8 +3,6 @@ warnings and cautions. They are told what to show; they never compute."""
 
 from __future__ import annotations
 
-import math
-
 from rich.text import Text
 from textual.widgets import Static
 
@@ -12,10 +10,7 @@ from roomcalc.tui.widgets.grid import CellGrid
 
 from roomcalc.engine.analysis import METHOD_TITLES, METHODS, Comparison, RoomResult
 from roomcalc.io.units import METRIC, Units
-
-
-def _f(x, nd=2) -> str:
-    return "-" if x is None or not math.isfinite(x) else f"{x:.{nd}f}"
+from roomcalc.present.numbers import fmt
 
 
 class BandTable(CellGrid):
@@ -43,9 +38,9 @@ class BandTable(CellGrid):
         self._bands = bands
 
     def _row(self, label, values, nd=2, extra=None, style: str = "") -> None:
-        cells = [label] + [_f(float(v), nd) for v in values]
+        cells = [label] + [fmt(float(v), nd) for v in values]
         if self.extra:
-            cells.append("" if extra is None else _f(extra, 1))
+            cells.append("" if extra is None else fmt(extra, 1))
         self._pending.append(cells)
         self._pending_styles.append(style)
 
