@@ -438,3 +438,43 @@ async def test_file_and_help_keys_are_the_apps_actions(room_file, catalog):
         assert palette["Open room file"] == app.action_open
         assert palette["New room"] == app.action_new
         assert palette["Save as"] == app.action_save_as
+
+
+async def test_formula_choice_is_used_everywhere_and_before_after_keeps_its_own(
+        room_file, catalog, engine, screen_tables):
+    """The room form's formula choice puts that formula in force (the table's marker, the
+    file), and Before/after compares by the pinned room's formula, not the one chosen later."""
+    from textual.widgets import Select
+
+    from roomcalc.engine.analysis import compare
+
+    path = room_file("garage-studio.toml")
+    app = _app(path, catalog)
+    async with app.run_test(size=SIZE) as pilot:
+        await _ready(pilot)
+        screen = app.screen
+        pinned = screen.result
+        await pilot.press("p")
+        await pilot.press("1")
+        await pilot.pause()
+        assert screen.query_one("#f-method", Select).value == "recommended"
+        screen.query_one("#f-method", Select).value = "arau_puchades"
+        await pilot.pause()
+        assert screen.document.spec.method == "arau_puchades"
+        assert screen.result.method == "arau_puchades"
+        reverb = screen_tables.reverb(app)
+        assert reverb["in_force"][0] == engine.titles["arau_puchades"]
+        # The file would say so.
+        assert 'method = "arau_puchades"' in screen.document.text
+        await pilot.press("f8")
+        await pilot.pause()
+        await pilot.pause()
+        head = screen_tables.text(app, "#compare-head")
+        assert f"RT60 by {engine.titles[pinned.method]}" in head
+        cmp = compare(pinned, engine.result(screen.document.spec))
+        assert cmp.method == pinned.method
+        # Back to the recommendation: the file names no formula.
+        await pilot.press("1")
+        screen.query_one("#f-method", Select).value = "recommended"
+        await pilot.pause()
+        assert screen.document.spec.method is None and screen.result.method == pinned.method

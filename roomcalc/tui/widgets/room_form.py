@@ -62,12 +62,12 @@ class RoomForm(VerticalScroll):
             yield Input(id="f-title")
             yield Static("")
             yield Label("Units")
-            yield Select([("metric (m, m^2, degC)", "metric"),
-                          ("imperial (ft, ft^2, degF)", "imperial")],
+            yield Select([("metric (m, degC)", "metric"),
+                          ("imperial (ft, degF)", "imperial")],
                          allow_blank=False, value="metric", id="f-units")
             yield Static("")
             yield Label("RT formula")
-            yield Select([("recommended for the room", RECOMMENDED)] +
+            yield Select([("recommended", RECOMMENDED)] +
                          [(METHOD_TITLES[k], k) for k in METHODS],
                          allow_blank=False, value=RECOMMENDED, id="f-method",
                          tooltip="The formula in force: every result, the target check, the "
