@@ -74,27 +74,27 @@ def _assessment_lines(check: TargetCheck, described, width) -> list[str]:
     lines = []
     if math.isfinite(a.nominal_s):
         lines.append(f"  nominal target {a.nominal_s:.2f} s")
-    head = f"  {'band':>6} {'min [s]':>8} {'max [s]':>8} {'estimate':>9}"
+    head = f"  {'band':>5} {'min [s]':>7} {'max [s]':>7} {'estimate':>8}"
     if show_described:
-        head += f" {'described':>9}"
-    lines.append(head + f" {'margin':>7}  verdict")
+        head += f" {'as given':>8}"
+    lines.append(head + f" {'margin':>6}  verdict")
     rt_described = described.rt60_s[check.method] if show_described else None
     for i, b in enumerate(a.bands_hz):
         if not a.in_assessment[i]:
             continue
         verdict = "in the mean" if mean and a.band_status[i] == "not-assessed" \
             else a.band_status[i]
-        row = (f"  {band_label(b):>6} {fmt(a.target_min_s[i]):>8} {fmt(a.target_max_s[i]):>8} "
-               f"{fmt(a.estimate_s[i]):>9}")
+        row = (f"  {band_label(b):>5} {fmt(a.target_min_s[i]):>7} {fmt(a.target_max_s[i]):>7} "
+               f"{fmt(a.estimate_s[i]):>8}")
         if show_described:
-            row += f" {fmt(rt_described[i]):>9}"
-        lines.append(row + f" {fmt(a.margin_s[i]):>7}  {verdict}")
+            row += f" {fmt(rt_described[i]):>8}"
+        lines.append(row + f" {fmt(a.margin_s[i]):>6}  {verdict}")
     if mean:
         lines.append(f"  mean of the assessed bands {a.mean_s:.2f} s against "
                      f"{window_text(a.mean_min_s, a.mean_max_s)}, margin "
                      f"{a.mean_margin_s:+.2f} s: {a.mean_status}")
     if show_described:
-        lines.append(wrap(f"(estimate: {check.occupancy.label}; described: the room as its "
+        lines.append(wrap(f"(estimate: {check.occupancy.label}; as given: the room as its "
                           "file gives it; the verdict is for the estimate)", "  ", "   ",
                           width=width))
     lines.append(f"  overall: {a.status}")

@@ -195,6 +195,9 @@ class PlanView(VerticalScroll):
         head = ("The plan meets the target." if p.feasible
                 else "No plan meets the target; the best partial plan is shown.")
         head += f"  Total {p.total_cost:.2f}{cur} for {totals}."
+        if run.occupancy.share is not None:
+            head += (f" Times are for the room {run.occupancy.label}, as the criterion "
+                     "assesses it.")
         if not p.items:
             head = ("The room already meets its target: nothing to add." if p.feasible
                     else "No candidate helps.")
