@@ -324,7 +324,9 @@ def check_text(ans: Answer, shown: str) -> str:
     counts = ", ".join(plural(n, w) for n, w in (
         (len(room.surfaces), "surface"), (len(room.objects), "object"),
         (len(room.sources), "source"), (len(room.receivers), "receiver")))
-    out = [f"{shown}: ok ({counts}); RT60 by {METHOD_TITLES[ans.method]}, the formula in force"]
+    out = [f"{shown}: ok ({counts})",
+           wrap(f"RT60 by {METHOD_TITLES[ans.method]}, the formula in force: "
+                f"{ans.result.method_reason}.", "  ", "    ")]
     out += [wrap(w.message, "  warning: ", "    ") for w in ans.result.warnings]
     text = "\n".join(out) + "\n"
     if ans.target is not None:

@@ -217,8 +217,8 @@ def plan_levels(run: PlanRun) -> list[tuple[str, float, float]]:
 def plan_text(run: PlanRun, u: Units = METRIC, width=None) -> str:
     p = run.plan
     status = "meets the target" if p.feasible else "CANNOT meet the target"
-    lines = [wrap(f"Treatment plan ({status}; least {p.objective}; RT60 by "
-                  f"{METHOD_TITLES.get(p.method, p.method)}, the formula in force)", "", "  ",
+    lines = [wrap(f"Treatment plan: {status}; least {p.objective}; RT60 by "
+                  f"{METHOD_TITLES.get(p.method, p.method)} (in force)", "", "  ",
                   width=width)]
     if run.occupancy.share is not None:
         lines.append(wrap(f"made for the room as the criterion assesses it: "
