@@ -7,8 +7,8 @@ Layers: ``roomcalc.engine`` <- ``roomcalc.io`` <- ``roomcalc.study`` <- ``roomca
 """
 
 from roomcalc.study.assessment import (LevelCheck, Occupancy, PlanRun, TargetCheck, exposures,
-                                       make_plan, target_check, window_of)
+                                       make_plan, target_check)
 from roomcalc.study.study import Answer, Study
 
 __all__ = ["Answer", "LevelCheck", "Occupancy", "PlanRun", "Study", "TargetCheck",
-           "exposures", "make_plan", "target_check", "window_of"]
+           "exposures", "make_plan", "target_check"]

@@ -13,6 +13,7 @@ the engine's numbers for one room, put together the same way for every front end
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
 import numpy as np
 
@@ -21,12 +22,13 @@ from roomcalc.engine.bands import a_weighted_total
 from roomcalc.engine.criteria import Assessment, Criterion, assess, user_window
 from roomcalc.engine.exposure import ExposureSummary, day_periods, exposure_summary
 from roomcalc.engine.model import Room, at_occupancy
-from roomcalc.engine.planner import Candidate, Goals, Plan
-from roomcalc.io.planning import resolve_candidates, resolve_goals, work_patterns
 from roomcalc.io.roomfile import RoomSpec, limit_values
 
+if TYPE_CHECKING:   # the planner is imported when a plan is made (a report need not load it)
+    from roomcalc.engine.planner import Candidate, Goals, Plan
+
 __all__ = ["Occupancy", "LevelCheck", "TargetCheck", "PlanRun", "criterion_of", "occupancy_for",
-           "target_check", "exposures", "make_plan", "window_of"]
+           "target_check", "exposures", "make_plan"]
 
 
 @dataclass(frozen=True, eq=False)
@@ -165,6 +167,10 @@ def exposures(spec: RoomSpec, result: RoomResult) -> dict[str, ExposureSummary]:
     """Each receiver with a working pattern (``hours``): its day by every rule in
     :mod:`roomcalc.engine.exposure`, from each source's A-weighted level at it."""
     out = {}
+    if not any(r.hours is not None for r in spec.receivers):
+        return out
+    from roomcalc.io.planning import work_patterns
+
     by_name = {r.name: r for r in result.receivers}
     for name, (hours, source_hours) in work_patterns(spec).items():
         r = by_name.get(name)
@@ -187,6 +193,7 @@ def make_plan(spec: RoomSpec, room: Room, result: RoomResult, catalog, criteria:
     names of the candidates to use, None = all). Raises RoomFileError when the target or a
     candidate cannot be resolved, ValueError when there is nothing to plan with."""
     from roomcalc.engine.planner import apply_to_room, plan
+    from roomcalc.io.planning import resolve_candidates, resolve_goals
 
     method = result.method
     goals = resolve_goals(spec, room, criteria, method=method, filename=filename)
@@ -210,10 +217,3 @@ def make_plan(spec: RoomSpec, room: Room, result: RoomResult, catalog, criteria:
                                    reverberant_model=result.reverberant_model, method=method)
     return PlanRun(p, tuple(cands), spec.target.currency or "", before, treated, goals, occ,
                    result, described_after)
-
-
-def window_of(goals: Goals) -> tuple:
-    """(rt60_min, rt60_max) arrays of a Goals, for showing beside a plan."""
-    def arr(x):
-        return None if x is None else np.asarray(x, dtype=float)
-    return arr(goals.rt60_min), arr(goals.rt60_max)

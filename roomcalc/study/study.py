@@ -26,7 +26,6 @@ from roomcalc.engine.exposure import ExposureSummary
 from roomcalc.engine.model import Room
 from roomcalc.io.catalog import Catalog
 from roomcalc.io.errors import Problem, RoomFileError
-from roomcalc.io.planning import apply_plan
 from roomcalc.io.roomfile import RoomSpec, check_room, read_room
 from roomcalc.study.assessment import (PlanRun, TargetCheck, exposures, make_plan,
                                        target_check)
@@ -145,6 +144,8 @@ class Study:
 
     def treated_spec(self, run: PlanRun) -> RoomSpec:
         """A copy of the spec with the plan's treatment added (for saving or applying)."""
+        from roomcalc.io.planning import apply_plan
+
         return apply_plan(self.spec, run.plan, list(run.candidates))
 
     @staticmethod
