@@ -17,7 +17,7 @@ class RtPlot(Chart):
 
     def show(self, res: RoomResult, stale: bool = False) -> None:
         x = list(range(len(res.bands_hz)))
-        series = [Series(METHOD_TITLES[k] + (" (used)" if k == res.method else ""), x,
+        series = [Series(METHOD_TITLES[k] + (" (in force)" if k == res.method else ""), x,
                          [float(v) for v in res.rt60_s[k]], heavy=k == res.method)
                   for k in METHODS if k in res.rt60_s]
         top = max(float(np.max(v)) for v in res.rt60_s.values()) * 1.15
