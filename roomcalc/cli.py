@@ -183,10 +183,9 @@ def _report(args, catalog) -> int:
 
 def _check_json(path, shown: str, catalog) -> int:
     """``check --format json``: the answer's summary, or every problem (exit 2), on stdout."""
-    import json
-
     from roomcalc.io.errors import RoomFileError
     from roomcalc.present import report
+    from roomcalc.present.numbers import json_text
     from roomcalc.study import Study
 
     try:
@@ -195,7 +194,7 @@ def _check_json(path, shown: str, catalog) -> int:
     except RoomFileError as exc:
         data = report.problems_dict(exc.problems, shown)
         code = EXIT_INPUT
-    sys.stdout.write(json.dumps(data, indent=2, allow_nan=False) + "\n")
+    sys.stdout.write(json_text(data))
     return code
 
 
@@ -222,9 +221,8 @@ def _compare(args, catalog) -> int:
 
 
 def _plan(args, catalog) -> int:
-    import json
-
     from roomcalc.present import sections
+    from roomcalc.present.numbers import json_text
     from roomcalc.study import Study
 
     study = Study.from_file(args.file, catalog)
@@ -242,7 +240,7 @@ def _plan(args, catalog) -> int:
         data = sections.plan_dict(run, u)
         if args.write:
             data["written"] = str(args.write)
-        sys.stdout.write(json.dumps(data, indent=2, allow_nan=False) + "\n")
+        sys.stdout.write(json_text(data))
     else:
         sys.stdout.write(sections.plan_text(run, u))
         if answer.exposures:

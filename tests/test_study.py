@@ -244,3 +244,23 @@ def test_distance_picture_points_are_each_receivers_level_from_that_source(catal
     assert pic.band_index == list(res.bands_hz).index(500)
     with pytest.raises(ValueError, match="not a band"):
         distance_picture(res, saw, 333)
+
+
+def test_quiet_workers_give_strict_json_and_words_not_infinity(catalog, tmp_path):
+    # Common practice (OSHA 29 CFR 1910.95): the TWA of a dose of 0 % has no value (-inf from
+    # the formula); outputs must not print -inf nor write -Infinity into JSON.
+    text = (paths.example_rooms_dir() / "workshop.toml").read_text(encoding="utf-8")
+    quiet = text.replace("[95.0, 98.0, 101.0, 102.0, 100.0, 96.0]",
+                         "[45.0, 48.0, 51.0, 52.0, 50.0, 46.0]").replace(
+        "[93.0, 97.0, 100.0, 101.0, 99.0, 97.0]", "[43.0, 47.0, 50.0, 51.0, 49.0, 47.0]")
+    assert quiet != text
+    path = tmp_path / "quiet.toml"
+    path.write_text(quiet, encoding="utf-8")
+    study = Study.from_file(path, catalog)
+    ans = study.answer()
+    assert any(not math.isfinite(d.osha_twa_dba) for d in ans.exposures.values())
+    data = json.loads(report.report(ans, "json", "quiet.toml"),
+                      parse_constant=lambda c: pytest.fail(f"{c} in JSON"))
+    assert all(v["osha_twa_dba"] is None for v in data["exposure"].values())
+    out = report.report(ans, "text", "quiet.toml")
+    assert "inf" not in out and "below the range of the formula" in out

@@ -7,7 +7,8 @@ import textwrap
 
 import numpy as np
 
-__all__ = ["WIDTH", "fmt", "band_label", "wrap", "floats", "finite_or_none", "plural"]
+__all__ = ["WIDTH", "fmt", "band_label", "wrap", "floats", "finite_or_none", "plural",
+           "json_text"]
 
 #: Width of the text reports [characters].
 WIDTH = 80
@@ -54,3 +55,21 @@ def finite_or_none(a) -> list:
 def plural(n: int, word: str, many: str | None = None) -> str:
     """"1 surface", "2 surfaces"."""
     return f"{n:g} {word if n == 1 else (many or word + 's')}"
+
+
+def _strict(obj):
+    if isinstance(obj, float):
+        return obj if math.isfinite(obj) else None
+    if isinstance(obj, dict):
+        return {k: _strict(v) for k, v in obj.items()}
+    if isinstance(obj, (list, tuple)):
+        return [_strict(v) for v in obj]
+    return obj
+
+
+def json_text(data) -> str:
+    """Strict JSON (RFC 8259): a value a formula has none for (NaN, or an infinity such as the
+    OSHA TWA of a quiet day) is written as null, never as NaN or Infinity."""
+    import json
+
+    return json.dumps(_strict(data), indent=2, allow_nan=False) + "\n"

@@ -11,12 +11,11 @@ from __future__ import annotations
 
 import csv
 import io
-import json
 
 from roomcalc.engine.analysis import METHOD_TITLES, METHODS, Comparison, RoomResult
 from roomcalc.io.catalog import Material
 from roomcalc.io.units import METRIC, Units
-from roomcalc.present.numbers import WIDTH, floats, fmt, plural, wrap
+from roomcalc.present.numbers import WIDTH, floats, fmt, json_text, plural, wrap
 from roomcalc.present.sections import (exposure_dict, exposure_text, target_dict,
                                        target_text)
 from roomcalc.study.study import Answer
@@ -227,7 +226,7 @@ def answer_dict(ans: Answer) -> dict:
 
 
 def report_json(ans: Answer, source_name: str = "", u: Units = METRIC) -> str:
-    return json.dumps(answer_dict(ans), indent=2, allow_nan=False) + "\n"
+    return json_text(answer_dict(ans))
 
 
 def report_csv(ans: Answer, source_name: str = "", u: Units = METRIC) -> str:
@@ -386,7 +385,7 @@ def _compare_tables(cmp: Comparison):
 def compare_report(cmp: Comparison, names: tuple[str, str], form: str = "text") -> str:
     """Before and after in one of :data:`FORMATS`, by the before room's formula in force."""
     if form == "json":
-        return json.dumps(comparison_dict(cmp), indent=2, allow_nan=False) + "\n"
+        return json_text(comparison_dict(cmp))
     if form == "csv":
         buf = io.StringIO()
         w = csv.writer(buf, lineterminator="\n")
@@ -433,7 +432,7 @@ def material_dict(m: Material) -> dict:
 
 def materials_text(mats: list[Material], form: str = "text") -> str:
     if form == "json":
-        return json.dumps([material_dict(m) for m in mats], indent=2) + "\n"
+        return json_text([material_dict(m) for m in mats])
     if form == "csv":
         buf = io.StringIO()
         w = csv.writer(buf, lineterminator="\n")

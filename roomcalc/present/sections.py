@@ -137,7 +137,9 @@ def exposure_text(days: dict[str, ExposureSummary], after: dict | None = None,
         lines.append(f"  {name}: {d.total_hours:g} h; LAeq {d.laeq_dba:.1f} dB(A), "
                      f"LEX,8h {d.lex_8h_dba:.1f} dB(A)")
         lines.append(wrap(f"EU 2003/10/EC: {d.eu.label}", "    ", "    ", width=width))
-        lines.append(wrap(f"OSHA dose {d.osha_dose_percent:.0f} % (TWA {d.osha_twa_dba:.1f} dBA"
+        twa = (f"{d.osha_twa_dba:.1f} dBA" if math.isfinite(d.osha_twa_dba)
+               else "below the range of the formula")
+        lines.append(wrap(f"OSHA dose {d.osha_dose_percent:.0f} % (TWA {twa}"
                           f"{', action level reached' if d.osha_action_level_reached else ''}"
                           f"{', PEL exceeded' if d.osha_pel_exceeded else ''}); NIOSH dose "
                           f"{d.niosh_dose_percent:.0f} %"
