@@ -478,3 +478,42 @@ async def test_formula_choice_is_used_everywhere_and_before_after_keeps_its_own(
         screen.query_one("#f-method", Select).value = "recommended"
         await pilot.pause()
         assert screen.document.spec.method is None and screen.result.method == pinned.method
+
+
+async def test_units_switch_gives_the_treatments_table_its_new_keys(room_file, catalog,
+                                                                    screen_tables):
+    """After switching a metric room to imperial, the Treatments table asks for a cost per ft^2
+    and a typed cost lands in that key (the room stays valid), whether the table was shown
+    before the switch or not."""
+    from textual.widgets import Select
+
+    from roomcalc.tui.widgets.record_table import RecordTable
+
+    app = _app(room_file("workshop.toml"), catalog)
+    async with app.run_test(size=SIZE) as pilot:
+        await _ready(pilot)
+        screen = app.screen
+        await pilot.press("1")
+        await pilot.pause()
+        screen.query_one("#f-units", Select).value = "imperial"
+        await pilot.pause()
+        assert screen.document.spec.units == "imperial" and not screen.stale
+        await pilot.press("6")
+        await pilot.pause()
+        await pilot.pause()
+        table = screen.query_one("#t-candidates", RecordTable)
+        keys = [c.key for c in table.columns]
+        assert "cost_per_ft2" in keys and "cost_per_m2" not in keys
+        heads = [str(c.label) for c in
+                 screen.query_one("#t-candidates #table", screen_tables.CellGrid).columns.values()]
+        assert any("ft^2" in h for h in heads) and not any("m^2" in h for h in heads), heads
+        # The cover candidates' costs were converted to the same money per ft^2.
+        cover = screen.document.spec.candidates[0]
+        assert cover.cost_per_ft2 is not None and cover.cost_per_m2 is None
+        # Back to metric (undo): the columns follow again.
+        await pilot.press("ctrl+z")
+        await pilot.pause()
+        await pilot.pause()
+        assert screen.document.spec.units == "metric"
+        assert "cost_per_m2" in [c.key for c in table.columns]
+        assert not screen.stale

@@ -96,6 +96,8 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
         self.last_update_s = 0.0       # engine + check time of the last recompute [s]
         self._unparsed: dict[str, str] = {}    # room-form fields holding text, not a number
         self._needs_form_refresh = False       # the next change rewrites the room form too
+        self._record_tables: dict[str, RecordTable] = {}     # by collection, mounted or not
+        self._columns_units = document.spec.units  # the units the tables' columns are for
         self._form_dirty = False               # the room form waits for its tab to be shown
         self._tables_dirty: set[str] = set()   # tables waiting for their tab to be shown
         self._views_dirty: set[str] = set()    # result tabs waiting to be shown
@@ -120,6 +122,7 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
                             table = RecordTable(coll, self.columns.of(coll),
                                                 help_text=ROW_HELP,
                                                 describe=self.columns.describe, id=f"t-{coll}")
+                            self._record_tables[coll] = table
                             yield table if coll == "surfaces" else Deferred(table)
             with Vertical(id="right"):
                 with TabbedContent(id="view"):
@@ -154,6 +157,12 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
     def _refresh_tables(self, every: bool = False) -> None:
         """Redraw the table of the visible tab (the others when they are shown)."""
         nb = len(self.document.spec.bands)
+        if self.document.spec.units != self._columns_units:
+            # Other units: other headings and keys (a cost per m^2 or per ft^2), in every
+            # table, shown or not yet mounted.
+            self._columns_units = self.document.spec.units
+            for coll, table in self._record_tables.items():
+                table.set_columns(self.columns.of(coll))
         active = self.query_one("#edit", TabbedContent).active
         self._tables_dirty = set(EDIT_TABS[1:])
         for coll in EDIT_TABS[1:]:

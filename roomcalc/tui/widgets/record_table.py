@@ -175,6 +175,18 @@ class RecordTable(Vertical):
             table.add_column(col.label, key=col.key, width=col.width)
 
     # ---------------------------------------------------------------- downward
+    def set_columns(self, columns: list[Column]) -> None:
+        """Other columns (the room's units changed: other keys and headings). Before the table
+        is mounted this only replaces the list it will be built from."""
+        self.columns = columns
+        if not self.is_mounted:
+            return
+        table = self.query_one("#table", CellGrid)
+        table.clear(columns=True)
+        for col in self.columns:
+            table.add_column(col.label, key=col.key, width=col.width)
+        self.records = []
+
     def set_records(self, records: list, annotations: dict | None = None) -> None:
         """Show these records (keeps the cursor where it was when it can)."""
         self.records = records
