@@ -171,8 +171,8 @@ def change_bands(spec: RoomSpec, bands, catalog: Catalog | None = None) -> list[
 
     Removed bands are dropped from every list; an added band repeats the nearest band's
     value. A catalogue material with no value at an added band is replaced by its own values
-    (the nearest band repeated) so the room stays valid; the returned notes name each such
-    item, so the user can check the values. ``bands`` equal to the default bands is stored as
+    (the nearest band repeated) so the room stays valid; the returned note (one line) names
+    those items and materials, so the user can check the values. ``bands`` equal to the default bands is stored as
     None (the file then omits ``bands_hz``).
     """
     old = list(spec.bands)
@@ -185,7 +185,7 @@ def change_bands(spec: RoomSpec, bands, catalog: Catalog | None = None) -> list[
     def fix(vals):
         return nearest_band_fill(vals, old, new)
 
-    notes: list[str] = []
+    converted: dict[str, list[str]] = {}        # material id -> items now holding its values
     added = [b for b in new if b not in old]
     for coll in ("surfaces", "objects", "candidates"):
         for i, item in enumerate(getattr(spec, coll)):
@@ -196,10 +196,9 @@ def change_bands(spec: RoomSpec, bands, catalog: Catalog | None = None) -> list[
             # unit on an object or a candidate added as units.
             own = "alpha" if coll == "surfaces" or (coll == "candidates" and item.surface) \
                 else "absorption"
-            note = _material_to_own(spec, item, own, catalog, new, added,
-                                    f"{coll}[{i}] '{item.name}'")
-            if note:
-                notes.append(note)
+            mid = _material_to_own(spec, item, own, catalog, new, added)
+            if mid:
+                converted.setdefault(mid, []).append(f"'{item.name}'")
     for s in spec.sources:
         s.sound_power = fix(s.sound_power)
     t = spec.target
@@ -207,11 +206,20 @@ def change_bands(spec: RoomSpec, bands, catalog: Catalog | None = None) -> list[
         t.rt60_max = _limit_fix(t.rt60_max, old, new)
         t.rt60_min = _limit_fix(t.rt60_min, old, new)
         t.max_level_db = {k: _limit_fix(v, old, new) for k, v in t.max_level_db.items()}
-    return notes
+    if not converted:
+        return []
+    items = [name for names in converted.values() for name in names]
+    shown = ", ".join(items[:6]) + (f" and {len(items) - 6} more" if len(items) > 6 else "")
+    return [f"{len(items)} item{'s' if len(items) != 1 else ''} ({shown}) used "
+            f"material{'s' if len(converted) != 1 else ''} with no value at "
+            f"{', '.join(f'{b:g} Hz' for b in added)} ({', '.join(converted)}): "
+            "the catalogue's values are now their own, with the nearest band repeated there. "
+            "Check them against a test report."]
 
 
-def _material_to_own(spec, item, key, catalog, new, added, where) -> str | None:
-    """Replace a material that lacks an added band by its own values (nearest band repeated)."""
+def _material_to_own(spec, item, key, catalog, new, added) -> str | None:
+    """Replace a material that lacks an added band by its own values (nearest band repeated);
+    returns the material's id when it did."""
     mid = getattr(item, "material", None)
     if not mid or not added or catalog is None:
         return None
@@ -227,9 +235,7 @@ def _material_to_own(spec, item, key, catalog, new, added, where) -> str | None:
               for b in new]
     item.material = None
     setattr(item, key, values)
-    return (f"{where}: '{mid}' gives no value at {', '.join(f'{b:g} Hz' for b in lacking)}; "
-            "its values are now the item's own, with the nearest band repeated there. Check "
-            "them against a test report.")
+    return mid
 
 
 def _limit_fix(limit, old, new):

@@ -517,3 +517,30 @@ async def test_units_switch_gives_the_treatments_table_its_new_keys(room_file, c
         assert screen.document.spec.units == "metric"
         assert "cost_per_m2" in [c.key for c in table.columns]
         assert not screen.stale
+
+
+async def test_adding_63_hz_keeps_the_workshop_valid(room_file, catalog):
+    """Adding the 63 Hz band in the Room tab extends every per-band list (sources, candidates,
+    target limits) and turns catalogue materials without a 63 Hz value into own values, so the
+    room is not left invalid; the user is told which."""
+    from textual.widgets import Checkbox
+
+    app = _app(room_file("workshop.toml"), catalog)
+    async with app.run_test(size=SIZE) as pilot:
+        await _ready(pilot)
+        screen = app.screen
+        await pilot.press("1")
+        await pilot.pause()
+        screen.query_one("#f-63", Checkbox).value = True
+        await pilot.pause()
+        spec = screen.document.spec
+        assert spec.bands[0] == 63
+        assert not screen.stale, screen.problems
+        assert screen.result.bands_hz[0] == 63
+        assert all(len(s.sound_power) == 7 for s in spec.sources if s.sound_power)
+        assert all(len(c.absorption) == 7 for c in spec.candidates if c.absorption)
+        notes = [n.message for n in app._notifications]
+        assert any("63 Hz" in m and "nearest band" in m for m in notes), notes
+        await pilot.press("ctrl+z")
+        await pilot.pause()
+        assert screen.document.spec.bands[0] == 125 and not screen.stale
