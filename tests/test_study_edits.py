@@ -162,3 +162,31 @@ def test_criterion_and_own_limit_exclude_each_other():
                        ("25", "at most 20 s")):
         with pytest.raises(ValueError, match=words):
             parse_rt60_limit(bad, 6)
+
+
+def test_people_stay_people_when_a_band_is_added(catalog):
+    # The classroom's pupils at desks are people (catalogue mark); their material has no
+    # 63 Hz value, so adding 63 Hz gives them own values: they must still count as people.
+    spec = _example("classroom.toml")
+    change_bands(spec, [63, 125, 250, 500, 1000, 2000, 4000], catalog)
+    pupils = next(o for o in spec.objects if o.name == "Pupils at desks")
+    assert pupils.material is None and pupils.occupant is True
+    room = check_room(spec, catalog)
+    assert next(o for o in room.objects if o.name == "Pupils at desks").occupant
+
+
+def test_a_voice_given_in_dba_keeps_its_band_powers_when_63_hz_is_added(catalog):
+    from roomcalc.engine.spectra import band_power_from_dba
+
+    spec = _example("classroom.toml")
+    voice = spec.sources[0]
+    dba, shape, old = voice.sound_power_dba, voice.spectrum, list(spec.bands)
+    notes = change_bands(spec, [63] + old, catalog)
+    assert voice.sound_power_dba is None and voice.spectrum is None
+    # Source: the shape's own band powers (IEC 61672-1 A-weighting in band_power_from_dba),
+    # to 0.05 dB as stored, the 63 Hz value repeating 125 Hz.
+    lw = band_power_from_dba(dba, shape, old)
+    np.testing.assert_allclose(voice.sound_power[1:], lw, atol=0.05)
+    assert voice.sound_power[0] == voice.sound_power[1]
+    assert any(f"spectrum '{shape}'" in n for n in notes)
+    check_room(spec, catalog)

@@ -24,6 +24,7 @@ from __future__ import annotations
 import math
 
 from roomcalc.engine.bands import DEFAULT_BANDS_HZ
+from roomcalc.engine.spectra import SPECTRUM_SHAPES, band_power_from_dba
 from roomcalc.io.catalog import Catalog
 from roomcalc.io.planning import convert_candidate_units
 from roomcalc.io.roomfile import RoomSpec, TargetSpec
@@ -201,6 +202,9 @@ def change_bands(spec: RoomSpec, bands, catalog: Catalog | None = None) -> list[
                 converted.setdefault(mid, []).append(f"'{item.name}'")
     for s in spec.sources:
         s.sound_power = fix(s.sound_power)
+        shape = _spectrum_to_own(s, old, new, added)
+        if shape:
+            converted.setdefault(f"spectrum '{shape}'", []).append(f"'{s.name}'")
     t = spec.target
     if t is not None:
         t.rt60_max = _limit_fix(t.rt60_max, old, new)
@@ -211,10 +215,26 @@ def change_bands(spec: RoomSpec, bands, catalog: Catalog | None = None) -> list[
     items = [name for names in converted.values() for name in names]
     shown = ", ".join(items[:6]) + (f" and {len(items) - 6} more" if len(items) > 6 else "")
     return [f"{len(items)} item{'s' if len(items) != 1 else ''} ({shown}) used "
-            f"material{'s' if len(converted) != 1 else ''} with no value at "
+            f"catalogue or spectrum data with no value at "
             f"{', '.join(f'{b:g} Hz' for b in added)} ({', '.join(converted)}): "
             "the catalogue's values are now their own, with the nearest band repeated there. "
             "Check them against a test report."]
+
+
+def _spectrum_to_own(source, old, new, added) -> str | None:
+    """A source given in dB(A) whose spectrum shape has no value at an added band gets its
+    band powers as its own (the shape's, at the old bands; the nearest band repeated).
+    Returns the shape's name when it did."""
+    shape = source.spectrum
+    if source.sound_power_dba is None or not shape or not added:
+        return None
+    table = SPECTRUM_SHAPES.get(shape, {})
+    if all(b in table for b in added):
+        return None
+    lw = band_power_from_dba(source.sound_power_dba, shape, old)
+    source.sound_power = nearest_band_fill([round(float(x), 1) for x in lw], old, new)
+    source.sound_power_dba = source.spectrum = None
+    return shape
 
 
 def _material_to_own(spec, item, key, catalog, new, added) -> str | None:
@@ -235,6 +255,8 @@ def _material_to_own(spec, item, key, catalog, new, added) -> str | None:
               for b in new]
     item.material = None
     setattr(item, key, values)
+    if m.occupant and hasattr(item, "occupant") and item.occupant is None:
+        item.occupant = True        # still people: it leaves with them when assessed empty
     return mid
 
 
