@@ -127,7 +127,6 @@ def _need_file(args, name: str):
 
 def _run(args) -> int:
     from roomcalc.io.catalog import load_catalog
-    from roomcalc.present import report
 
     catalog = load_catalog(getattr(args, "catalog", []))
 
@@ -135,8 +134,10 @@ def _run(args) -> int:
         return _interface(args, catalog)
 
     if args.command == "materials":
+        from roomcalc.present.materials import materials_text
+
         mats = catalog.search(" ".join(args.words), args.category, args.kind)
-        sys.stdout.write(report.materials_text(mats, args.format))
+        sys.stdout.write(materials_text(mats, args.format))
         return EXIT_OK
 
     if args.command == "plan":
@@ -200,7 +201,7 @@ def _check_json(path, shown: str, catalog) -> int:
 
 def _compare(args, catalog) -> int:
     from roomcalc.io import paths
-    from roomcalc.present import report
+    from roomcalc.present.compare import compare_report
     from roomcalc.study import Study
 
     if args.demo:
@@ -216,7 +217,7 @@ def _compare(args, catalog) -> int:
     # The room after is evaluated by the formula in force before, like for like.
     ra = Study.from_file(after, catalog, method=rb.method).evaluate()
     names = (Path(before).name, Path(after).name)
-    sys.stdout.write(report.compare_report(Study.compare(rb, ra), names, args.format))
+    sys.stdout.write(compare_report(Study.compare(rb, ra), names, args.format))
     return EXIT_OK
 
 

@@ -309,7 +309,7 @@ def test_compare_keeps_the_formula_in_force_before():
         t_b = k * v / (floor * 0.05 + rest * 0.05 + 4 * m[i] * v)
         t_a = k * v / (floor * 0.05 + rest * 0.5 + 4 * m[i] * v)
         assert cmp.rt60_change_in_force_s[i] == pytest.approx(t_a - t_b, rel=1e-12)
-    from roomcalc.present.report import comparison_dict
+    from roomcalc.present.compare import comparison_dict
     assert comparison_dict(cmp)["method"] == "sabine"
 
 

@@ -18,6 +18,7 @@ from roomcalc.io import paths
 from roomcalc.io.criteria import load_criteria
 from roomcalc.io.roomfile import check_room, read_spec
 from roomcalc.present import report, sections
+from roomcalc.present.compare import compare_report
 from roomcalc.study import Study
 
 
@@ -81,9 +82,9 @@ def test_compare_keeps_the_before_formula(catalog):
     assert cmp.method == before.method
     np.testing.assert_allclose(cmp.rt60_change_s[before.method],
                                after_own.rt60_s[before.method] - before.rt60_s[before.method])
-    text = report.compare_report(cmp, ("a", "b"))
+    text = compare_report(cmp, ("a", "b"))
     assert f"RT60 [s], {METHOD_TITLES[before.method]}" in text
-    assert json.loads(report.compare_report(cmp, ("a", "b"), "json"))["method"] == before.method
+    assert json.loads(compare_report(cmp, ("a", "b"), "json"))["method"] == before.method
 
 
 def test_plan_totals_keep_area_and_units_apart(catalog):

@@ -1,7 +1,8 @@
 """The report of a room in four formats: text (80 columns), markdown, JSON (SI) and CSV (SI),
 each with the same content: reverberation by every formula (the one in force marked), the room,
 critical distances, levels at receivers, the target check and the daily exposure, warnings and
-cautions. Also before/after and the material catalogue listing.
+cautions; and what ``check`` says. Before/after is in :mod:`roomcalc.present.compare`, the
+catalogue listing in :mod:`roomcalc.present.materials`.
 
 Text and markdown show lengths, areas and volumes in the room file's units; JSON and CSV are SI
 whatever the file's units.
@@ -12,61 +13,29 @@ from __future__ import annotations
 import csv
 import io
 
-from roomcalc.engine.analysis import METHOD_TITLES, METHODS, Comparison, RoomResult
-from roomcalc.io.catalog import Material
+from roomcalc.engine.analysis import METHOD_TITLES, METHODS, RoomResult
 from roomcalc.io.units import METRIC, Units
-from roomcalc.present.numbers import WIDTH, floats, fmt, json_text, plural, wrap
+from roomcalc.present.numbers import floats, json_text, plural, wrap
 from roomcalc.present.sections import (exposure_dict, exposure_text, target_dict,
                                        target_text)
+from roomcalc.present.tables import BandRows
 from roomcalc.study.study import Answer
 
 __all__ = ["FORMATS", "report", "report_text", "report_markdown", "report_json",
-           "report_csv", "result_dict", "answer_dict", "check_text", "check_dict", "problems_dict", "compare_report",
-           "comparison_dict", "material_dict", "materials_text"]
+           "report_csv", "result_dict", "answer_dict", "method_sentence", "check_text",
+           "check_dict", "problems_dict"]
 
 FORMATS = ("text", "markdown", "json", "csv")
 
 
-class _Table:
-    """Rows of a label and per-band numbers, laid out for text or markdown."""
-
-    def __init__(self, title, bands, extra=None):
-        self.title, self.bands, self.extra, self.rows = title, list(bands), extra, []
-
-    def add(self, label, values, nd=2, extra=None):
-        self.rows.append((label, [fmt(float(v), nd) for v in values],
-                          None if extra is None else fmt(extra, 1)))
-
-    def text(self) -> str:
-        w = 7 if len(self.bands) <= 6 else 6
-        lw = WIDTH - 1 - w * len(self.bands) - (7 if self.extra else 0)
-        lw = min(lw, 26)
-        head = self.title.ljust(lw) + "".join(f"{b:>{w}}" for b in self.bands) + \
-            (f"{self.extra:>7}" if self.extra else "")
-        lines = [head]
-        for label, vals, ex in self.rows:
-            label = label if len(label) <= lw - 1 else label[:lw - 2] + "~"
-            lines.append(label.ljust(lw) + "".join(f"{v:>{w}}" for v in vals) +
-                         (f"{ex or '':>7}" if self.extra else ""))
-        return "\n".join(lines)
-
-    def markdown(self) -> str:
-        cols = [self.title] + [f"{b} Hz" for b in self.bands] + ([self.extra] if self.extra else [])
-        lines = ["| " + " | ".join(cols) + " |", "|" + "---|" * len(cols)]
-        for label, vals, ex in self.rows:
-            cells = [label] + vals + ([ex or ""] if self.extra else [])
-            lines.append("| " + " | ".join(cells) + " |")
-        return "\n".join(lines)
-
-
 def _tables(res: RoomResult, u: Units):
     bands = res.bands_hz
-    rt = _Table("RT60 [s]", bands)
+    rt = BandRows("RT60 [s]", bands)
     for k in METHODS:
         if k in res.rt60_s:
             mark = " *" if k == res.method else ""
             rt.add(METHOD_TITLES[k] + mark, res.rt60_s[k])
-    room = _Table("Room", bands)
+    room = BandRows("Room", bands)
     room.add(f"Absorption A [{u.area_label}]", res.absorption_area_m2 / u.area, 1)
     room.add("Mean alpha", res.mean_alpha, 3)
     room.add("Air [dB/km]", res.air_attenuation_db_per_m * 1000.0, 2)
@@ -75,12 +44,12 @@ def _tables(res: RoomResult, u: Units):
     room.add("Schroeder f_S [Hz]", res.schroeder_hz, 0)
     rc = None
     if res.sources:
-        rc = _Table(f"Critical dist. [{u.length_label}]", bands)
+        rc = BandRows(f"Critical dist. [{u.length_label}]", bands)
         for s in res.sources:
             rc.add(f"{s.name} (Q={s.directivity:g})", s.critical_distance_m / u.length)
     lv = None
     if res.receivers:
-        lv = _Table("Lp [dB]", bands, extra="dB(A)")
+        lv = BandRows("Lp [dB]", bands, extra="dB(A)")
         for r in res.receivers:
             lv.add(f"{r.name}", r.level_db, 1, r.level_dba)
             lv.add("  direct", r.direct_db, 1, r.direct_dba)
@@ -333,140 +302,3 @@ def check_text(ans: Answer, shown: str) -> str:
     if ans.exposures:
         text += exposure_text(ans.exposures)
     return text
-
-
-# ----------------------------------------------------------------------------- compare
-
-def comparison_dict(cmp: Comparison) -> dict:
-    b, a = cmp.before, cmp.after
-    return {
-        "bands_hz": list(b.bands_hz),
-        "before": b.room.title, "after": a.room.title,
-        "method": cmp.method,
-        "method_reason": f"the formula in force for the room before: {b.method_reason}",
-        "rt60_before_s": {k: floats(v) for k, v in b.rt60_s.items()},
-        "rt60_after_s": {k: floats(v) for k, v in a.rt60_s.items()},
-        "rt60_change_s": {k: floats(v) for k, v in cmp.rt60_change_s.items()},
-        "room_constant_before_m2": floats(b.room_constant_m2),
-        "room_constant_after_m2": floats(a.room_constant_m2),
-        "reverberant_reduction_db": floats(cmp.reverberant_reduction_db),
-        "receivers": [{"name": c.name, "level_change_db": floats(c.level_change_db),
-                       "level_change_dba": c.level_change_dba,
-                       "reverberant_change_dba": c.reverberant_change_dba,
-                       "inside_critical_distance_of": c.inside_critical_distance}
-                      for c in cmp.receivers],
-        "notes": list(cmp.notes),
-        "warnings_after": [w.message for w in a.warnings],
-        "cautions_after": list(a.cautions),
-    }
-
-
-def _compare_tables(cmp: Comparison):
-    b, a = cmp.before, cmp.after
-    k = cmp.method
-    rt = _Table(f"RT60 [s], {METHOD_TITLES[k]}", b.bands_hz)
-    rt.add("before", b.rt60_s[k])
-    rt.add("after", a.rt60_s[k])
-    rt.add("change", a.rt60_s[k] - b.rt60_s[k])
-    # A change like the rows around it (negative = quieter): -10 lg(R2/R1); +0.0 avoids "-0.0".
-    rt.add("reverb. field change [dB]", -cmp.reverberant_reduction_db + 0.0, 1)
-    lv = None
-    if cmp.receivers:
-        before = {r.name: r for r in b.receivers}
-        after = {r.name: r for r in a.receivers}
-        lv = _Table("Lp [dB]", b.bands_hz, extra="dB(A)")
-        for c in cmp.receivers:
-            lv.add(f"{c.name}", before[c.name].level_db, 1, before[c.name].level_dba)
-            lv.add("  after", after[c.name].level_db, 1, after[c.name].level_dba)
-            lv.add("  change", c.level_change_db, 1, c.level_change_dba)
-    return rt, lv
-
-
-def compare_report(cmp: Comparison, names: tuple[str, str], form: str = "text") -> str:
-    """Before and after in one of :data:`FORMATS`, by the before room's formula in force."""
-    if form == "json":
-        return json_text(comparison_dict(cmp))
-    if form == "csv":
-        buf = io.StringIO()
-        w = csv.writer(buf, lineterminator="\n")
-        w.writerow(["quantity", "item", "unit"] + [str(x) for x in cmp.before.bands_hz] + ["dBA"])
-        for k, v in cmp.rt60_change_s.items():
-            w.writerow(["rt60_change", k, "s"] + [f"{x:.6g}" for x in v] + [""])
-        w.writerow(["reverberant_reduction", "room", "dB"] +
-                   [f"{x:.6g}" for x in cmp.reverberant_reduction_db] + [""])
-        for c in cmp.receivers:
-            w.writerow(["level_change", c.name, "dB"] + [f"{x:.6g}" for x in c.level_change_db] +
-                       [f"{c.level_change_dba:.6g}"])
-        return buf.getvalue()
-    rt, lv = _compare_tables(cmp)
-    md = form == "markdown"
-    out = [("# " if md else "") + f"Before: {cmp.before.room.title or names[0]}",
-           ("# " if md else "") + f"After:  {cmp.after.room.title or names[1]}",
-           "" if md else f"  ({names[0]} -> {names[1]}; negative = shorter or quieter)", "",
-           rt.markdown() if md else rt.text()]
-    if lv:
-        out += ["", lv.markdown() if md else lv.text()]
-    if cmp.notes:
-        out += ["", "Notes"] + [(f"- {n}" if md else wrap(n)) for n in cmp.notes]
-    if cmp.after.warnings:
-        out += ["", "Warnings (after)"] + [(f"- {w.message}" if md else wrap(w.message))
-                                          for w in cmp.after.warnings]
-    if cmp.after.cautions:
-        out += ["", "CAUTION: HEARING (after)"] + [(f"- **{c}**" if md else wrap(c, "  ! ", "    "))
-                                                  for c in cmp.after.cautions]
-    return "\n".join(out) + "\n"
-
-
-# ----------------------------------------------------------------------------- materials
-
-def material_dict(m: Material) -> dict:
-    d = {"id": m.id, "name": m.name, "category": m.category, "kind": m.kind,
-         "values": {str(k): v for k, v in sorted(m.values.items())}, "source": m.source,
-         "notes": m.notes}
-    r = m.ratings()
-    if r:
-        d.update({"nrc": r[0], "saa_octave_estimate": r[1], "alpha_w": r[2].alpha_w,
-                  "alpha_w_shape": r[2].shape, "absorption_class": r[2].absorption_class})
-    return d
-
-
-def materials_text(mats: list[Material], form: str = "text") -> str:
-    if form == "json":
-        return json_text([material_dict(m) for m in mats])
-    if form == "csv":
-        buf = io.StringIO()
-        w = csv.writer(buf, lineterminator="\n")
-        bands = [63, 125, 250, 500, 1000, 2000, 4000, 8000]
-        w.writerow(["id", "name", "category", "kind"] + [str(b) for b in bands] +
-                   ["nrc", "saa_octave_estimate", "alpha_w", "absorption_class", "source"])
-        for m in mats:
-            r = m.ratings()
-            w.writerow([m.id, m.name, m.category, m.kind] +
-                       [m.values.get(b, "") for b in bands] +
-                       ([r[0], r[1], r[2].label(), r[2].absorption_class] if r else
-                        ["", "", "", ""]) + [m.source])
-        return buf.getvalue()
-    md = form == "markdown"
-    if md:
-        lines = ["| id | name | kind | 125-4000 Hz | NRC | alpha_w (class) | source |",
-                 "|---|---|---|---|---|---|---|"]
-    else:
-        lines = []
-    for m in mats:
-        vals = " ".join(f"{m.values[b]:.2f}" for b in sorted(m.values))
-        r = m.ratings()
-        rating = (f"NRC {r[0]:.2f}  SAA~{r[1]:.2f}  alpha_w {r[2].label()} class "
-                  f"{r[2].absorption_class}") if r else "absorption per unit [m^2]"
-        if md:
-            lines.append(f"| {m.id} | {m.name} | {m.kind} | {vals} | "
-                         f"{fmt(r[0]) if r else ''} | "
-                         f"{f'{r[2].label()} ({r[2].absorption_class})' if r else ''} | "
-                         f"{m.source} |")
-        else:
-            lines += [f"{m.id}  [{m.category}]", f"    {m.name}",
-                      f"    {m.bands_text}: {vals}", f"    {rating}",
-                      wrap(f"source: {m.source}", "    ", "      "), ""]
-    if not md:
-        lines.append(f"{len(mats)} material(s). SAA~ is an estimate from octave data; a "
-                     "product's test report\nto ISO 354 / ASTM C423 supersedes these values.")
-    return "\n".join(lines) + "\n"
