@@ -539,7 +539,7 @@ def test_good_files_load(tmp_path):
      "the mean against one window"),
     (edit(FIXED, ("rt60_max = 0.6", "rt60_max = { 500 = 0.6, 1000 = 0.6, 2000 = 0.6, "
                                     "250 = 0.6 }")),
-     "criteria[0].rt60_max.250: '250' is not among this criterion's bands (500, 1000, 2000 Hz)"),
+     "criteria[0].rt60_max.250: '250' is not a band of this criterion (500, 1000, 2000 Hz)"),
     (edit(FIXED, ("rt60_max = 0.6", "rt60_max = 0.6\nrt60_min = 0.7")),
      "criteria[0].rt60_min: 0.7 s is above rt60_max (0.6 s); the window would be empty"),
     (edit(FIXED, ("rt60_max = 0.6", "rt60_max = { 500 = 0.6, 1000 = 0.6, 2000 = 0.4 }\n"

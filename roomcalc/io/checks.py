@@ -95,6 +95,24 @@ class Checker:
     def add(self, where: str, message: str) -> None:
         self.problems.append(Problem(self.filename, where, message))
 
+    def band_table(self, v: dict, path: str, bands, parse, owner: str):
+        """A table band -> value, ``{ 500 = ..., 1000 = ... }``: each key one of ``bands``
+        (else a problem naming ``owner``'s bands, e.g. "this room"), each value through
+        ``parse(x, path)`` (None: it reported a problem). Returns {band: value}, or None when
+        anything was wrong (every problem reported)."""
+        known = [str(b) for b in bands]
+        out, ok = {}, True
+        for k, x in v.items():
+            if k not in known:
+                self.add(f"{path}.{k}", f"'{k}' is not a band of {owner} "
+                         f"({', '.join(known)} Hz)")
+                ok = False
+                continue
+            y = parse(x, f"{path}.{k}")
+            ok &= y is not None
+            out[int(k)] = y
+        return out if ok else None
+
     def keys(self, table: dict, where: str, known) -> None:
         """Report keys of a table that are not known, with the nearest known one."""
         for k in table:

@@ -338,23 +338,14 @@ def _per_band(e, key, w, bands, chk, parse, mean):
             chk.add(path, "must be one value for all bands: assess = 'mean-of-bands' checks the "
                     "mean against one window")
             return None
-        known = [str(b) for b in bands]
-        out, ok = {}, True
-        for k, x in v.items():
-            if k not in known:
-                chk.add(f"{path}.{k}", f"'{k}' is not among this criterion's bands "
-                        f"({', '.join(known)} Hz)")
-                ok = False
-                continue
-            y = parse(x, f"{path}.{k}", chk)
-            ok &= y is not None
-            out[k] = y
-        missing = [b for b in known if b not in v]
+        out = chk.band_table(v, path, bands, lambda x, p: parse(x, p, chk),
+                             "this criterion")
+        missing = [f"{b:g}" for b in bands if str(b) not in v]
         if missing:
             chk.add(path, f"missing band {', '.join(missing)} Hz: give a value for every band "
-                    f"of bands ({', '.join(known)} Hz)")
-            ok = False
-        return [out[b] for b in known] if ok else None
+                    f"of bands ({', '.join(str(b) for b in bands)} Hz)")
+            return None
+        return None if out is None else [out[int(b)] for b in bands]
     y = parse(v, path, chk)
     if y is None:
         return None

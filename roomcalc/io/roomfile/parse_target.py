@@ -109,17 +109,7 @@ def band_limit(chk: Checker, table: dict, key: str, where: str, bands, *, low, h
             chk.add(path, "is an empty table: a table limits the bands it names, e.g. "
                     "{ 500 = ..., 1000 = ... }; give at least one")
             return None
-        known = [str(b) for b in bands]
-        out, ok = {}, True
-        for k, x in v.items():
-            if k not in known:
-                chk.add(f"{path}.{k}", f"'{k}' is not a band of this room ({', '.join(known)} Hz)")
-                ok = False
-                continue
-            y = one(x, f"{path}.{k}")
-            ok &= y is not None
-            out[int(k)] = y
-        return out if ok else None
+        return chk.band_table(v, path, bands, one, "this room")
     if isinstance(v, (int, float)) and not isinstance(v, bool):
         return one(v, path)
     chk.add(path, f"must be a number (every band), a list ({band_text(bands)}) or a table by "
