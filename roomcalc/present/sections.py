@@ -5,12 +5,15 @@ treatment plan, as text (80 columns, or unwrapped for a screen) and as JSON dict
 from __future__ import annotations
 
 import math
+from typing import TYPE_CHECKING
 
 from roomcalc.engine.analysis import METHOD_TITLES
-from roomcalc.engine.exposure import EXPOSURE_CAUTION, ExposureSummary, compare_exposure
 from roomcalc.io.units import METRIC, Units
 from roomcalc.present.numbers import band_label, finite_or_none, fmt, floats, wrap
 from roomcalc.study.assessment import Occupancy, PlanRun, TargetCheck
+
+if TYPE_CHECKING:
+    from roomcalc.engine.exposure import ExposureSummary
 
 __all__ = ["window_text", "occupancy_text", "target_text", "target_dict", "exposure_text",
            "exposure_dict", "plan_levels", "plan_totals_text", "plan_text", "plan_dict", "occupancy_dict"]
@@ -132,6 +135,8 @@ def exposure_text(days: dict[str, ExposureSummary], after: dict | None = None,
     """The daily-exposure section of the text report (``width`` 0: lines unwrapped)."""
     if not days:
         return ""
+    from roomcalc.engine.exposure import EXPOSURE_CAUTION, compare_exposure
+
     lines = ["Daily noise exposure (receivers with a working pattern)"]
     for name, d in days.items():
         lines.append(f"  {name}: {d.total_hours:g} h; LAeq {d.laeq_dba:.1f} dB(A), "

@@ -20,11 +20,11 @@ import numpy as np
 from roomcalc.engine.analysis import RoomResult, evaluate
 from roomcalc.engine.bands import a_weighted_total
 from roomcalc.engine.criteria import Assessment, Criterion, assess, user_window
-from roomcalc.engine.exposure import ExposureSummary, day_periods, exposure_summary
 from roomcalc.engine.model import Room, at_occupancy
 from roomcalc.io.roomfile import RoomSpec, limit_values
 
-if TYPE_CHECKING:   # the planner is imported when a plan is made (a report need not load it)
+if TYPE_CHECKING:   # the planner and the exposure rules are imported when they are needed
+    from roomcalc.engine.exposure import ExposureSummary
     from roomcalc.engine.planner import Candidate, Goals, Plan
 
 __all__ = ["Occupancy", "LevelCheck", "TargetCheck", "PlanRun", "criterion_of", "occupancy_for",
@@ -169,6 +169,7 @@ def exposures(spec: RoomSpec, result: RoomResult) -> dict[str, ExposureSummary]:
     out = {}
     if not any(r.hours is not None for r in spec.receivers):
         return out
+    from roomcalc.engine.exposure import day_periods, exposure_summary
     from roomcalc.io.planning import work_patterns
 
     by_name = {r.name: r for r in result.receivers}

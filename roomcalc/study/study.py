@@ -20,15 +20,18 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from roomcalc.engine.analysis import Comparison, RoomResult, compare, evaluate
-from roomcalc.engine.exposure import ExposureSummary
 from roomcalc.engine.model import Room
 from roomcalc.io.catalog import Catalog
 from roomcalc.io.errors import Problem, RoomFileError
 from roomcalc.io.roomfile import RoomSpec, check_room, read_room
 from roomcalc.study.assessment import (PlanRun, TargetCheck, exposures, make_plan,
                                        target_check)
+
+if TYPE_CHECKING:
+    from roomcalc.engine.exposure import ExposureSummary
 
 __all__ = ["Answer", "Study"]
 
