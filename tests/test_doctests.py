@@ -9,7 +9,8 @@ import pytest
 
 MODULES = ["roomcalc.engine.bands", "roomcalc.engine.air", "roomcalc.engine.reverb",
            "roomcalc.engine.field", "roomcalc.engine.ratings", "roomcalc.engine.spectra",
-           "roomcalc.engine.exposure", "roomcalc.engine.criteria"]
+           "roomcalc.engine.exposure", "roomcalc.engine.criteria",
+           "roomcalc.engine.criterion"]
 
 
 @pytest.mark.parametrize("name", MODULES)
