@@ -117,14 +117,6 @@ def _main(args) -> int:
         return 130
 
 
-def _need_file(args, name: str):
-    value = getattr(args, name)
-    if value is None and not args.demo:
-        print(f"roomcalc {args.command}: give a room file or --demo", file=sys.stderr)
-        return None
-    return value
-
-
 def _run(args) -> int:
     from roomcalc.io.catalog import load_catalog
 
@@ -212,8 +204,7 @@ def _compare(args, catalog) -> int:
         return EXIT_INPUT
     else:
         before, after = args.before, args.after
-    first = Study.from_file(before, catalog)
-    rb = first.evaluate()
+    rb = Study.from_file(before, catalog).evaluate()
     # The room after is evaluated by the formula in force before, like for like.
     ra = Study.from_file(after, catalog, method=rb.method).evaluate()
     names = (Path(before).name, Path(after).name)
@@ -224,7 +215,7 @@ def _compare(args, catalog) -> int:
 def _plan(args, catalog) -> int:
     from roomcalc.present import sections
     from roomcalc.present.numbers import json_text
-    from roomcalc.study import Study
+    from roomcalc.study import Study, exposures
 
     study = Study.from_file(args.file, catalog)
     if study.spec.target is None:
@@ -232,8 +223,7 @@ def _plan(args, catalog) -> int:
               "reach (criterion = \"<id>\", or rt60_max = [...], or max_level_dba = {...})",
               file=sys.stderr)
         return EXIT_INPUT
-    answer = study.answer()
-    run = study.plan(objective=args.objective, result=answer.result)
+    run = study.plan(objective=args.objective)
     if args.write:
         study.write_treated(run, args.write)
     u = study.spec.unit_system
@@ -244,9 +234,10 @@ def _plan(args, catalog) -> int:
         sys.stdout.write(json_text(data))
     else:
         sys.stdout.write(sections.plan_text(run, u))
-        if answer.exposures:
-            after = study.answer(result=run.described_after).exposures
-            sys.stdout.write(sections.exposure_text(answer.exposures, after))
+        days = exposures(study.spec, run.described_before)
+        if days:
+            after = exposures(study.spec, run.described_after)
+            sys.stdout.write(sections.exposure_text(days, after))
         if args.write:
             print(f"Treated room written to {args.write}")
     return EXIT_OK if run.plan.feasible else 1

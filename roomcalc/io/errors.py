@@ -14,8 +14,12 @@ class Problem:
     message: str
 
     def __str__(self) -> str:
-        return f"{self.file}: {self.where}: {self.message}" if self.where else \
-            f"{self.file}: {self.message}"
+        return f"{self.file}: {self.located}"
+
+    @property
+    def located(self) -> str:
+        """"field: message" (or the message alone), for a screen that names the file once."""
+        return f"{self.where}: {self.message}" if self.where else self.message
 
 
 class RoomFileError(Exception):

@@ -164,7 +164,3 @@ class Study:
         save_spec(treated, Path(path))
         return treated
 
-
-def load_error_text(exc: RoomFileError) -> list[str]:
-    """The problems of a RoomFileError as lines, for a front end to show."""
-    return [f"{p.where}: {p.message}" if p.where else p.message for p in exc.problems]

@@ -223,8 +223,7 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
             result = study.evaluate(room)
             self.problems = [f"{k}: '{v}' is not a number" for k, v in unparsed.items()]
         except RoomFileError as exc:
-            self.problems = [f"{p.where}: {p.message}" if p.where else p.message
-                             for p in exc.problems]
+            self.problems = [p.located for p in exc.problems]
             self.problems += [f"{k}: '{v}' is not a number" for k, v in unparsed.items()]
             result = None
         except ValueError as exc:
@@ -289,7 +288,7 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
             self._show_distance(view)
         elif pane == "v-receivers":
             try:
-                days = self._study.answer(result=res).exposures if not self.stale else {}
+                days = self.current_answer().exposures if not self.stale else {}
             except (RoomFileError, ValueError):
                 days = {}
             # Receivers with working hours: the daily exposure, with the caution.

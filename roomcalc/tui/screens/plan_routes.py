@@ -95,8 +95,7 @@ class PlanRoutes:
         try:
             run = self._study.plan(enabled=msg.enabled, result=self.result)
         except RoomFileError as exc:
-            view.show_message("Cannot plan: " + "; ".join(
-                f"{p.where}: {p.message}" if p.where else p.message for p in exc.problems))
+            view.show_message("Cannot plan: " + "; ".join(p.located for p in exc.problems))
             return
         except ValueError as exc:
             view.show_message(f"Cannot plan: {exc}")
