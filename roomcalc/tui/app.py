@@ -5,6 +5,7 @@
 
 from __future__ import annotations
 
+import asyncio
 import gc
 from dataclasses import dataclass
 from pathlib import Path
@@ -14,11 +15,17 @@ from textual.binding import Binding
 
 from roomcalc.io.catalog import Catalog
 from roomcalc.io.errors import RoomFileError
-from roomcalc.tui.document import Document, discard_recovery, find_recovery
+from roomcalc.tui.document import Document
+from roomcalc.tui.recovery import (RecoveryWriter, Status, discard_file, find_recoveries,
+                                   take_over)
 from roomcalc.tui.screens.dialogs import Ask, AskBox, AskText
 from roomcalc.tui.screens.main import MainScreen
 
-RECOVERY_DELAY_S = 1.0
+RECOVERY_DELAY_S = 0.0    # the recovery file is written at once after an edit (off the main
+                          # thread): a crash loses at most what was typed in the last moment
+NOT_SAVED_NOTICE_S = 30.0
+RECOVERY_FAILED_NOTICE_S = 60.0
+RESTORE_COMMAND = "Restore changes kept from before"
 SETTLE_DELAY_S = 1.0      # after start-up, the objects made so far leave the garbage collector
 
 
@@ -26,7 +33,7 @@ SETTLE_DELAY_S = 1.0      # after start-up, the objects made so far leave the ga
 class AppConfig:
     """Settings of one run: recovery timing, whether to offer recovery at start."""
 
-    recovery_delay_s: float = RECOVERY_DELAY_S
+    recovery_delay_s: float = RECOVERY_DELAY_S     # wait this long after an edit (coalesce)
     offer_recovery: bool = True
     theme: str | None = None
     ask_box_size: bool = False      # start by asking the size of the (new) room
@@ -44,7 +51,9 @@ class RoomApp(App):
         self.document = document
         self.catalog = catalog
         self.config = config or AppConfig()
-        self._recovery_timer = None
+        self.recovery = RecoveryWriter(self._recovery_report, self.config.recovery_delay_s)
+        self._loop_for_reports: asyncio.AbstractEventLoop | None = None
+        self._discard_approved: Document | None = None     # "Don't save" was chosen for it
         self.settled = False
         if self.config.theme:
             self.theme = self.config.theme
@@ -59,9 +68,12 @@ class RoomApp(App):
         return self._main
 
     def on_mount(self) -> None:
+        self._loop_for_reports = asyncio.get_running_loop()
         self.set_timer(SETTLE_DELAY_S, self._settle)
         if self.config.offer_recovery:
             self._offer_recovery(self.document)
+        else:
+            self._take_over_recovery(self.document)
         if self.config.ask_box_size:
             self._ask_size()
 
@@ -76,6 +88,7 @@ class RoomApp(App):
         self.settled = True
 
     def on_unmount(self) -> None:
+        self._last_recovery()
         if self.settled:
             gc.unfreeze()        # an app run inside another program (the tests) gives them back
 
@@ -106,6 +119,8 @@ class RoomApp(App):
             ("Switch reverberant model", "Diffuse field (4/R) or Barron & Lee",
              main.action_toggle_model),
             ("Choose material", "For the highlighted surface or object", main.action_material),
+            (RESTORE_COMMAND, "Unsaved changes of this room from a session that ended "
+             "without saving: restore or discard them", self.action_offer_recovery),
             ("Help", "Every key, and what each number means", self.action_help),
         ):
             yield SystemCommand(title, help_, cb)
@@ -125,53 +140,75 @@ class RoomApp(App):
             return
         self._write(doc, doc.path)
 
-    def action_save_as(self) -> None:
+    def action_save_as(self, then=None) -> None:
+        """Ask a file name and save there; ``then`` runs after a save that worked (the quit
+        guard's "Save" for a room without a file)."""
         doc = self.main.document
         default = str(doc.path) if doc.path and not doc.demo else "my-room.toml"
 
+        def write(path):
+            if self._write(doc, path) and then is not None:
+                then()
+
         def done(name):
-            if name:
-                path = Path(name).expanduser()
-                if path.suffix != ".toml":
-                    path = path.with_suffix(".toml")
-                if path.exists() and path != doc.path:
-                    def confirm(ans):
-                        if ans == "replace":
-                            self._write(doc, path)
-                    self.push_screen(Ask(f"{path} exists. Replace it?",
-                                         [("replace", "Replace", "warning"),
-                                          ("cancel", "Cancel", "default")]), confirm)
-                else:
-                    self._write(doc, path)
+            if not name:
+                if then is not None:
+                    self.notify("Not saved: nothing was closed, the changes are still here.",
+                                markup=False)
+                return
+            path = Path(name).expanduser()
+            if path.suffix != ".toml":
+                path = path.with_suffix(".toml")
+            if path.exists() and path != doc.path:
+                def confirm(ans):
+                    if ans == "replace":
+                        write(path)
+                self.push_screen(Ask(f"{path} exists. Replace it?",
+                                     [("replace", "Replace", "warning"),
+                                      ("cancel", "Cancel", "default")]), confirm)
+            else:
+                write(path)
         self.push_screen(AskText("Save the room as (a .toml file):", default), done)
 
-    def _write(self, doc: Document, path: Path) -> None:
+    def _write(self, doc: Document, path: Path) -> bool:
+        """Save; on failure say why (and that nothing is lost) and return False."""
+        self.recovery.flush()           # no older recovery text lands after the save
         try:
             doc.save(path)
         except OSError as exc:
-            self.notify(f"Not saved: {path}: {exc.strerror or exc}", severity="error",
-                        timeout=8, markup=False)
-            return
+            reason = exc.strerror or str(exc)
+            if isinstance(exc, (FileNotFoundError, NotADirectoryError)):
+                if path.parent.exists() and not path.parent.is_dir():
+                    reason = f"{path.parent} is not a folder"
+                elif not path.parent.exists():
+                    reason = f"the folder {path.parent} does not exist"
+            kept = " and in the recovery file" if self.recovery.status.kind != "failed" else ""
+            self.notify(f"Not saved: {path}: {reason}. The changes are still here{kept}; "
+                        "F2 saves them in another folder.", severity="error",
+                        timeout=NOT_SAVED_NOTICE_S, markup=False)
+            return False
         self.main.show_title()
         self.notify(f"Saved {path}", markup=False)
+        return True
 
     def _guard(self, then) -> None:
-        """Run ``then`` now, or after asking what to do with unsaved changes."""
+        """Run ``then`` now, or after asking what to do with unsaved changes. The recovery
+        file is on disk before the question is asked."""
         doc = self.main.document
         if not doc.modified:
             then()
             return
+        self.keep_recovery_now()
 
         def done(ans):
             if ans == "save":
                 if doc.path is None or doc.demo:
-                    self.notify("Save it first (F2), then try again.", severity="warning")
-                    self.action_save_as()
+                    self.action_save_as(then=then)
                     return
-                self._write(doc, doc.path)
-                then()
+                if self._write(doc, doc.path):
+                    then()
             elif ans == "discard":
-                discard_recovery(doc.path)
+                self._discard_approved = doc       # its recovery goes when it is closed
                 then()
         self.push_screen(Ask(f"The room '{doc.spec.title or doc.name}' has unsaved changes.",
                              [("save", "Save", "primary"), ("discard", "Don't save", "error"),
@@ -181,11 +218,19 @@ class RoomApp(App):
         self._guard(self._quit_now)
 
     def _quit_now(self) -> None:
-        if self._recovery_timer is not None:     # else it may write the file after all
-            self._recovery_timer.stop()
-        if not self.main.document.modified:
-            discard_recovery(self.main.document.path)
+        self._last_recovery()
         self.exit()
+
+    def _last_recovery(self) -> None:
+        """Closing: unsaved changes are in the recovery file before the app ends, unless the
+        user chose "Don't save" for them (then it goes, as does one of a saved room)."""
+        doc = self.main.document
+        if not doc.demo:
+            if doc.modified and self._discard_approved is not doc:
+                self.keep_recovery_now()
+            else:
+                self.recovery.discard(doc.path)
+        self.recovery.close()
 
     def action_open(self) -> None:
         def ask():
@@ -195,6 +240,7 @@ class RoomApp(App):
 
     def open_path(self, name) -> None:
         if not name:
+            self._discard_approved = None        # nothing closed: its recovery stays
             return
         path = Path(name).expanduser()
         if not path.exists():
@@ -202,6 +248,8 @@ class RoomApp(App):
                 if size:
                     L, W, H, units = size
                     self._set_document(Document.new_box(L, W, H, units, path=path))
+                else:
+                    self._discard_approved = None
             self.push_screen(AskBox(f"{path} does not exist. Make a new room there, of this "
                                     "size:"), create)
             return
@@ -211,9 +259,11 @@ class RoomApp(App):
             lines = [str(p) for p in exc.problems[:8]]
             self.notify("Cannot open it:\n" + "\n".join(lines), severity="error", timeout=12,
                         markup=False)
+            self._discard_approved = None
             return
         except (OSError, UnicodeDecodeError) as exc:
             self.notify(f"Cannot open {path}: {exc}", severity="error", timeout=8, markup=False)
+            self._discard_approved = None
             return
         self._set_document(doc)
         self._offer_recovery(doc)
@@ -224,60 +274,129 @@ class RoomApp(App):
                 if size:
                     L, W, H, units = size
                     self._set_document(Document.new_box(L, W, H, units))
+                else:
+                    self._discard_approved = None
             self.push_screen(AskBox(), create)
         self._guard(ask)
 
     def _set_document(self, doc: Document) -> None:
+        old = self.main.document
+        if old is not doc and not old.demo:
+            if old.modified and self._discard_approved is not old:
+                self.keep_recovery_now()             # not asked: keep it, never drop it
+            else:
+                self.recovery.discard(old.path)
+        self._discard_approved = None
         self.document = doc
         self.main.replace_document(doc)
 
     # ------------------------------------------------------------------ recovery
-    def _offer_recovery(self, doc: Document) -> None:
+    def _take_over_recovery(self, doc: Document) -> None:
+        """A live recovery file of this room left by a session that ended without saving is
+        set aside (kept under its time) before this session writes its own."""
+        if not doc.demo:
+            take_over(doc.path, doc.saved_text)
+
+    def _offer_recovery(self, doc: Document, asked: bool = False) -> None:
+        """Offer the newest changes kept from an earlier session: restore, discard (then the
+        next one is offered), or not now (they stay, offered again on the next open and from
+        the command palette)."""
         if doc.demo:
             return
-        rec = find_recovery(doc.path)
-        if rec is None:
+        if not asked:
+            self._take_over_recovery(doc)
+        kept = find_recoveries(doc.path)
+        if not kept:
+            if asked:
+                self.notify("No unsaved changes from an earlier session are kept for "
+                            f"{doc.path or 'an untitled room'}.", markup=False)
             return
+        rec = kept[0]
+        more = f" ({len(kept) - 1} older set{'s' if len(kept) > 2 else ''} kept too.)" \
+            if len(kept) > 1 else ""
+        older = " The room file was changed after them." if rec.older_than_room else ""
 
         def done(ans):
             if ans == "restore":
-                try:
-                    restored = Document.open(rec)
-                except (RoomFileError, OSError):
-                    self.notify("The recovery file could not be read.", severity="error")
-                    return
-                spec = restored.spec
-                doc.change(lambda s: s.__dict__.update(spec.__dict__), "restore unsaved changes")
-                self.main.replace_document(doc)
-                self.notify("Unsaved changes restored. Save to keep them.")
+                self._restore(doc, rec.path)
             elif ans == "discard":
-                discard_recovery(doc.path)
+                discard_file(rec.path)
+                self.notify(f"Discarded the changes kept from {rec.when}.", markup=False)
+                if len(kept) > 1:
+                    self._offer_recovery(doc, asked=True)
+            else:
+                self.notify("The earlier changes are kept. They are offered again when this "
+                            "room is opened, or now from the command palette (Ctrl+P, "
+                            f"'{RESTORE_COMMAND}').", timeout=8, markup=False)
         self.push_screen(Ask(f"roomcalc was closed without saving changes to "
-                             f"{doc.path or 'an untitled room'}. Restore them?",
+                             f"{doc.path or 'an untitled room'} (kept from {rec.when}).{older}"
+                             f"{more} Restore them?",
                              [("restore", "Restore", "primary"),
                               ("discard", "Discard them", "error"),
                               ("later", "Not now", "default")]), done)
 
-    def schedule_recovery(self) -> None:
-        """After an edit: write the recovery file a moment later, in the background."""
-        if self._recovery_timer is not None:
-            self._recovery_timer.stop()
-        self._recovery_timer = self.set_timer(self.config.recovery_delay_s,
-                                              self._write_recovery)
+    def action_offer_recovery(self) -> None:
+        self._offer_recovery(self.main.document, asked=True)
 
-    def _write_recovery(self) -> None:
+    def _restore(self, doc: Document, rec: Path) -> None:
+        try:
+            restored = Document.open(rec)
+        except (RoomFileError, OSError, UnicodeDecodeError):
+            self.notify(f"The recovery file {rec} could not be read; it is left as it is.",
+                        severity="error", markup=False)
+            return
+        spec = restored.spec
+        doc.change(lambda s: s.__dict__.update(spec.__dict__), "restore unsaved changes")
+        self.main.replace_document(doc)
+        # The restored changes are now this session's: once its own recovery file holds
+        # them, the kept one can go.
+        if self.keep_recovery_now():
+            discard_file(rec)
+        self.notify("Unsaved changes restored. Save to keep them.")
+
+    def schedule_recovery(self) -> None:
+        """After an edit: keep the room's text in the recovery file, at once, in the
+        background (coalesced: the writer always writes the newest text)."""
+        self._discard_approved = None
+        doc = self.main.document
+        if doc.demo:
+            return
+        if doc.modified:
+            self.recovery.keep(doc.path, doc.text_later())
+        else:
+            self.recovery.discard(doc.path)
+
+    def keep_recovery_now(self) -> bool:
+        """Write the recovery file of unsaved changes now (waits for the writer). False when
+        it could not be written anywhere (the user has been told)."""
         try:
             doc = self.main.document
         except ScreenStackError:                  # closing: the screens are gone
+            doc = self.document
+        if doc.demo or not doc.modified:
+            return True
+        self.recovery.keep(doc.path, doc.text)
+        self.recovery.flush()
+        return self.recovery.status.kind != "failed"
+
+    def _recovery_report(self, status: Status) -> None:
+        """From the writer's thread: show a change in where (or whether) the recovery file
+        is written, at once."""
+        loop = self._loop_for_reports
+        if loop is None or loop.is_closed():
             return
-        if doc.demo:
+        loop.call_soon_threadsafe(self._show_recovery_status, status)
+
+    def _show_recovery_status(self, status: Status) -> None:
+        if not self.is_running:
             return
-        if not doc.modified:
-            discard_recovery(doc.path)
-            return
-        text = doc.text          # made here, so the thread only writes it
-        self.run_worker(lambda: doc.write_recovery(text), thread=True, exclusive=True,
-                        group="recovery", exit_on_error=False)
+        if status.kind == "failed":
+            self.notify(status.message, severity="error", timeout=RECOVERY_FAILED_NOTICE_S,
+                        markup=False)
+        elif status.kind == "fallback":
+            self.notify(status.message, severity="warning", timeout=12, markup=False)
+        else:
+            self.notify(status.message, markup=False)
 
 
 def make_app(document: Document | None = None, catalog: Catalog | None = None,

@@ -8,15 +8,14 @@ undo step.
 from __future__ import annotations
 
 import copy
-import hashlib
-import os
 from dataclasses import dataclass, field, fields, is_dataclass
 from pathlib import Path
 
-from roomcalc.io import paths
-from roomcalc.io.atomic import write_text_atomic
+from roomcalc.io.atomic import remove_stale_temporaries, write_text_atomic
 from roomcalc.io.roomfile import (CandidateSpec, ObjectSpec, ReceiverSpec, RoomSpec, ShapeSpec,
                                   SourceSpec, SurfaceSpec, parse_spec, spec_to_toml)
+from roomcalc.tui.recovery import (discard_recovery, find_recovery,  # noqa: F401 (re-exported)
+                                   recovery_path, write_recovery)
 
 COLLECTIONS = ("surfaces", "objects", "sources", "receivers", "candidates")
 NEW_ITEM = {
@@ -187,6 +186,7 @@ class Document:
         """Read a room file (raises RoomFileError with every problem)."""
         path = Path(path)
         text = path.read_text(encoding="utf-8")
+        remove_stale_temporaries(path)       # left by a save that was killed half-way
         spec = parse_spec(text, str(path))
         return cls(spec=spec, path=path, saved_text=text, original_text=text)
 
@@ -204,12 +204,18 @@ class Document:
 
     # ------------------------------------------------------------------ recovery
     def write_recovery(self, text: str | None = None) -> Path:
-        """Keep unsaved changes beside the user's data (``text``: the room's text, if already
-        made, so a background thread need not touch the spec)."""
-        p = recovery_path(self.path)
-        p.parent.mkdir(parents=True, exist_ok=True)
-        write_text_atomic(p, self.text if text is None else text)
-        return p
+        """Keep unsaved changes beside the user's data, or in a fallback place (see
+        roomcalc.tui.recovery); ``text``: the room's text, if already made. Returns where it
+        went; raises OSError when no place takes it."""
+        return write_recovery(self.path, self.text if text is None else text).path
+
+    def text_later(self):
+        """A callable that makes the room's text as it is now, safe to run on another thread
+        while editing goes on: it reads a snapshot (a copy of the spec), not the live one."""
+        snap = copy.copy(self)
+        snap.spec = clone(self.spec)
+        snap.undo_stack, snap.redo_stack = [], []
+        return lambda: snap.text
 
 
 def clone(obj):
@@ -249,30 +255,3 @@ def _with_header(text: str, original: str | None) -> str:
     while head and not head[-1].strip():
         head.pop()
     return ("\n".join(head) + "\n" + text) if head else text
-
-
-def recovery_path(path: Path | None) -> Path:
-    """Where unsaved changes of a room are kept until it is saved."""
-    key = str(Path(path).resolve()) if path else "untitled"
-    digest = hashlib.sha1(key.encode("utf-8")).hexdigest()[:16]
-    stem = Path(path).stem if path else "untitled"
-    return paths.user_data_dir() / "recovery" / f"{stem}-{digest}.toml"
-
-
-def find_recovery(path: Path | None) -> Path | None:
-    """A recovery file newer than the room file, if one is left from a session that ended
-    without saving."""
-    p = recovery_path(path)
-    if not p.exists():
-        return None
-    if path is not None and Path(path).exists() and \
-            Path(path).stat().st_mtime > p.stat().st_mtime:
-        return None
-    return p
-
-
-def discard_recovery(path: Path | None) -> None:
-    try:
-        os.unlink(recovery_path(path))
-    except FileNotFoundError:
-        pass

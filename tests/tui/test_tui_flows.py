@@ -389,8 +389,8 @@ async def test_quit_with_unsaved_changes_asks(room_file, catalog):
         assert isinstance(app.screen, MainScreen) and app.is_running
         assert app.return_code is None and app.screen.document.modified
 
-        # Another edit just before quitting: its recovery file is not yet due.
-        app.config.recovery_delay_s = 0.5
+        # Another edit just before quitting, while the writer waits half a second.
+        app.recovery.delay_s = 0.5
         await pilot.press("a", "ctrl+q")
         await pilot.pause()
         assert isinstance(app.screen, Ask)
@@ -398,8 +398,8 @@ async def test_quit_with_unsaved_changes_asks(room_file, catalog):
         await pilot.pause()
     assert app.return_code == 0
     assert path.read_bytes() == original             # "Don't save" wrote nothing
-    app._write_recovery()          # what the timer would run if it fired during the close
-    assert not recovery_path(path).exists()
+    assert app.recovery.flush()          # nothing left for the writer to do after the close
+    assert not recovery_path(path).exists() and find_recovery(path) is None
 
 
 

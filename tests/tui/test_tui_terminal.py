@@ -101,3 +101,91 @@ def test_roomcalc_open_in_a_real_terminal(tmp_path, catalog):
         assert not (data / "recovery").exists() or not any((data / "recovery").iterdir())
     finally:
         subprocess.run(tmux + ["kill-server"], capture_output=True, timeout=10)
+
+
+def _wait(capture, test, seconds: float = 15.0) -> str:
+    screen, deadline = "", time.monotonic() + seconds
+    while time.monotonic() < deadline:
+        screen = capture()
+        if test(screen):
+            return screen
+        time.sleep(0.2)
+    return screen
+
+
+@pytest.mark.skipif(TMUX is None, reason="tmux is not installed")
+def test_a_failed_save_on_quit_keeps_roomcalc_running(tmp_path):
+    """In a real terminal: the room's folder stops taking writes, an edit, Ctrl+Q at once,
+    Enter on "Save": roomcalc keeps running with the reason on screen, and the edit is in the
+    recovery file. Then Ctrl+Q, "Don't save" quits (exit 0) and removes it.
+
+    As a regular user the folder is made read-only (chmod); as root, which writes into
+    read-only folders anyway, the folder is replaced by a regular file (ENOTDIR for everyone).
+    """
+    from roomcalc.tui.document import Document, find_recovery
+
+    folder = tmp_path / "rooms"
+    folder.mkdir()
+    room = folder / "classroom.toml"
+    shutil.copyfile(EXAMPLES / "classroom.toml", room)
+    surfaces = len(Document.open(room).spec.surfaces)
+    data = tmp_path / "data"
+    exit_file = tmp_path / "exit.txt"
+    sock = f"roomcalc-test-{uuid.uuid4().hex[:12]}"
+    tmux = [TMUX, "-L", sock, "-f", os.devnull]
+    inner = (f"env -u COLUMNS -u LINES ROOMCALC_DATA_DIR={shlex.quote(str(data))} "
+             f"{' '.join(shlex.quote(c) for c in _command())} open {shlex.quote(str(room))}; "
+             f"echo EXIT=$? > {shlex.quote(str(exit_file))}")
+
+    def capture() -> str:
+        return subprocess.run(tmux + ["capture-pane", "-p", "-t", "rc"], capture_output=True,
+                              text=True, timeout=10).stdout
+
+    def keys(*k):
+        subprocess.run(tmux + ["send-keys", "-t", "rc", *k], check=True, timeout=10)
+
+    subprocess.run(tmux + ["new-session", "-d", "-s", "rc", "-x", "120", "-y", "40",
+                           "sh", "-c", inner, ";", "set-option", "-t", "rc",
+                           "remain-on-exit", "on"], check=True, timeout=10, cwd=tmp_path,
+                   stdin=subprocess.DEVNULL)
+    as_root = hasattr(os, "geteuid") and os.geteuid() == 0
+    try:
+        screen = _wait(capture, lambda s: "Sabine" in s and "Reverberation" in s)
+        assert "Sabine" in screen, screen
+        if as_root:
+            shutil.rmtree(folder)
+            folder.write_text("in the way\n")          # the room's folder is now a file
+            reason = "is not a folder"
+        else:
+            os.chmod(folder, 0o555)
+            reason = "Permission denied"
+        new_row = f"Surface {surfaces + 1}"
+        for _ in range(3):           # the first key may come before the table has the focus
+            keys("a")
+            if new_row in _wait(capture, lambda s: new_row in s, 3):
+                break
+        keys("C-q")
+        screen = _wait(capture, lambda s: "unsaved changes" in s)
+        assert "unsaved changes" in screen, screen
+        keys("Enter")                                    # "Save", the first button
+        screen = _wait(capture, lambda s: "Not saved" in s)
+        assert "Not saved" in screen and reason in " ".join(screen.split()), screen
+        time.sleep(1.0)
+        assert not exit_file.exists(), capture()         # still running
+        rec = find_recovery(room) if not as_root else next((data / "recovery").glob("*.toml"))
+        assert len(Document.open(rec).spec.surfaces) > surfaces       # the edit is kept
+
+        keys("C-q")
+        screen = _wait(capture, lambda s: "Don't save" in s)
+        keys("Tab", "Enter")                             # "Don't save"
+        deadline = time.monotonic() + 10
+        while time.monotonic() < deadline and not exit_file.exists():
+            time.sleep(0.2)
+        assert exit_file.exists(), capture()
+        assert exit_file.read_text().strip() == "EXIT=0"
+        assert "Traceback" not in capture()
+        assert not any((data / "recovery").glob("*.toml"))
+    finally:
+        subprocess.run(tmux + ["kill-server"], capture_output=True, timeout=10)
+        if folder.is_dir():
+            os.chmod(folder, 0o755)
