@@ -54,6 +54,7 @@ class RoomApp(App):
         self.recovery = RecoveryWriter(self._recovery_report, self.config.recovery_delay_s)
         self._loop_for_reports: asyncio.AbstractEventLoop | None = None
         self._discard_approved: Document | None = None     # "Don't save" was chosen for it
+        self._recovery_asks = 0         # counts requests; a queued hand-over checks it
         self.settled = False
         if self.config.theme:
             self.theme = self.config.theme
@@ -172,7 +173,9 @@ class RoomApp(App):
 
     def _write(self, doc: Document, path: Path) -> bool:
         """Save; on failure say why (and that nothing is lost) and return False."""
-        self.recovery.flush()           # no older recovery text lands after the save
+        # The recovery file first: it holds everything if the save fails, and no older text
+        # of it (an edit's hand-over still queued) can land after a save that works.
+        self.keep_recovery_now()
         try:
             doc.save(path)
         except OSError as exc:
@@ -229,6 +232,7 @@ class RoomApp(App):
             if doc.modified and self._discard_approved is not doc:
                 self.keep_recovery_now()
             else:
+                self._recovery_asks += 1
                 self.recovery.discard(doc.path)
         self.recovery.close()
 
@@ -285,7 +289,9 @@ class RoomApp(App):
             if old.modified and self._discard_approved is not old:
                 self.keep_recovery_now()             # not asked: keep it, never drop it
             else:
+                self._recovery_asks += 1
                 self.recovery.discard(old.path)
+                self.recovery.flush()     # gone before the new room looks for its own
         self._discard_approved = None
         self.document = doc
         self.main.replace_document(doc)
@@ -355,27 +361,42 @@ class RoomApp(App):
         self.notify("Unsaved changes restored. Save to keep them.")
 
     def schedule_recovery(self) -> None:
-        """After an edit: keep the room's text in the recovery file, at once, in the
-        background (coalesced: the writer always writes the newest text)."""
+        """After an edit: keep the room's text in the recovery file, in the background, as
+        soon as the screen shows the edit (so that the writer's thread does not compete with
+        drawing it). Coalesced: only the newest request is handed over, and the writer
+        always writes the newest text it has."""
         self._discard_approved = None
         doc = self.main.document
         if doc.demo:
             return
-        if doc.modified:
-            self.recovery.keep(doc.path, doc.text_later())
-        else:
-            self.recovery.discard(doc.path)
+        self._recovery_asks += 1
+        ask, room = self._recovery_asks, doc.path
+        text = doc.text_later() if doc.modified else None      # the snapshot: taken now
+
+        def hand_over():
+            if ask != self._recovery_asks:       # a newer request (or a direct write) came
+                return
+            if text is None:
+                self.recovery.discard(room)
+            else:
+                self.recovery.keep(room, text)
+        self.call_after_refresh(hand_over)
 
     def keep_recovery_now(self) -> bool:
-        """Write the recovery file of unsaved changes now (waits for the writer). False when
-        it could not be written anywhere (the user has been told)."""
+        """Bring the recovery file up to date now, waiting for the writer: the room's text if
+        it has unsaved changes, else no file. False when it could not be written anywhere
+        (the user has been told)."""
         try:
             doc = self.main.document
         except ScreenStackError:                  # closing: the screens are gone
             doc = self.document
-        if doc.demo or not doc.modified:
+        self._recovery_asks += 1                  # an edit's hand-over still queued: void
+        if doc.demo:
             return True
-        self.recovery.keep(doc.path, doc.text)
+        if doc.modified:
+            self.recovery.keep(doc.path, doc.text)
+        else:
+            self.recovery.discard(doc.path)
         self.recovery.flush()
         return self.recovery.status.kind != "failed"
 

@@ -231,6 +231,7 @@ class _Job:
     room: Path | None
     text: object               # a str, a zero-argument callable giving one, or None: discard
     asked_at: float
+    waiting_since: float = 0.0  # the first request of the room not yet done (for the delay)
 
 
 class RecoveryWriter:
@@ -238,7 +239,8 @@ class RecoveryWriter:
 
     ``keep(room, text)`` and ``discard(room)`` return at once; one daemon thread does the
     work, one room at a time, always with the newest request for that room (older ones are
-    dropped, never written after a newer one). ``text`` may be a callable, run in the thread
+    dropped, never written after a newer one), at most ``delay_s`` after the first request
+    not yet done (steady typing does not put it off). ``text`` may be a callable, run in the thread
     (the snapshot it reads must not change after the call). ``flush()`` waits until all is on
     disk. ``report(status)`` is called, from the thread, when the outcome changes kind or
     place (to tell the user at once that a crash would lose their work).
@@ -265,7 +267,8 @@ class RecoveryWriter:
     def _put(self, job: _Job) -> None:
         key = str(job.room)
         with self._cond:
-            self._jobs.pop(key, None)
+            older = self._jobs.pop(key, None)
+            job.waiting_since = older.waiting_since if older is not None else job.asked_at
             self._jobs[key] = job
             if self._thread is None and not self._closed:
                 self._thread = threading.Thread(target=self._run, name="roomcalc-recovery",
@@ -311,7 +314,7 @@ class RecoveryWriter:
                     return
                 key = next(iter(self._jobs))
                 while self.delay_s > 0 and not self._hurry and key in self._jobs:
-                    left = self._jobs[key].asked_at + self.delay_s - time.perf_counter()
+                    left = self._jobs[key].waiting_since + self.delay_s - time.perf_counter()
                     if left <= 0:
                         break
                     self._cond.wait(left)

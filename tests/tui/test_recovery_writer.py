@@ -82,3 +82,18 @@ def test_text_later_reads_a_snapshot(room_file):
     doc.spec.surfaces[0].area = 123.0
     assert make() == want and "second" not in make()
     assert doc.text != want
+
+
+def test_steady_requests_do_not_put_the_write_off(room_file):
+    """With a delay, the write comes at most that long after the first request not yet done,
+    even while newer requests keep coming (a user typing without a pause)."""
+    room = room_file("classroom.toml")
+    writer = RecoveryWriter(delay_s=0.1)
+    end = time.monotonic() + 5.0
+    i = 0
+    while writer.last_write is None and time.monotonic() < end:
+        writer.keep(room, f"n = {i}\n")
+        i += 1
+        time.sleep(0.01)
+    assert writer.last_write is not None and time.monotonic() < end
+    writer.close()

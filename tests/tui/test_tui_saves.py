@@ -124,6 +124,13 @@ async def test_failed_save_on_quit_keeps_the_app_open_with_the_reason(room_file,
         edited = spec_to_toml(app.screen.document.spec)
         # "quitting always writes the recovery file first": before the question was asked
         assert spec_to_toml(Document.open(find_recovery(path)).spec) == edited
+        # Ctrl+S at once after another edit: that fails too, and the edit is kept.
+        notes.clear()
+        await pilot.press("a", "ctrl+s")
+        await pilot.pause()
+        assert [sev for t, sev in notes if t.startswith("Not saved")] == ["error"]
+        edited = spec_to_toml(app.screen.document.spec)
+        assert spec_to_toml(Document.open(find_recovery(path)).spec) == edited
     assert path.read_bytes() == original
 
 
@@ -360,6 +367,7 @@ async def test_an_edit_is_in_the_recovery_file_without_waiting(room_file, catalo
     async with app.run_test(size=SIZE) as pilot:
         await _ready(pilot)
         await pilot.press("a")
+        await pilot.pause()                            # the screen shows the edit
         assert app.recovery.flush(timeout=5)
         assert spec_to_toml(Document.open(find_recovery(path)).spec) == \
             spec_to_toml(app.screen.document.spec)

@@ -34,6 +34,10 @@ HELP = """\
 | F1 or ? | this help |
 | Ctrl+Q | quit (asks first when there are unsaved changes) |
 
+Unsaved changes are written to a recovery file a moment after each edit. After a crash,
+opening the room again offers them; "Not now" keeps them for later (Ctrl+P, "Restore changes
+kept from before").
+
 ## The numbers
 - **RT60 [s]**: reverberation time, the time for sound to fall by 60 dB, per octave band, by
   Sabine `T = 0.161 V / (A + 4mV)`, Eyring `T = 0.161 V / (-S ln(1 - abar) + 4mV)`,
