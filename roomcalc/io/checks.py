@@ -232,5 +232,12 @@ def _range(low, high, low_open, unit) -> str:
     return f"the allowed range: at most {_fmt(high)}{u}"
 
 
+_BARE = re.compile(r"[A-Za-z0-9_-]+")
+
+
 def _join(where: str, key: str) -> str:
+    """A field's path as the user would write it: a key that is not bare (empty, spaces, dots)
+    is quoted, so that even ``"" = 1`` is named."""
+    if not _BARE.fullmatch(key):
+        key = '"' + key.replace("\\", "\\\\").replace('"', '\\"') + '"'
     return f"{where}.{key}" if where else key
