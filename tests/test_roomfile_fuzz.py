@@ -39,7 +39,7 @@ from conftest import EXAMPLES
 # Cold, dry or thin air outside ISO 9613-1's accuracy range is accepted with this warning.
 pytestmark = pytest.mark.filterwarnings("ignore", category=AirRangeWarning)
 
-FUZZ = settings(max_examples=200, deadline=None,
+FUZZ = settings(max_examples=200, deadline=None, derandomize=True, database=None,
                 suppress_health_check=[HealthCheck.too_slow, HealthCheck.data_too_large])
 EXAMPLE_FILES = sorted(EXAMPLES.glob("*.toml"))
 EXAMPLE_TEXTS = {p.name: p.read_text(encoding="utf-8") for p in EXAMPLE_FILES}
