@@ -170,9 +170,35 @@ def _strict_json(text: str, what: str):
     return json.loads(text, parse_constant=refuse)
 
 
-def _finite_text(text: str, what: str) -> None:
+def _finite_text(text: str, what: str, words=()) -> None:
+    """No nan or inf in ``text``, once the file's own words (a title may say "nan") are out."""
+    for w in words:
+        text = text.replace(w, "")
     m = NON_FINITE.search(text)
     assert m is None, f"{what}: '{m.group(0)}' in ...{text[max(0, m.start() - 80):m.end() + 40]}..."
+
+
+def _user_words(spec) -> list[str]:
+    """Every text the file gave (titles, names, ids), longest first."""
+    from dataclasses import fields, is_dataclass
+
+    found = set()
+
+    def walk(x):
+        if isinstance(x, str):
+            found.add(x)
+        elif is_dataclass(x):
+            for f in fields(x):
+                walk(getattr(x, f.name))
+        elif isinstance(x, dict):
+            for k, v in x.items():
+                walk(k)
+                walk(v)
+        elif isinstance(x, (list, tuple)):
+            for v in x:
+                walk(v)
+    walk(spec)
+    return sorted((w for w in found if w), key=len, reverse=True)
 
 
 def _outputs(study: Study):
@@ -209,10 +235,12 @@ def check_one(text: str) -> str:
     assert (len(room.surfaces), len(room.objects), len(room.sources), len(room.receivers)) == \
         (len(spec.surfaces), len(spec.objects), len(spec.sources), len(spec.receivers)), \
         "an item of the file is missing from the room computed"
+    words = _user_words(spec)
     for what, form, out in outputs:
-        _finite_text(out, what)
         if form == "json":
             _strict_json(out, what)
+        else:
+            _finite_text(out, what, words)
     # A save round trip reproduces the room, and is stable.
     saved = spec_to_toml(study.spec)
     again = parse_spec(saved, str(FILE))
@@ -271,6 +299,10 @@ def run_commands(text: str) -> None:
     from roomcalc import cli
 
     FILE.write_text(text, encoding="utf-8")
+    try:
+        words = _user_words(parse_spec(text, str(FILE)))
+    except RoomFileError:
+        words = []
     for command in COMMANDS:
         argv = command[:1] + [str(FILE)] + command[1:]
         out, err = io.StringIO(), io.StringIO()
@@ -280,9 +312,11 @@ def run_commands(text: str) -> None:
             code = cli.main(argv)
         what = "roomcalc " + " ".join(command)
         assert code in (0, 2), f"{what}: exit {code}"
-        _finite_text(out.getvalue(), what)
-        if "json" in command and (code == 0 or out.getvalue()):
-            _strict_json(out.getvalue(), what)    # (plan's problems go to stderr only)
+        if "json" in command:
+            if code == 0 or out.getvalue():
+                _strict_json(out.getvalue(), what)    # (plan's problems go to stderr only)
+        else:
+            _finite_text(out.getvalue(), what, words)
         if code == 2:
             lines = [x for x in err.getvalue().splitlines() if x.strip()]
             assert lines or (command[0] == "check" and "json" in command), \
