@@ -481,8 +481,10 @@ def _frozen(x):
 
 def _match(old: list[dict], new: list[dict], name: str) -> list[int | None]:
     """For each new entry of an array of tables, the original entry it continues (None: a new
-    one): the same content first, then the same name, then an entry left over between the same
-    neighbours that has a value in common (a renamed and changed one)."""
+    one). In turn: the same content; the same name; an entry left over between the same
+    neighbours with most of its values the same (renamed, perhaps changed); such an entry
+    left over anywhere (renamed and moved). A renamed entry with half its values or more
+    changed counts as deleted and new (its comments are listed by :func:`comments_lost`)."""
     m: list[int | None] = [None] * len(new)
     used: set[int] = set()
     by_content: dict = {}
@@ -493,26 +495,46 @@ def _match(old: list[dict], new: list[dict], name: str) -> list[int | None]:
         if free:
             m[j] = free.pop(0)
             used.add(m[j])
-    if len(used) < len(old):
-        by_name: dict = {}
-        for i, o in enumerate(old):
-            if i not in used:
-                by_name.setdefault(o.get(name), []).append(i)
-        for j, x in enumerate(new):
-            if m[j] is None and by_name.get(x.get(name)):
-                m[j] = by_name[x.get(name)].pop(0)
-                used.add(m[j])
+    if len(used) == len(old):
+        return m
+    by_name: dict = {}
+    for i, o in enumerate(old):
+        if i not in used:
+            by_name.setdefault(o.get(name), []).append(i)
+    for j, x in enumerate(new):
+        if m[j] is None and by_name.get(x.get(name)):
+            m[j] = by_name[x.get(name)].pop(0)
+            used.add(m[j])
     left = [i for i in range(len(old)) if i not in used]
-    if left:
-        for j, x in enumerate(new):
-            if m[j] is not None:
-                continue
-            lo = next((m[k] for k in range(j - 1, -1, -1) if m[k] is not None), -1)
-            hi = next((m[k] for k in range(j + 1, len(new)) if m[k] is not None), len(old))
-            for i in left:
-                if lo < i < hi and any(k != name and k in old[i] and _same(v, old[i][k])
-                                       for k, v in x.items()):
-                    m[j] = i
-                    left.remove(i)
-                    break
+    if not left or all(v is not None for v in m):
+        return m
+
+    def alike(x: dict, o: dict) -> bool:
+        """Most values the same (renamed, perhaps with one of three values changed)."""
+        keys = (x.keys() | o.keys()) - {name}
+        same = sum(1 for k in keys if k in x and k in o and _same(x[k], o[k]))
+        return bool(keys) and 2 * same > len(keys)
+
+    gaps: dict[tuple[int, int], list[int]] = {}
+    lo = -1
+    for j in range(len(new)):
+        if m[j] is not None:
+            lo = m[j]
+            continue
+        hi = next((m[k] for k in range(j + 1, len(new)) if m[k] is not None), len(old))
+        gaps.setdefault((lo, hi), []).append(j)
+    for (lo, hi), js in gaps.items():
+        there = [i for i in left if lo < i < hi]
+        for j in js:
+            i = next((i for i in there if alike(new[j], old[i])), None)
+            if i is not None:
+                m[j] = i
+                there.remove(i)
+                left.remove(i)
+    for j, x in enumerate(new):
+        if m[j] is None and left:
+            i = next((i for i in left if alike(x, old[i])), None)
+            if i is not None:
+                m[j] = i
+                left.remove(i)
     return m
