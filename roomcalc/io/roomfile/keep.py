@@ -89,6 +89,7 @@ class _Table:
     entries: list[_Entry] = field(default_factory=list)
     tail: list[str] = field(default_factory=list)   # comments right after the last entry
     data: dict = field(default_factory=dict)
+    content: object = None   # _content(data), for matching entries of arrays of tables
 
     def comments(self, skip: int = 0) -> list[str]:
         """Its comments as written, in order (``skip``: lines of the lead not counted)."""
@@ -118,8 +119,9 @@ def _trail_comment(text: str) -> list[str]:
 
 
 _BARE = re.compile(r"[A-Za-z0-9_-]+")
-_SIMPLE = re.compile(r"[^\"'#\[\]{}]*")      # a value with no string, comment or brackets
-_FLAT = re.compile(r"\[[^\"'#\[\]{}]*\]")     # a one-line list of numbers
+#: A value on one line that needs no scanning: a string with no escapes, a value with no
+#: string or brackets, or a list of such; then spaces and perhaps a comment.
+_ONE_LINE = re.compile(r"(\"[^\"\\]*\"|[^\"'#\[\]{}]*?|\[[^\"'#\[\]{}]*\])(\s*(?:#.*)?)")
 _HEADER = re.compile(r"\s*(\[\[?)\s*([A-Za-z0-9_-]+)\s*(\]\]?)\s*(#.*)?")
 
 
@@ -161,7 +163,8 @@ def _layout(text: str) -> _Layout:
                 tdata = data[kind][n]
             else:
                 tdata = data[kind]
-            table = _Table(kind, lead, line, data=tdata)
+            table = _Table(kind, lead, line, data=tdata,
+                           content=_content(tdata) if array else None)
             tables.append(table)
             pending = []
             i += 1
@@ -217,10 +220,9 @@ def _read_key(line: str) -> tuple[str, int]:
 def _read_value(lines: list[str], i: int, at: int) -> tuple[int, str, list[str]]:
     """Where the value starting at ``lines[i][at:]`` ends: (its last line, the text after it on
     that line, the comments inside it)."""
-    rest = lines[i][at:]
-    if _SIMPLE.fullmatch(rest) or _FLAT.fullmatch(rest.rstrip()):
-        body = rest.rstrip()
-        return i, rest[len(body):], []
+    m = _ONE_LINE.fullmatch(lines[i], at)
+    if m:
+        return i, m.group(2), []
     inner: list[str] = []
     depth, k, n = 0, at, i
     line = lines[n]
@@ -315,7 +317,8 @@ def _merge(spec: RoomSpec, original: str | None) -> tuple[str, list[str]]:
             deleted.update(id(t) for t in olds if new is None)
         else:
             news = d.get(kind) or []
-            match = _match([t.data for t in olds], news, "id" if kind == "materials" else "name")
+            match = _match([t.data for t in olds], news, "id" if kind == "materials" else "name",
+                           [t.content for t in olds])
             pairs[kind] = [(olds[m] if m is not None else None, x) for m, x in zip(match, news)]
             used = {m for m in match if m is not None}
             deleted.update(id(t) for j, t in enumerate(olds) if j not in used)
@@ -467,6 +470,17 @@ def _same(a, b) -> bool:
     return type(a) is type(b) and a == b
 
 
+def _content(d: dict):
+    """A hashable stand-in for an entry's content (equal for equal content; an int and a
+    float of the same value hash alike)."""
+    try:
+        k = tuple(d.items())
+        hash(k)
+        return k
+    except TypeError:           # lists or tables among the values
+        return _frozen(d)
+
+
 def _frozen(x):
     if isinstance(x, bool):
         return x
@@ -479,7 +493,8 @@ def _frozen(x):
     return x
 
 
-def _match(old: list[dict], new: list[dict], name: str) -> list[int | None]:
+def _match(old: list[dict], new: list[dict], name: str,
+           old_content: list | None = None) -> list[int | None]:
     """For each new entry of an array of tables, the original entry it continues (None: a new
     one). In turn: the same content; the same name; an entry left over between the same
     neighbours with most of its values the same (renamed, perhaps changed); such an entry
@@ -488,10 +503,10 @@ def _match(old: list[dict], new: list[dict], name: str) -> list[int | None]:
     m: list[int | None] = [None] * len(new)
     used: set[int] = set()
     by_content: dict = {}
-    for i, o in enumerate(old):
-        by_content.setdefault(_frozen(o), []).append(i)
+    for i, o in enumerate(old_content or [_content(o) for o in old]):
+        by_content.setdefault(o, []).append(i)
     for j, x in enumerate(new):
-        free = by_content.get(_frozen(x))
+        free = by_content.get(_content(x))
         if free:
             m[j] = free.pop(0)
             used.add(m[j])
