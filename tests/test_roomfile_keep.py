@@ -450,6 +450,20 @@ def test_a_layout_not_followed_line_by_line_says_what_it_drops():
     assert comments_lost(spec, text) == ["# at the desk", "# my limit"]
 
 
+def test_emptied_air_stays_for_its_comments_and_a_removed_target_says_so():
+    doc, text = document("classroom.toml")
+    doc.change(lambda spec: (setattr(spec.air, "temperature", None),
+                             setattr(spec.air, "relative_humidity", None)), "a")
+    out = check_written(doc, text, [])
+    assert "\n[air]  # header <air>\n" in out
+    doc.change(lambda spec: setattr(spec, "target", None), "t")
+    out = doc.text
+    assert parse_spec(out) == doc.spec and "[target]" not in out
+    lost = comments_lost(doc.spec, text)
+    assert lost and {tag_of(c) for c in lost} == {"target"}
+    assert Counter(comments(out)) == Counter(comments(text)) - Counter(lost)
+
+
 def test_without_an_original_the_plain_text():
     spec = parse_spec(HAND)
     assert spec_to_toml_keeping(spec, None) == spec_to_toml(spec)

@@ -12,23 +12,29 @@ edited spec table by table:
   as :func:`roomcalc.io.roomfile.write.toml_value` writes it, with the end-of-line comment
   kept; a key the edit removed leaves its comments where it was; a new key goes after the key
   before it in the documented order;
-- the entries of an array of tables are matched to the original's (same content, then same
-  name or id, then the item left in the same place with a value in common), so that moving,
-  renaming, duplicating, adding and deleting carry each entry's comments with it; new entries
-  and tables are written as :func:`roomcalc.io.roomfile.write.spec_to_toml` writes them;
-- comments between tables stay with the table below them, comments at the end of the file at
-  the end.
+- the entries of an array of tables are matched to the original's (the same content, else
+  the same name or id, else one left over between the same neighbours, or anywhere, with most
+  of its values the same), so that moving, renaming, duplicating, adding and deleting carry
+  each entry's comments with it; new entries and tables are written as
+  :func:`roomcalc.io.roomfile.write.spec_to_toml` writes them, where the documented order puts
+  them;
+- comments between tables stay with the table below them (those right under a table's last
+  line, before a blank line, with that table), comments at the end of the file at the end; the
+  file's line ends (LF or CRLF) are kept.
 
 What can be lost: the comments of an entry the edit deleted (above its header if not
-separated from it by a blank line, on its lines, inside it). A comment block separated from
-a deleted entry's header by a blank line moves to the next table that stays.
-:func:`comments_lost` lists those before saving. A file laid out in a way this reader does not
-follow line by line (dotted keys, sub-tables such as ``[target.max_level_dba]``, a table
-written inline at the top level) is written as :func:`spec_to_toml` writes it, keeping the
-comments at its top, and :func:`comments_lost` lists the others.
+separated from it by a blank line, on its lines, inside it), and of ``[target]`` if the spec
+has none. An entry renamed *and* with half its values or more changed is taken for a deleted
+one and a new one. A comment block separated from a deleted entry's header by a blank line
+moves to the next table that stays; an ``[air]`` whose keys are all removed stays, empty, for
+its comments. :func:`comments_lost` lists what goes, before saving. A file laid out in a way
+this reader does not follow line by line (dotted keys, sub-tables such as
+``[target.max_level_dba]``, a table written inline at the top level) is written as
+:func:`spec_to_toml` writes it, keeping the comments at its top, and :func:`comments_lost`
+lists the others.
 
 The result always reads back to the spec (``parse_spec(text) == spec``), and writing the same
-spec over the result gives the result again (a test checks both).
+spec over the result gives the result again (tests/test_roomfile_keep.py checks both).
 """
 
 from __future__ import annotations
@@ -311,8 +317,8 @@ def _merge(spec: RoomSpec, original: str | None) -> tuple[str, list[str]]:
         olds = old[kind]
         if kind in SINGLE_TABLES:
             new = d.get(kind)
-            if new is None and olds and olds[0].comments():
-                new = {}                     # keep an emptied [air] for its comments
+            if new is None and kind == "air" and olds and olds[0].comments():
+                new = {}        # an emptied [air] stays for its comments (it reads the same)
             pairs[kind] = [(olds[0] if olds else None, new)] if new is not None else []
             deleted.update(id(t) for t in olds if new is None)
         else:
@@ -366,14 +372,14 @@ def _fallback(spec: RoomSpec, original: str) -> tuple[str, list[str]]:
     while head and not head[-1].strip():
         head.pop()
     text = spec_to_toml(spec)
-    lost = [c for c in _all_comments(lines[len(head):])]
+    lost = _all_comments(lines[len(head):])
     return ("\n".join(head) + "\n" + text) if head else text, lost
 
 
 def _all_comments(lines: list[str]) -> list[str]:
     """Every comment in lines of TOML (outside strings), as written."""
     out = []
-    for n, line in enumerate(lines):
+    for line in lines:
         if "#" not in line:
             continue
         s = line.lstrip()
