@@ -27,7 +27,7 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from roomcalc.io.roomfile import (comments_lost, parse_spec, spec_to_toml,
-                                  spec_to_toml_keeping)
+                                  spec_to_toml_keeping, toml_value)
 from roomcalc.study.edits import (change_bands, convert_units, set_criterion, set_item_fields,
                                   set_objective, set_own_rt60_limit)
 from roomcalc.tui.document import Document
@@ -328,6 +328,23 @@ def test_edited_room_keeps_its_comments(name, edit, catalog):
     if edit == "values":
         changed = [(a, b) for a, b in zip(text.splitlines(), written.splitlines()) if a != b]
         assert len(changed) == 3 and all(b.endswith(a[a.index("  #"):]) for a, b in changed)
+
+
+def test_a_list_over_several_lines_keeps_its_lines_when_numbers_change():
+    """Only the changed numbers are rewritten; the comments inside stay beside their numbers.
+    A list that changes length is written on one line, its comments just above it."""
+    doc, text = document("workshop.toml")
+    doc.change(lambda spec: set_item_fields(spec, "receivers", 0, {"position": [4.0, 2.5, 1.6]}),
+               "p")
+    out = check_written(doc, text, [])
+    changed = [(a, b) for a, b in zip(text.splitlines(), out.splitlines()) if a != b]
+    assert changed == [("    2.2, 1.6,", "    2.5, 1.6,")]
+    doc.change(lambda spec: change_bands(spec, (125, 250, 500, 1000, 2000, 4000, 8000)), "b")
+    out = check_written(doc, text, [])
+    line = "sound_power = " + toml_value(doc.spec.sources[0].sound_power) + \
+        "  # value <sources 0> sound_power"
+    at = out.splitlines().index(line)
+    assert out.splitlines()[at - 1] == "# inner <sources 0> sound_power"
 
 
 def test_the_classroom_keeps_the_comment_above_its_target(catalog):

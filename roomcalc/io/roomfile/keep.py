@@ -449,6 +449,8 @@ def _write_table(t: _Table, new: dict, out: list[str], carried: dict) -> None:
             v = new[e.key]
             if _same(v, e.value):
                 out += e.lines
+            elif len(e.lines) > 1 and (kept := _numbers_in_place(e, v)) is not None:
+                out += kept
             else:
                 indent = e.prefix[:len(e.prefix) - len(e.prefix.lstrip())]
                 out += [indent + c for c in e.inner]
@@ -459,6 +461,36 @@ def _write_table(t: _Table, new: dict, out: list[str], carried: dict) -> None:
         for k in after.get(e.key, ()):
             out.append(f"{toml_key(k)} = {toml_value(new[k])}")
     out += t.tail
+
+
+_NUMBER_OR_COMMENT = re.compile(r"#[^\n]*|[-+]?\d[\d_]*(?:\.\d[\d_]*)?(?:[eE][-+]?\d[\d_]*)?")
+
+
+def _numbers_in_place(e: _Entry, new) -> list[str] | None:
+    """A list of numbers written over several lines, changed but as long as it was: the lines
+    with only the changed numbers rewritten, so its comments stay beside the numbers they were
+    beside. None if it is not such a list."""
+    old = e.value
+    if not (isinstance(new, list) and isinstance(old, list) and len(new) == len(old)) or \
+            not all(isinstance(x, (int, float)) and not isinstance(x, bool)
+                    for x in new + old):
+        return None
+    whole = "\n".join(e.lines)
+    start, end = len(e.prefix), len(whole) - len(e.trail)
+    body = whole[start:end]
+    pieces, at, k = [], 0, 0
+    for m in _NUMBER_OR_COMMENT.finditer(body):
+        if m.group(0).startswith("#"):
+            continue
+        if k >= len(old) or float(m.group(0).replace("_", "")) != old[k]:
+            return None
+        if not _same(new[k], old[k]):
+            pieces += [body[at:m.start()], toml_value(new[k])]
+            at = m.end()
+        k += 1
+    if k != len(old):
+        return None
+    return (whole[:start] + "".join(pieces) + body[at:] + whole[end:]).split("\n")
 
 
 def _same(a, b) -> bool:
