@@ -59,11 +59,9 @@ def test_counts_from_edits_are_written_whole_and_fractions_kept():
 def test_saved_over_the_original_keeps_whole_counts_and_reads_back_the_same(catalog):
     """The interface's writer (comments kept) obeys the same round trip as the plain one, for
     every example room, unchanged and edited as the interface types numbers."""
-    from conftest import ROOT
-
     from roomcalc.io.roomfile import resolve, spec_to_toml_keeping
 
-    for path in sorted((ROOT / "example_rooms").glob("*.toml")):
+    for path in sorted(EXAMPLES.glob("*.toml")):
         text = path.read_text(encoding="utf-8")
         spec = parse_spec(text)
         assert spec_to_toml_keeping(spec, text) == text
