@@ -508,7 +508,7 @@ def test_values_are_exact():
 def _op(doc: Document, rng, tags: dict, deleted: list, renamed: set) -> None:
     coll = rng.choice([c for c in COLLECTIONS if c in tags])
     items = doc.items(coll)
-    kind = rng.choice(["value", "add", "delete", "move", "duplicate", "rename"])
+    kind = rng.choice(["value", "add", "delete", "move", "duplicate", "rename", "room"])
     if not items:
         kind = "add"
     i = rng.randrange(len(items)) if items else 0
@@ -535,6 +535,16 @@ def _op(doc: Document, rng, tags: dict, deleted: list, renamed: set) -> None:
         tags[coll].insert(to, tags[coll].pop(i))
     elif kind == "duplicate":
         tags[coll].insert(doc.duplicate(coll, i), None)
+    elif kind == "room":                # the room's own settings, optional keys, bands, units
+        nb = len(doc.spec.bands)
+        doc.change(rng.choice([
+            lambda s: convert_units(s, "imperial" if s.units == "metric" else "metric"),
+            lambda s: change_bands(s, rng.choice([(125, 250, 500, 1000, 2000, 4000),
+                                                  (63, 125, 250, 500, 1000, 2000, 4000)])),
+            lambda s: setattr(s.air, "pressure_kpa", None if s.air.pressure_kpa else 99.0),
+            lambda s: set_item_fields(s, "surfaces", 0, {"alpha": [0.2] * nb}),
+            lambda s: set_criterion(s, None),
+            lambda s: set_objective(s, "area")]), "room")
     elif kind == "rename":
         doc.change(lambda s: set_item_fields(s, coll, i, {"name": f"R{rng.randrange(99)}"
                                                           f"-{items[i].name[:8]}"}), "r")

@@ -568,14 +568,16 @@ def _match(old: list[dict], new: list[dict], name: str,
         same = sum(1 for k in keys if k in x and k in o and _same(x[k], o[k]))
         return bool(keys) and 2 * same > len(keys)
 
+    after = [len(old)] * (len(new) + 1)     # the original index of the next matched entry
+    for j in range(len(new) - 1, -1, -1):
+        after[j] = m[j] if m[j] is not None else after[j + 1]
     gaps: dict[tuple[int, int], list[int]] = {}
     lo = -1
     for j in range(len(new)):
         if m[j] is not None:
             lo = m[j]
-            continue
-        hi = next((m[k] for k in range(j + 1, len(new)) if m[k] is not None), len(old))
-        gaps.setdefault((lo, hi), []).append(j)
+        else:
+            gaps.setdefault((lo, after[j + 1]), []).append(j)
     for (lo, hi), js in gaps.items():
         there = [i for i in left if lo < i < hi]
         for j in js:
