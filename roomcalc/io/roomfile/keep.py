@@ -65,7 +65,9 @@ def spec_to_toml_keeping(spec: RoomSpec, original_text: str | None) -> str:
 
 def comments_lost(spec: RoomSpec, original_text: str | None) -> list[str]:
     """The comments of ``original_text`` that :func:`spec_to_toml_keeping` cannot keep for
-    this spec (those of deleted entries), each as written (``# ...``), in file order."""
+    this spec (those of deleted entries; the module's notes say which), each as written
+    (``# ...``), in file order; empty when every comment is kept. For a confirmation before
+    saving."""
     return _merge(spec, original_text)[1]
 
 
