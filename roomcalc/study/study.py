@@ -157,10 +157,16 @@ class Study:
         return compare(before, after)
 
     def write_treated(self, run: PlanRun, path) -> RoomSpec:
-        """Write the treated room as a new room file (atomic); returns its spec."""
-        from roomcalc.io.roomfile import save_spec
+        """Write the treated room as a new room file (atomic), with the comments of the file it
+        was read from where they still belong; returns its spec."""
+        from roomcalc.io.atomic import write_text_atomic
+        from roomcalc.io.roomfile import spec_to_toml_keeping
 
         treated = self.treated_spec(run)
-        save_spec(treated, Path(path))
+        try:
+            original = Path(self.filename).read_text(encoding="utf-8")
+        except (OSError, UnicodeDecodeError):
+            original = None
+        write_text_atomic(Path(path), spec_to_toml_keeping(treated, original))
         return treated
 
