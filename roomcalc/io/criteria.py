@@ -173,11 +173,11 @@ def parse_criteria(data: dict, filename: str) -> list[Criterion]:
 def _entry(e: dict, w: str, chk: Checker) -> Criterion | None:
     before = len(chk.problems)
     chk.keys(e, w, ALL_KEYS)
-    cid = chk.text(e, "id", w, required=True)
+    cid = chk.text(e, "id", w, required=True, nonempty=True)
     if cid is not None and not ID_PATTERN.match(cid):
         chk.add(f"{w}.id", f"'{cid}' must be lowercase words joined by hyphens (letters a-z, "
                 "digits, dots inside a word), e.g. 'din-18041-2016-a3'")
-    text = {k: chk.text(e, k, w, required=True)
+    text = {k: chk.text(e, k, w, required=True, nonempty=True)
             for k in ("title", "edition", "source", "provenance", "governs")}
     confidence = chk.text(e, "confidence", w, required=True, choices=CONFIDENCE)
     prov = text["provenance"]
