@@ -196,6 +196,18 @@ def test_an_empty_text_in_a_catalogue_file_is_refused(tmp_path, old, new, field)
     assert f"{path}: {field}: is empty: give a value" in got, got
 
 
+def test_a_catalogue_object_value_outside_its_range_is_refused(tmp_path):
+    from roomcalc.io.catalog import load_catalog_file
+
+    path = tmp_path / "mine.toml"
+    path.write_text(edit(('kind = "surface"', 'kind = "object"'), ("125 = 0.1", "125 = 1e9"),
+                         text=CATALOGUE_ENTRY), encoding="utf-8")
+    with pytest.raises(RoomFileError) as info:
+        load_catalog_file(path)
+    assert [str(p) for p in info.value.problems] == [
+        f"{path}: materials[0].values.125: 1e+09 is outside 0 to 1000 m^2"]
+
+
 @pytest.mark.parametrize("key", ["title", "source", "governs"])
 def test_an_empty_text_in_a_criteria_file_is_refused(tmp_path, key):
     from roomcalc.io.criteria import load_criteria_file
@@ -223,6 +235,16 @@ def test_a_receiver_a_hair_from_a_source_is_refused_by_the_loader(tmp_path, cata
     # and the command line says the same, never the engine's message
     code, out, err = cli(capsys, "report", str(tmp_path / "room.toml"))
     assert code == 2 and "receivers[0].position" in err and "distance to a source" not in err
+
+
+def test_positions_too_far_apart_are_refused_as_a_distance_would_be(tmp_path, catalog):
+    text = edit(("length = 5.0\nwidth = 4.0\nheight = 3.0", "volume = 60.0"),
+                ('face = "floor"', "area = 20.0"),
+                ('position = [1.0, 1.0, 1.0]', 'position = [-9000.0, 0.0, 0.0]'),
+                ('position = [4.0, 3.0, 1.2]', 'position = [9000.0, 0.0, 0.0]'))
+    assert refused(tmp_path, catalog, text) == [
+        "receivers[0].position: [9000.0, 0.0, 0.0] is 1.8e+04 m from source 'Fan'; a "
+        "receiver must be at most 10000 m from each source"]
 
 
 def test_a_given_distance_below_the_engine_limit_is_refused(tmp_path, catalog):
@@ -388,8 +410,14 @@ def test_an_imperial_file_is_told_its_ranges_in_feet(tmp_path, catalog):
 def test_the_documented_ranges_are_the_ones_in_force():
     from roomcalc.io.limits import ranges_table
 
+    from roomcalc.io import limits
+
     doc = (ROOT / "docs" / "room-files.md").read_text(encoding="utf-8")
     assert ranges_table() in doc
+    assert f"| file size | at most {limits.MAX_FILE_BYTES:,} bytes " in doc
+    assert f"| line length | at most {limits.MAX_LINE_CHARS:,} characters |" in doc
+    assert f"in a key or a table header | at most {limits.MAX_KEY_PARTS} |" in doc
+    assert f"(`[[1]]` is 2) | at most {limits.MAX_NESTING} |" in doc
 
 
 def test_wide_numbers_keep_their_columns_apart():
@@ -433,7 +461,8 @@ EDGE_ROOMS = {
     # No absorption but the air's, in hot humid air where the air absorbs least.
     "live-room": edit(("alpha = [0.02, 0.02, 0.03, 0.03, 0.04, 0.05]",
                        "alpha = [0.0, 0.0, 0.0, 0.0, 0.0, 0.0]"),
-                      ('material = "concrete-floor-painted"', "alpha = [0.0, 0.0, 0.0, 0.0, 0.0, 0.0]"),
+                      ('material = "concrete-floor-painted"',
+                       "alpha = [0.0, 0.0, 0.0, 0.0, 0.0, 0.0]"),
                       ("count = 100", "count = 0"),
                       ('units = "metric"', 'units = "metric"\n[air]\ntemperature = 60.0\n'
                        'relative_humidity = 100.0')),
@@ -492,6 +521,8 @@ def test_the_quiet_worker_is_below_the_formula_not_minus_infinity(tmp_path, caps
     code, out, _ = cli(capsys, "report", str(p), "--format", "json")
     exposure = _strict_json(out, "json")["exposure"]["Desk"]
     assert exposure["osha_twa_dba"] is None and exposure["osha_dose_percent"] == 0.0
+    code, out, _ = cli(capsys, "report", str(p), "--format", "csv")
+    assert f"osha_twa,Desk,dBA,,,,,,,{NO_VALUE}" in out.splitlines()
 
 
 def test_the_live_room_report_keeps_its_columns(tmp_path, capsys):
@@ -518,16 +549,16 @@ def test_the_hostile_dotted_key_is_refused_before_parsing(tmp_path, catalog, cap
     path = tmp_path / "hostile.toml"
     path.write_text(HOSTILE, encoding="utf-8")
     got = refused(tmp_path, catalog, HOSTILE, name="hostile.toml")
-    assert got == ["line 1: a dotted key has more than 32 parts; keys of at most 32 parts are "
+    assert got == ["line 1: a dotted key has more than 8 parts; keys of at most 8 parts are "
                    "read (room files use 2 or 3)"]
     code, out, err = cli(capsys, "check", str(path))
-    assert code == 2 and f"{path}: line 1: a dotted key has more than 32 parts" in err
+    assert code == 2 and f"{path}: line 1: a dotted key has more than 8 parts" in err
 
 
 def test_a_dotted_key_of_many_parts_on_a_short_line_is_refused(tmp_path, catalog):
-    text = BOX + "x" + ".x" * 40 + " = 1\n"
+    text = BOX + "x" + ".x" * 8 + " = 1\n"
     assert refused(tmp_path, catalog, text)[0].startswith(
-        f"line {LAST}: a dotted key has more than 32 parts")
+        f"line {LAST}: a dotted key has more than 8 parts")
 
 
 def test_a_dotted_table_header_counts_its_parts_too(tmp_path, catalog):
@@ -544,9 +575,9 @@ def test_dots_in_values_and_strings_are_not_key_parts(tmp_path, catalog):
 
 
 def test_deep_brackets_are_refused_before_parsing(tmp_path, catalog):
-    text = BOX + "y = " + "[" * 33 + "]" * 33 + "\n"
+    text = BOX + "y = " + "[" * 9 + "]" * 9 + "\n"
     assert refused(tmp_path, catalog, text) == [
-        f"line {LAST}: arrays or inline tables are nested more than 32 deep; at most 32 "
+        f"line {LAST}: arrays or inline tables are nested more than 8 deep; at most 8 "
         "levels are read"]
 
 
@@ -565,12 +596,12 @@ def test_a_file_too_large_is_refused_without_reading_it(tmp_path, catalog):
     path = tmp_path / "huge.toml"
     with open(path, "wb") as f:
         f.write(b"# " + b"x" * 60 + b"\n")
-        f.truncate(MAX_FILE_BYTES + 1)       # a sparse file: no need to write 8 MB
+        f.truncate(MAX_FILE_BYTES + 1)       # a sparse file: no need to write 4 MB
     with pytest.raises(RoomFileError) as info:
         read_room(path, catalog)
     assert str(info.value) == (f"{path}: is {MAX_FILE_BYTES + 1:,} bytes; roomcalc reads data "
-                               f"files of at most {MAX_FILE_BYTES:,} bytes (8 MB; a room of "
-                               "2,000 surfaces is about 250 kB)")
+                               f"files of at most {MAX_FILE_BYTES:,} bytes (4 MB; a room of "
+                               "2,000 surfaces is about 200 kB)")
 
 
 def test_a_room_of_2000_surfaces_passes_the_guard(tmp_path, catalog):
@@ -591,7 +622,7 @@ def test_the_guard_covers_catalogue_and_criteria_files(tmp_path):
         path.write_text(HOSTILE, encoding="utf-8")
         with pytest.raises(RoomFileError) as info:
             loader(path)
-        assert str(info.value).startswith(f"{path}: line 1: a dotted key has more than 32 parts")
+        assert str(info.value).startswith(f"{path}: line 1: a dotted key has more than 8 parts")
 
 
 GUARD_FUZZ = settings(max_examples=150, deadline=None,

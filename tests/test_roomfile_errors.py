@@ -327,7 +327,7 @@ def test_broken_toml_integer_too_long_to_read(tmp_path, catalog):
 
 def test_broken_toml_nested_too_deeply(tmp_path, catalog):
     got = only(tmp_path, catalog, GOOD + "x = " + "[" * 5000 + "]" * 5000 + "\n")
-    assert got == ("line 27: arrays or inline tables are nested more than 32 deep; at most 32 "
+    assert got == ("line 27: arrays or inline tables are nested more than 8 deep; at most 8 "
                    "levels are read")
 
 

@@ -51,13 +51,14 @@ from roomcalc.engine.criteria import (ASSESS_MODES, CONFIDENCE, KINDS, OCCUPANCI
 from roomcalc.io import paths
 from roomcalc.io.checks import Checker, nearest, read_toml_file, toml_files
 from roomcalc.io.errors import Problem, RoomFileError
+from roomcalc.io.limits import RANGES
 
 ID_PATTERN = re.compile(r"^[a-z0-9]+(\.[a-z0-9]+)*(-[a-z0-9]+(\.[a-z0-9]+)*)*$")
 FORMAT_VERSION = 1
-#: Largest reverberation time accepted as a limit or target [s].
-RT60_LIMIT_MAX_S = 20.0
-#: Largest volume accepted [m^3].
-VOLUME_MAX_M3 = 1e6
+#: Largest reverberation time accepted as a limit or target [s] (as in room files).
+RT60_LIMIT_MAX_S = RANGES["rt60_limit"].high
+#: Largest volume accepted [m^3] (as in room files).
+VOLUME_MAX_M3 = RANGES["volume"].high
 #: Largest tolerance in seconds [s] and largest upper tolerance factor.
 TOLERANCE_SECONDS_MAX = 5.0
 TOLERANCE_FACTOR_MAX = 5.0

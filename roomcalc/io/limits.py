@@ -135,14 +135,14 @@ def ranges_table() -> str:
 
 # ----------------------------------------------------------------------------- size guard
 
-#: Largest data file read [bytes]. A room of 2,000 surfaces is about 250 kB.
-MAX_FILE_BYTES = 8 * 1024 * 1024
+#: Largest data file read [bytes]. A room of 2,000 surfaces is about 200 kB.
+MAX_FILE_BYTES = 4 * 1024 * 1024
 #: Longest line [characters] (a long inline list of band values is a few hundred).
 MAX_LINE_CHARS = 20000
 #: Most parts of one dotted key (``a.b.c`` has 3); room files use 2 or 3.
-MAX_KEY_PARTS = 32
+MAX_KEY_PARTS = 8
 #: Deepest nesting of arrays and inline tables (``[[1]]`` is 2); room files use 2 or 3.
-MAX_NESTING = 32
+MAX_NESTING = 8
 
 # Tokens the guard looks at; everything else is skipped by the regular expression engine.
 _TOKENS = re.compile(r'"""(?:[^"\\]|\\.|"(?!""))*"{3,5}'
@@ -162,7 +162,7 @@ def guard_size(size: int, filename: str) -> None:
     if size > MAX_FILE_BYTES:
         _refuse(filename, "", f"is {size:,} bytes; roomcalc reads data files of at most "
                 f"{MAX_FILE_BYTES:,} bytes ({MAX_FILE_BYTES // 1024 // 1024} MB; a room of "
-                "2,000 surfaces is about 250 kB)")
+                "2,000 surfaces is about 200 kB)")
 
 
 def guard_text(text: str, filename: str) -> None:

@@ -238,14 +238,19 @@ def _receivers(spec: RoomSpec, sources: list[Source], chk: Checker) -> list[Rece
         pos = tuple(x * u.length for x in r.position) if r.position else None
         out.append(Receiver(r.name, pos, {k: v * u.length for k, v in r.distances.items()}))
         for s in sources:  # as a given distance: in the range of distance (in SI here)
-            if s.name not in r.distances and pos is not None and s.position is not None and \
-                    not math.dist(pos, s.position) >= RANGES["distance"].low:
-                near, _ = RANGES["distance"].bounds(u)
-                d = math.dist(pos, s.position) / u.length
-                at = f"{d:.3g} {u.length_label} from source '{s.name}'" if d > 0 else \
-                    f"where source '{s.name}' is"
-                chk.add(f"receivers[{i}].position", f"{r.position} is {at}; a receiver must "
-                        f"be at least {near:g} {u.length_label} from each source")
+            if s.name in r.distances or pos is None or s.position is None:
+                continue
+            d_m = math.dist(pos, s.position)
+            rng = RANGES["distance"]
+            if rng.low <= d_m <= rng.high:
+                continue
+            near, far = rng.bounds(u)
+            d = d_m / u.length
+            at = f"{d:.3g} {u.length_label} from source '{s.name}'" if d > 0 else \
+                f"where source '{s.name}' is"
+            chk.add(f"receivers[{i}].position", f"{r.position} is {at}; a receiver must be "
+                    + (f"at least {near:g}" if d_m < rng.low else f"at most {far:g}")
+                    + f" {u.length_label} from each source")
     return out
 
 
