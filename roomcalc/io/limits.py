@@ -6,10 +6,10 @@ Ranges are given in SI (metric) and converted to a file's own units where units 
 imperial file's lengths are checked, and reported, in ft (areas ft^2, volumes ft^3,
 temperatures degF). The ranges are generous for real rooms, from a vocal booth to a large
 hall, and keep every formula finite: a volume of 1e-12 m^3 or a directivity of 5e-324 is
-refused with the allowed range instead of giving RT 0.00 s or -inf levels. Each is at least
-as wide as the checks of the engine it feeds, and never wider where the engine sets a limit
-(roomcalc.engine.checks and the formulas that call it): the file layer refuses first, so the
-user sees the file and the field, not the engine's message.
+refused with the allowed range instead of giving RT 0.00 s or -inf levels. Each lies inside
+what the engine accepts (roomcalc.engine.checks and the formulas that call it; a test reads
+the engine's own limits): the file layer refuses first, so the user sees the file and the
+field, never the engine's message.
 
 The size guard (:func:`guard_text`) runs before the TOML parser: the parser's time grows
 with the square of the parts of a dotted key (an 80 kB line ``a.a.a...= 1`` of 40,000 parts
@@ -61,11 +61,11 @@ ALPHA_MAX = 1.2
 
 #: The allowed range of every physical quantity of a room file, by the name of its key.
 RANGES: dict[str, Range] = {
-    "length": Range(0.1, 1000.0, "length", why="a side of a box room: a booth's 10 cm panel "
-                    "gap to a 1 km hall; the box's volume must also be in range"),
+    "length": Range(0.1, 1000.0, "length", why="a side of a box room, 10 cm to 1 km; the "
+                    "box's volume (length x width x height) must also lie in its range"),
     "volume": Range(1.0, 1e6, "volume", why="a 1 m^3 closet or vocal booth to a 1,000,000 m^3 "
-                    "hall; below, the room is no room for diffuse-field formulas, above, no "
-                    "criterion or formula here applies"),
+                    "hall; smaller, a diffuse field has no meaning; larger, no criterion here "
+                    "covers the room"),
     "area": Range(0.001, 1e5, "area", why="one surface (per unit): 10 cm^2 (a vent) to "
                   "100,000 m^2 (the floor of the largest hall)"),
     "surface_count": Range(1, 10000, unit="units", why="identical surfaces (windows, panels)"),
@@ -79,8 +79,8 @@ RANGES: dict[str, Range] = {
     "sound_power_dba": Range(0.0, 200.0, unit="dB(A)", why="as sound_power, A-weighted"),
     "directivity": Range(0.1, 100.0, unit="(Q)", why="Q of real sources is about 1 to 20 "
                          "(common practice): 1 in free space, 2 on a surface, 4 at an edge, 8 "
-                         "in a corner; a horn on its axis reaches 10 to 50; below 1 a source "
-                         "turned away from the listeners"),
+                         "in a corner; a horn on its axis reaches 10 to 50 (from memory); below "
+                         "1, a source turned away from the listeners"),
     "distance": Range(0.01, 10000.0, "length", why="receiver to source: 1 cm up; a real source "
                       "is no point at such distances, and a warning says so below 0.5 m"),
     "position": Range(-10000.0, 10000.0, "length", why="each coordinate; in a box room, inside "
