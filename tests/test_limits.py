@@ -526,17 +526,27 @@ def test_the_quiet_worker_is_below_the_formula_not_minus_infinity(tmp_path, caps
 
 
 def test_the_live_room_report_keeps_its_columns(tmp_path, capsys):
+    # Eight bands (narrower columns) and RT of thousands of seconds at 63 Hz: every number
+    # stays a number of its own.
+    text = EDGE_ROOMS["live-room"].split("[target]")[0]
+    text = text.replace('units = "metric"', 'units = "metric"\n'
+                        "bands_hz = [63, 125, 250, 500, 1000, 2000, 4000, 8000]")
+    text = re.sub(r"\[\[objects\]\][^\[]*", "", text)
+    for x in ("0.0", "80.0"):
+        text = text.replace("[" + ", ".join([x] * 6) + "]", "[" + ", ".join([x] * 8) + "]")
     p = tmp_path / "live.toml"
-    p.write_text(EDGE_ROOMS["live-room"], encoding="utf-8")
-    code, out, _ = cli(capsys, "report", str(p))
-    assert code == 0
+    p.write_text(text, encoding="utf-8")
+    code, out, err = cli(capsys, "report", str(p))
+    assert code == 0, err
     lines = out.splitlines()
-    start = next(i for i, x in enumerate(lines) if x.startswith("RT60 [s]"))
-    for line in lines[start + 1:start + 6]:
-        if line.startswith("  "):
-            break
-        assert len(line.rsplit(None, 6)[1:]) == 6 and all(
-            re.fullmatch(r"-?[\d.]+(e[+-]\d+)?", x) for x in line.rsplit(None, 6)[1:]), line
+    for head in ("RT60 [s]", "Room  ", "Critical dist."):
+        start = next(i for i, x in enumerate(lines) if x.startswith(head))
+        for line in lines[start + 1:]:
+            if not line.strip() or line.startswith("  "):
+                break
+            cells = line[26:].split()
+            assert len(cells) == 8 and all(re.fullmatch(r"-?[\d.]+(e[+-]\d+)?", x)
+                                           for x in cells), line
 
 
 # ----------------------------------------------------------------------------- 5. size guard
