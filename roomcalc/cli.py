@@ -11,6 +11,10 @@ from pathlib import Path
 from roomcalc import __version__
 
 EXIT_OK, EXIT_INPUT = 0, 2
+#: The exit code after Ctrl+C (128 + SIGINT), as shells report it.
+EXIT_INTERRUPTED = 130
+#: A plan taking longer than this shows its progress on stderr (a terminal only) [s].
+PROGRESS_AFTER_S = 1.0
 
 
 def _parser() -> argparse.ArgumentParser:
@@ -114,7 +118,8 @@ def _main(args) -> int:
     except BrokenPipeError:
         return EXIT_OK
     except KeyboardInterrupt:
-        return 130
+        print("\nroomcalc: stopped (Ctrl+C).", file=sys.stderr)
+        return EXIT_INTERRUPTED
 
 
 def _run(args) -> int:
@@ -223,7 +228,17 @@ def _plan(args, catalog) -> int:
               "reach (criterion = \"<id>\", or rt60_max = [...], or max_level_dba = {...})",
               file=sys.stderr)
         return EXIT_INPUT
-    run = study.plan(objective=args.objective)
+    progress = _StderrProgress() if sys.stderr.isatty() else None
+    try:
+        run = study.plan(objective=args.objective, progress=progress)
+    except KeyboardInterrupt:
+        if progress is not None:
+            progress.clear()
+        print("roomcalc plan: stopped (Ctrl+C); no plan was made and nothing was written.",
+              file=sys.stderr)
+        return EXIT_INTERRUPTED
+    if progress is not None:
+        progress.clear()
     if args.write:
         study.write_treated(run, args.write)
     u = study.spec.unit_system
@@ -241,6 +256,28 @@ def _plan(args, catalog) -> int:
         if args.write:
             print(f"Treated room written to {args.write}")
     return EXIT_OK if run.plan.feasible else 1
+
+
+class _StderrProgress:
+    """The plan's progress on one line of stderr, once the plan has taken more than
+    PROGRESS_AFTER_S (a quick plan prints nothing)."""
+
+    def __init__(self) -> None:
+        self.shown = False
+
+    def __call__(self, p) -> None:
+        if p.elapsed_s < PROGRESS_AFTER_S:
+            return
+        line = f"planning: {p.text}  {p.elapsed_s:.1f} s  (Ctrl+C stops)"
+        sys.stderr.write("\r\033[K" + line[:200])
+        sys.stderr.flush()
+        self.shown = True
+
+    def clear(self) -> None:
+        if self.shown:
+            sys.stderr.write("\r\033[K")
+            sys.stderr.flush()
+            self.shown = False
 
 
 def _interface(args, catalog) -> int:
