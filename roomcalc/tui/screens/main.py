@@ -429,7 +429,15 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
             self.call_after_refresh(self.query_one(f"#t-{tab} #table").focus)
 
     def action_view_tab(self, tab: str) -> None:
-        self.query_one("#view", TabbedContent).active = tab
+        view = self.query_one("#view", TabbedContent)
+        focused = self.focused
+        if tab != view.active and focused is not None and view in focused.ancestors:
+            # The focus is in the tab being left (the Plan tab's list): a TabbedContent shows
+            # the tab that holds the focus, so it would stay. The keys go to the room's table.
+            edit = self.query_one("#edit", TabbedContent).active
+            table = self._opt(f"#t-{edit} #table") if edit != "room" else None
+            self.set_focus(table)
+        view.active = tab
         if tab == "v-plan":         # its keys (r, Space) work where the focus is
 
             def focus():
