@@ -302,7 +302,31 @@ def _interface(args, catalog) -> int:
                                          path=Path(args.file) if args.file else None), True
     app = make_app(doc, catalog, AppConfig(ask_box_size=ask_size))
     app.run()
+    _end_with_a_plan_under_way(EXIT_OK)
     return EXIT_OK
+
+
+#: How long a quitting interface waits for a plan it stopped to end by itself [s].
+PLAN_STOP_WAIT_S = 0.3
+
+
+def _end_with_a_plan_under_way(code: int) -> None:
+    """The interface has closed (its screen restored, its files written) while a plan it
+    stopped is still inside a solver call (the planner stops only between calls). Waiting could
+    take as long as that call; letting the interpreter shut down around the solver's own threads
+    aborts the process. So: a short wait, then the process ends at once with ``code``."""
+    import os
+    import threading
+
+    from roomcalc.tui.screens.plan_routes import PLAN_THREAD_NAME
+
+    planning = [t for t in threading.enumerate() if t.name == PLAN_THREAD_NAME and t.is_alive()]
+    for t in planning:
+        t.join(PLAN_STOP_WAIT_S)
+    if any(t.is_alive() for t in planning):
+        sys.stdout.flush()
+        sys.stderr.flush()
+        os._exit(code)
 
 
 if __name__ == "__main__":  # pragma: no cover

@@ -284,3 +284,29 @@ async def test_ctrl_q_during_a_plan_quits_at_once(app_on_room, monkeypatch):
     slow.gate.set()
     slow.wait_outcomes(1)
     assert slow.outcomes == ["cancelled"]
+
+
+def test_the_command_line_ends_at_once_when_a_stopped_plan_is_still_solving(monkeypatch):
+    # After the interface closed, a planner thread still inside a solver call: the process
+    # ends with the exit code after a short wait (the interpreter's shutdown around the
+    # solver's threads would abort); with no such thread, nothing happens.
+    from roomcalc import cli
+    from roomcalc.tui.screens.plan_routes import PLAN_THREAD_NAME
+
+    ended: list[int] = []
+    monkeypatch.setattr("os._exit", ended.append)
+    cli._end_with_a_plan_under_way(0)
+    assert ended == []
+    release = threading.Event()
+    th = threading.Thread(target=release.wait, args=(GATE_TIMEOUT_S,), name=PLAN_THREAD_NAME,
+                          daemon=True)
+    th.start()
+    try:
+        monkeypatch.setattr(cli, "PLAN_STOP_WAIT_S", 0.01)
+        cli._end_with_a_plan_under_way(0)
+        assert ended == [0]
+    finally:
+        release.set()
+        th.join()
+    cli._end_with_a_plan_under_way(0)             # it has ended: nothing more
+    assert ended == [0]

@@ -33,6 +33,9 @@ from roomcalc.tui.widgets.room_form import RECOMMENDED
 PROGRESS_EVERY_S = 0.2
 #: How often the waiting worker looks whether it was cancelled [s].
 POLL_S = 0.02
+#: The name of the thread a plan is made in (the command line looks for it when the
+#: interface has closed: see roomcalc.cli).
+PLAN_THREAD_NAME = "roomcalc-plan"
 
 
 @dataclass(eq=False)
@@ -73,7 +76,7 @@ def plan_in_thread(job: PlanJob, study, enabled, result):
         finally:
             done.set()
 
-    threading.Thread(target=work, name="roomcalc-plan", daemon=True).start()
+    threading.Thread(target=work, name=PLAN_THREAD_NAME, daemon=True).start()
     worker = get_current_worker()
     while not done.wait(POLL_S):
         if worker.is_cancelled:
