@@ -158,6 +158,7 @@ class PlanRoutes:
 
     def on_plan_view_run(self, msg: PlanView.Run) -> None:
         msg.stop()
+        self.stop_plan(None, notify=False)       # a new plan replaces the one running
         view = self.query_one("#plan-view", PlanView)
         spec = self.document.spec
         if self.stale or self.result is None:
@@ -167,7 +168,6 @@ class PlanRoutes:
             view.show_message("Pick what the room must reach first (the first list above), or "
                               "give a [target] in the room file.")
             return
-        self.stop_plan(None, notify=False)       # a new plan replaces the one running
         self._plan_run = None
         job = PlanJob(self.room_version)
         study = self._study.snapshot()          # the planner's own copy of the room

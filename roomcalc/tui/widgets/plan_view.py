@@ -238,6 +238,7 @@ class PlanView(VerticalScroll):
             self.show_message(text)
             stop.disabled = False
             stop.display = True
+            self.refresh_bindings()         # Escape: shown in the key strip while planning
             return
         res = self.query_one("#plan-result", Static)
         if str(res.content) != text:
@@ -248,6 +249,7 @@ class PlanView(VerticalScroll):
         stop = self.query_one("#plan-stop", Button)
         stop.disabled = True
         stop.display = False
+        self.refresh_bindings()
 
     def mark_stale(self) -> None:
         res = self.query_one("#plan-result", Static)
@@ -271,6 +273,12 @@ class PlanView(VerticalScroll):
         rows = [g.get_row_at(i) for i in range(g.row_count)]
         rows[g.cursor_row] = row
         g.set_rows(rows, keys=self._names)
+
+    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
+        if action == "stop":            # Escape stops a plan; with none running it is left free
+            stop = self.query("#plan-stop")
+            return (bool(stop) and stop.first().display) or None
+        return True
 
     def action_stop(self) -> None:
         self.post_message(self.Stop())
