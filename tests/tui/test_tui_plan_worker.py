@@ -169,6 +169,10 @@ async def test_keys_are_handled_while_the_planner_runs(app_on_room, monkeypatch)
         assert slow.outcomes == ["done"]
         run = screen._plan_run
         assert run is not None and run.plan.feasible
+        # It finished while another tab was shown: a note says where it is.
+        assert any("The plan is ready" in str(n.message) for n in app_on_room._notifications)
+        await pilot.press("f9")
+        await pilot.pause()
         assert "The plan meets the target." in _result_text(screen)
         assert not screen.query_one("#plan-apply").disabled
         assert not screen.query_one("#plan-stop").display

@@ -243,6 +243,8 @@ class PlanRoutes:
             self._plan_run, self._plan_version = run, job.version
             u = self.document.spec.unit_system
             view.show_run(run, sections.plan_totals_text(run, u), u.area, u.area_label)
+            if self.query_one("#view").active != "v-plan":
+                self._say("The plan is ready: F9 shows it.")
 
     def on_plan_view_apply(self, msg: PlanView.Apply) -> None:
         msg.stop()
