@@ -21,12 +21,27 @@ an installed program has, from the command's start until the reverberation table
 screen (capture-pane polled every 10 ms), median of 5. Beside it, the floor of the same harness:
 a ``python -c`` that prints the same words.
 
-(3) Edit to recovery file: for the same edits, the time from the app taking the key until the
+(3) Keys while a plan is made: a hall of our own (an invented benchmark scenario, see
+``plan_hall``) with 60 candidates (30 covers in whole panels, 30 kinds of whole units), dB(A)
+limits at 3 receivers, RT by Fitzroy (planned through tightened bounds), least area. A thread
+posts cursor keys (down/up on the surfaces table) every 40 ms; each key's latency runs from the
+moment it is posted until the first repaint after the table has moved its cursor. Three cases
+in the same run: idle (no plan), while the plan runs in its worker thread, and the reference:
+the same plan run on the interface's own thread (as it was before the worker), where every key
+waits for the plan. Beside it, the plan's time in the worker (from the plan's start to its
+result on the screen) against the same plan called directly (median of 5 each).
+
+Run only (3) with ``python benchmarks/bench_tui.py plan``.
+
+(4) Edit to recovery file: for the edits of (1), the time from the app taking the key until the
 recovery writer's thread has the room's text on disk (fsynced and renamed into place); and
-the edit latency again with the writer idle, as the reference the writer must not slow down.
+the edit latency of (1) again with the writer idle, as the reference the writer must not slow
+down.
 
 Targets: the screen is updated within 50 ms of an edit for the 100-surface room; start-up under
-1 s; an edit's recovery file on disk within 200 ms. Printed, never asserted: this is a measurement, not a test.
+1 s; keys during a plan within 50 ms (median), the worker's plan within 1.2 x the direct call;
+an edit's recovery file on disk within 200 ms.
+Printed, never asserted: this is a measurement, not a test.
 """
 
 from __future__ import annotations
@@ -38,6 +53,7 @@ import statistics
 import subprocess
 import sys
 import tempfile
+import threading
 import time
 from pathlib import Path
 
@@ -140,6 +156,207 @@ async def edit_latency(doc: Document, edits: int = 50, row: int = 0, recovery: b
             to_disk)
 
 
+def plan_hall(path: Path, seed: int = 2, n: int = 60) -> Path:
+    """A hall of 24 x 15 x 6 m, 8 bands, three machines and three receivers, with ``n``
+    candidates (half covers in panels of 0.72 m^2 on the roof and walls, half kinds of whole
+    units), dB(A) limits 6 dB under the untreated levels, RT by Fitzroy, least area. Every value
+    is an invented benchmark scenario (random with a fixed seed), not a real room or product."""
+    import random
+
+    rnd = random.Random(seed)
+    hard = [0.01, 0.01, 0.015, 0.02, 0.02, 0.03, 0.04, 0.05]
+    deck = [0.10, 0.08, 0.06, 0.05, 0.05, 0.05, 0.05, 0.05]
+    glass = [0.30, 0.25, 0.18, 0.12, 0.08, 0.05, 0.04, 0.03]
+    out = ["# An invented benchmark scenario, not a real room or real products.", "version = 1",
+           'title = "Benchmark hall, 60 candidates"', 'units = "metric"',
+           "bands_hz = [63, 125, 250, 500, 1000, 2000, 4000, 8000]", "",
+           "[shape]\nlength = 24.0\nwidth = 15.0\nheight = 6.0\n"]
+    for name, area, alpha, face in (
+            ("Floor", None, hard, "floor"), ("Roof deck", None, deck, "ceiling"),
+            ("North windows", 30.0, glass, "left"), ("North wall", None, hard, "left"),
+            ("South wall", None, hard, "right"), ("Doors", 16.0, deck, "front"),
+            ("East wall", None, hard, "front"), ("West wall", None, hard, "back")):
+        out.append(f'[[surfaces]]\nname = "{name}"\nface = "{face}"\n'
+                   + (f"area = {area}\n" if area else "") + f"alpha = {alpha}\n")
+    for name, lw, q, pos in (("Press", [88, 92, 95, 96, 94, 91, 87, 80], 2.0, [5, 4, 0.5]),
+                             ("Saw", [80, 84, 88, 92, 95, 96, 94, 90], 2.0, [16, 10, 0.5]),
+                             ("Fan", [90, 91, 89, 86, 82, 78, 72, 66], 4.0, [23.5, 1, 3])):
+        out.append(f'[[sources]]\nname = "{name}"\nsound_power = {[float(x) for x in lw]}\n'
+                   f"directivity = {q}\nposition = {[float(x) for x in pos]}\n")
+    for name, pos in (("Press operator", [6.5, 4.5, 1.6]), ("Bench", [12.0, 8.0, 1.2]),
+                      ("Office door", [20.0, 13.0, 1.6])):
+        out.append(f'[[receivers]]\nname = "{name}"\nposition = {pos}\n')
+    path.write_text("\n".join(out), encoding="utf-8")
+    from roomcalc.study import Study
+
+    levels = {r.name: r.level_dba for r in Study.from_file(path, load_catalog()).evaluate()
+              .receivers}
+    out.append('[target]\nmethod = "fitzroy"\nobjective = "area"\n'
+               "rt60_max = [1.6, 1.4, 1.2, 1.1, 1.1, 1.1, 1.1, 1.1]\nmax_level_dba = { "
+               + ", ".join(f'"{k}" = {round(v - 6.0, 1)}' for k, v in levels.items()) + " }\n")
+    covers_on = ["Roof deck", "North wall", "South wall", "East wall", "West wall"]
+    for i in range(n):
+        if i < n // 2:
+            low, top, knee = rnd.uniform(0.05, 0.5), rnd.uniform(0.6, 1.0), rnd.uniform(1, 4)
+            alpha = [round(min(top, low + (top - low) * max(k - 1, 0) / knee), 3)
+                     for k in range(8)]
+            out.append(f'[[candidates]]\nname = "Cover {i}"\nsurface = '
+                       f'"{rnd.choice(covers_on)}"\nalpha = {alpha}\nstep = 0.72\n'
+                       f"cost_per_m2 = {rnd.uniform(15, 90):.2f}\n")
+        else:
+            if i % 2:
+                ab = [rnd.uniform(0.8, 2.0), rnd.uniform(0.8, 1.8), rnd.uniform(0.5, 1.2), 0.4,
+                      0.3, 0.25, 0.2, 0.2]
+            else:
+                b = rnd.uniform(0.8, 2.0)
+                ab = [0.1 * b, 0.3 * b, 0.6 * b, b, b, b, 0.9 * b, 0.8 * b]
+            out.append(f'[[candidates]]\nname = "Units {i}"\nabsorption = '
+                       f"{[round(x, 3) for x in ab]}\nmax_count = {rnd.choice((20, 40, 80))}\n"
+                       f"cost_each = {rnd.uniform(40, 400):.2f}\n"
+                       f"area_each = {rnd.uniform(0.5, 2.0):.2f}\n")
+    path.write_text("\n".join(out), encoding="utf-8")
+    return path
+
+
+async def plan_latency(path: Path, plans: int = 5):
+    """Key latencies idle, during a plan in the worker, during the same plan on the interface's
+    thread (lists, seconds); the plan's time in the worker and called directly (medians)."""
+    from textual import events
+
+    from roomcalc.tui.widgets.plan_view import PlanView
+
+    app = make_app(Document.open(path), load_catalog(), AppConfig(recovery_delay_s=3600))
+    async with app.run_test(size=(120, 40)) as pilot:
+        while not app.settled:
+            await pilot.pause(0.1)
+        screen = app.screen
+        await pilot.press("f9")
+        while not screen.query("#plan-candidates"):
+            await pilot.pause(0.05)
+        await pilot.pause(0.2)
+        table = screen.query_one("#t-surfaces #table")
+        table.focus()
+        await pilot.pause(0.2)
+        view = screen.query_one("#plan-view", PlanView)
+        frames: list[float] = []
+        moved: list[float] = []
+        display = app._display
+
+        def timed_display(screen_, update):
+            display(screen_, update)
+            if update is not None and hasattr(update, "render_segments"):
+                update.render_segments(app.console)
+            frames.append(time.perf_counter())
+        app._display = timed_display
+        cursor = table._set_cursor           # what the cursor keys' action calls
+
+        def timed_cursor(*args):
+            cursor(*args)
+            moved.append(time.perf_counter())
+        table._set_cursor = timed_cursor
+
+        def keys_from_thread(posted: list[float], stop: threading.Event, every_s=0.04):
+            k = 0
+            while not stop.is_set() and len(posted) < 200:
+                key = "down" if k % 2 == 0 else "up"
+                posted.append(time.perf_counter())
+                app.post_message(events.Key(key, None))     # thread-safe in Textual
+                k += 1
+                time.sleep(every_s)
+
+        def latencies(posted):
+            out = []
+            for t_key, t_moved in zip(posted, moved):
+                after = [f for f in frames if f >= t_moved]
+                if after:
+                    out.append(after[0] - t_key)
+            return out
+
+        async def keys_during(start, done, settle_s=0.3):
+            frames.clear()
+            moved.clear()
+            posted: list[float] = []
+            stop = threading.Event()
+            await start()
+            th = threading.Thread(target=keys_from_thread, args=(posted, stop))
+            th.start()
+            while not done():
+                await asyncio.sleep(0.05)
+            stop.set()
+            th.join()
+            await asyncio.sleep(settle_s)          # the last keys are handled
+            return latencies(posted)
+
+        async def nothing():
+            pass
+
+        async def plan_started():
+            view.action_run()                       # as the key r does
+            while not screen.planning:
+                await asyncio.sleep(0.005)
+
+        # idle: the same keys for 1 s
+        t_idle = time.perf_counter()
+        idle = await keys_during(nothing, lambda: time.perf_counter() - t_idle > 1.0)
+        # during plans in the worker; and the plan's time in the worker (no keys)
+        during = []
+        for _ in range(plans):
+            during += await keys_during(plan_started, lambda: not screen.planning)
+            assert screen._plan_run is not None
+        worker_t, shown = [], []
+        show_run = view.show_run
+
+        def timed_show_run(*args):
+            show_run(*args)
+            shown.append(time.perf_counter())
+        view.show_run = timed_show_run
+        for _ in range(plans):
+            shown.clear()
+            await asyncio.sleep(0.3)
+            t0 = time.perf_counter()
+            view.action_run()
+            while not shown:        # a coarse poll: it must not take the planner's time
+                await asyncio.sleep(0.05)
+            worker_t.append(shown[0] - t0)
+        run = screen._plan_run
+        # the reference: the same plan on the interface's own thread
+        study, result = screen._study, screen.result
+        blocked = []
+        for _ in range(plans):
+            box = []
+
+            async def on_this_thread(box=box):
+                app.call_later(lambda: box.append(study.plan(result=result)))
+            blocked += await keys_during(on_this_thread, lambda box=box: bool(box))
+        direct_t = []
+        for _ in range(plans):
+            t0 = time.perf_counter()
+            study.snapshot().plan(result=result)
+            direct_t.append(time.perf_counter() - t0)
+    return idle, during, blocked, statistics.median(worker_t), statistics.median(direct_t), run
+
+
+def print_plan_latency(path: Path) -> None:
+    idle, during, blocked, t_worker, t_direct, run = asyncio.run(plan_latency(path))
+    med = statistics.median
+
+    def p95(xs):
+        return sorted(xs)[int(0.95 * (len(xs) - 1))]
+    print(f"keys while a plan is made ({run.plan.status}; {len(run.candidates)} candidates; "
+          "cursor keys every 40 ms, posted from another thread; latency: posted -> repaint)")
+    print(f"{'case':44} {'keys':>5} {'median':>9} {'95 %':>9} {'max':>9} {'ratio':>8}")
+    for label, xs in (("idle (no plan)", idle), ("plan in the worker thread", during),
+                      ("reference: plan on the interface's thread", blocked)):
+        print(f"{label:44} {len(xs):5d} {med(xs) * 1e3:6.1f} ms {p95(xs) * 1e3:6.1f} ms "
+              f"{max(xs) * 1e3:6.1f} ms {med(xs) / med(idle):7.1f}x")
+    print("  ratio: median latency / idle median; target: keys during a plan < 50 ms (median) "
+          + ("met" if med(during) < 0.05 else "NOT met"))
+    print(f"plan time (median of 5): in the worker {t_worker * 1e3:.0f} ms (from its start to its "
+          f"result on the screen), called directly {t_direct * 1e3:.0f} ms, ratio "
+          f"{t_worker / t_direct:.2f}  target < 1.2 "
+          + ("met" if t_worker / t_direct < 1.2 else "NOT met"))
+
+
 def startup(path: Path, runs: int = 5):
     if shutil.which("tmux") is None:
         return None
@@ -215,6 +432,9 @@ def main() -> int:
     with tempfile.TemporaryDirectory() as tmp:
         tmp = Path(tmp)
         os.environ.setdefault("ROOMCALC_DATA_DIR", str(tmp / "data"))
+        if sys.argv[1:] == ["plan"]:
+            print_plan_latency(plan_hall(tmp / "hall.toml"))
+            return 0
         demo = tmp / "garage-studio.toml"
         shutil.copy(ROOT / "example_rooms" / "garage-studio.toml", demo)
         big = big_room(tmp / "big.toml")
@@ -260,6 +480,8 @@ def main() -> int:
                       f"once: {t_floor * 1e3:.0f} ms")
             print(f"  for scale: python -c 'import textual.app' alone takes {t_bare * 1e3:.0f} ms "
                   f"(ratio {t_start / t_bare:.2f})")
+        print()
+        print_plan_latency(plan_hall(tmp / "hall.toml"))
     return 0
 
 

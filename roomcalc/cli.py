@@ -11,6 +11,10 @@ from pathlib import Path
 from roomcalc import __version__
 
 EXIT_OK, EXIT_INPUT = 0, 2
+#: The exit code after Ctrl+C (128 + SIGINT), as shells report it.
+EXIT_INTERRUPTED = 130
+#: A plan taking longer than this shows its progress on stderr (a terminal only) [s].
+PROGRESS_AFTER_S = 1.0
 
 
 def _parser() -> argparse.ArgumentParser:
@@ -114,7 +118,8 @@ def _main(args) -> int:
     except BrokenPipeError:
         return EXIT_OK
     except KeyboardInterrupt:
-        return 130
+        print("\nroomcalc: stopped (Ctrl+C).", file=sys.stderr)
+        return EXIT_INTERRUPTED
 
 
 def _run(args) -> int:
@@ -223,7 +228,17 @@ def _plan(args, catalog) -> int:
               "reach (criterion = \"<id>\", or rt60_max = [...], or max_level_dba = {...})",
               file=sys.stderr)
         return EXIT_INPUT
-    run = study.plan(objective=args.objective)
+    progress = _StderrProgress() if sys.stderr.isatty() else None
+    try:
+        run = study.plan(objective=args.objective, progress=progress)
+    except KeyboardInterrupt:
+        if progress is not None:
+            progress.clear()
+        print("roomcalc plan: stopped (Ctrl+C); no plan was made and nothing was written.",
+              file=sys.stderr)
+        return EXIT_INTERRUPTED
+    if progress is not None:
+        progress.clear()
     if args.write:
         study.write_treated(run, args.write)
     u = study.spec.unit_system
@@ -241,6 +256,28 @@ def _plan(args, catalog) -> int:
         if args.write:
             print(f"Treated room written to {args.write}")
     return EXIT_OK if run.plan.feasible else 1
+
+
+class _StderrProgress:
+    """The plan's progress on one line of stderr, once the plan has taken more than
+    PROGRESS_AFTER_S (a quick plan prints nothing)."""
+
+    def __init__(self) -> None:
+        self.shown = False
+
+    def __call__(self, p) -> None:
+        if p.elapsed_s < PROGRESS_AFTER_S:
+            return
+        line = f"planning: {p.text}  {p.elapsed_s:.1f} s  (Ctrl+C stops)"
+        sys.stderr.write("\r\033[K" + line[:200])
+        sys.stderr.flush()
+        self.shown = True
+
+    def clear(self) -> None:
+        if self.shown:
+            sys.stderr.write("\r\033[K")
+            sys.stderr.flush()
+            self.shown = False
 
 
 def _interface(args, catalog) -> int:
@@ -265,7 +302,31 @@ def _interface(args, catalog) -> int:
                                          path=Path(args.file) if args.file else None), True
     app = make_app(doc, catalog, AppConfig(ask_box_size=ask_size))
     app.run()
+    _end_with_a_plan_under_way(EXIT_OK)
     return EXIT_OK
+
+
+#: How long a quitting interface waits for a plan it stopped to end by itself [s].
+PLAN_STOP_WAIT_S = 0.3
+
+
+def _end_with_a_plan_under_way(code: int) -> None:
+    """The interface has closed (its screen restored, its files written) while a plan it
+    stopped is still inside a solver call (the planner stops only between calls). Waiting could
+    take as long as that call; letting the interpreter shut down around the solver's own threads
+    aborts the process. So: a short wait, then the process ends at once with ``code``."""
+    import os
+    import threading
+
+    from roomcalc.tui.screens.plan_routes import PLAN_THREAD_NAME
+
+    planning = [t for t in threading.enumerate() if t.name == PLAN_THREAD_NAME and t.is_alive()]
+    for t in planning:
+        t.join(PLAN_STOP_WAIT_S)
+    if any(t.is_alive() for t in planning):
+        sys.stdout.flush()
+        sys.stderr.flush()
+        os._exit(code)
 
 
 if __name__ == "__main__":  # pragma: no cover

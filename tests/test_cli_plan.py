@@ -189,3 +189,19 @@ def test_example_classroom_against_ansi_s12_60(capsys, catalog):
     d = json.loads(out)
     assert code == 0 and d["feasible"]
     assert all(x <= 0.6 + 1e-6 for x in d["rt60_after_s"][2:5])
+
+
+def test_the_treated_copy_keeps_the_files_comments(tmp_path, capsys, catalog):
+    """``plan --write``: the treated room carries the comments the user wrote in the room file
+    (the ones above [target] and the candidates too), and reads back as the treated room."""
+    from conftest import EXAMPLES
+
+    src = EXAMPLES / "classroom.toml"
+    comments = [x for x in src.read_text(encoding="utf-8").splitlines() if x.startswith("#")]
+    assert any("What the room must reach" in c for c in comments)
+    out_file = tmp_path / "treated.toml"
+    code, _, err = run(capsys, "plan", str(src), "--write", str(out_file))
+    assert code == 0, err
+    written = out_file.read_text(encoding="utf-8").splitlines()
+    assert [x for x in written if x.startswith("#")] == comments
+    read_room(out_file, catalog)          # a valid room file

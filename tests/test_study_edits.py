@@ -158,8 +158,8 @@ def test_criterion_and_own_limit_exclude_each_other():
     set_objective(spec, "area")
     assert spec.target.plan_objective == "area"
     assert parse_rt60_limit("0.8 0.7 0.6 0.6 0.6 0.6", 6) == [0.8, 0.7, 0.6, 0.6, 0.6, 0.6]
-    for bad, words in (("0.6 0.5", "2 values"), ("x", "only numbers"), ("0", "above 0"),
-                       ("25", "at most 20 s")):
+    for bad, words in (("0.6 0.5", "2 values"), ("x", "only numbers"), ("0", "from 0.05 to"),
+                       ("0.01", "from 0.05 to 20 s"), ("25", "from 0.05 to 20 s")):
         with pytest.raises(ValueError, match=words):
             parse_rt60_limit(bad, 6)
 

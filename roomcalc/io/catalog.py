@@ -13,6 +13,7 @@ from roomcalc.engine.ratings import WeightedAlpha, nrc, saa_octave_estimate, wei
 from roomcalc.io import paths
 from roomcalc.io.checks import Checker, kind_of, nearest, read_toml_file, toml_files
 from roomcalc.io.errors import Problem, RoomFileError
+from roomcalc.io.limits import ALPHA_MAX, RANGES
 
 ID_PATTERN = re.compile(r"^[a-z0-9]+(-[a-z0-9]+)*$")
 KINDS = ("surface", "object")
@@ -21,8 +22,6 @@ CATEGORIES = ("hard surfaces", "floors", "ceilings", "glazing and doors", "porou
               "furniture", "user")
 ENTRY_KEYS = ("id", "name", "category", "kind", "values", "source", "notes", "occupant",
               "unoccupied")
-#: Largest surface coefficient accepted (test reports show values a little above 1).
-ALPHA_MAX = 1.2
 
 
 @dataclass(frozen=True)
@@ -129,15 +128,15 @@ def parse_entries(entries: list, chk: Checker, where: str = "materials",
         w = f"{where}[{i}]"
         before = len(chk.problems)
         chk.keys(e, w, ENTRY_KEYS)
-        mid = chk.text(e, "id", w, required=True)
+        mid = chk.text(e, "id", w, required=True, nonempty=True)
         if mid is not None and not ID_PATTERN.match(mid):
             chk.add(f"{w}.id", f"'{mid}' must be lowercase words joined by hyphens "
                     "(letters a-z, digits), e.g. 'mineral-wool-50mm'")
-        name = chk.text(e, "name", w, required=True)
+        name = chk.text(e, "name", w, required=True, nonempty=True)
         cats = CATEGORIES if allow_user_category else CATEGORIES[:-1]
         cat = chk.text(e, "category", w, default="user", choices=cats)
         kind = chk.text(e, "kind", w, required=True, choices=KINDS)
-        source = chk.text(e, "source", w, required=True)
+        source = chk.text(e, "source", w, required=True, nonempty=True)
         notes = chk.text(e, "notes", w, default="")
         vals = e.get("values")
         values: dict[int, float] = {}
@@ -146,7 +145,7 @@ def parse_entries(entries: list, chk: Checker, where: str = "materials",
         elif not isinstance(vals, dict):
             chk.add(f"{w}.values", "must be a table such as { 125 = 0.10, 250 = 0.20, ... }")
         else:
-            high = ALPHA_MAX if kind == "surface" else None
+            high = ALPHA_MAX if kind == "surface" else RANGES["absorption"].high
             for k, x in vals.items():
                 try:
                     band = int(k)

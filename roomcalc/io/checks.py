@@ -9,6 +9,7 @@ import tomllib
 from pathlib import Path
 
 from roomcalc.io.errors import Problem
+from roomcalc.io.limits import guard_size, guard_text
 
 _TOML_POS = re.compile(r"^(?P<msg>.*?)\s*\(at line (?P<line>\d+), column (?P<col>\d+)\)\s*$")
 _TOML_END = re.compile(r"^(?P<msg>.*?)\s*\(at end of document\)\s*$")
@@ -41,6 +42,7 @@ def read_toml_file(path) -> dict:
     from roomcalc.io.errors import RoomFileError
 
     try:
+        guard_size(Path(path).stat().st_size, str(path))
         text = Path(path).read_text(encoding="utf-8")
     except OSError as exc:
         raise RoomFileError([Problem(str(path), "", f"cannot be read: {exc.strerror}")]) from None
@@ -50,9 +52,13 @@ def read_toml_file(path) -> dict:
 
 
 def read_toml(text: str, filename: str) -> dict:
-    """Parse TOML text; a syntax error becomes a RoomFileError naming the line and column."""
+    """Parse TOML text; a syntax error becomes a RoomFileError naming the line and column.
+
+    Text larger, or with longer lines, dotted keys or deeper brackets than
+    :mod:`roomcalc.io.limits` allows is refused before it is parsed."""
     from roomcalc.io.errors import RoomFileError
 
+    guard_text(text, filename)
     try:
         return tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
@@ -113,6 +119,20 @@ class Checker:
             out[int(k)] = y
         return out if ok else None
 
+    def name_key(self, key: str, where: str, known, what: str) -> str:
+        """A key of ``where`` that names one of ``known`` (a table by source or receiver
+        name): an empty or blank key, or one not known, is a problem. Returns the key's field
+        path, for the problems of its value."""
+        listed = f" ({what}s: {', '.join(known)})" if known else f" (it has no {what}s)"
+        if not key.strip():
+            path = f'{where}."{key}"'
+            self.add(path, f"is an empty name: give the name of a {what} of this room{listed}")
+            return path
+        path = f"{where}.{key}"
+        if key not in known:
+            self.add(path, f"'{key}' is not a {what} of this room{listed}")
+        return path
+
     def keys(self, table: dict, where: str, known) -> None:
         """Report keys of a table that are not known, with the nearest known one."""
         for k in table:
@@ -152,7 +172,8 @@ class Checker:
             self.add(_join(where, key), f"must be text, not {kind_of(v)}")
             return default
         if nonempty and not v.strip():
-            self.add(_join(where, key), "is empty: give a value, or leave the key out")
+            self.add(_join(where, key), "is empty: give a value" if required else
+                     "is empty: give a value, or leave the key out")
             return default
         if choices is not None and v not in choices:
             near = difflib.get_close_matches(v, list(choices), n=1, cutoff=0.4)
@@ -232,5 +253,12 @@ def _range(low, high, low_open, unit) -> str:
     return f"the allowed range: at most {_fmt(high)}{u}"
 
 
+_BARE = re.compile(r"[A-Za-z0-9_-]+")
+
+
 def _join(where: str, key: str) -> str:
+    """A field's path as the user would write it: a key that is not bare (empty, spaces, dots)
+    is quoted, so that even ``"" = 1`` is named."""
+    if not _BARE.fullmatch(key):
+        key = '"' + key.replace("\\", "\\\\").replace('"', '\\"') + '"'
     return f"{where}.{key}" if where else key

@@ -51,13 +51,14 @@ from roomcalc.engine.criteria import (ASSESS_MODES, CONFIDENCE, KINDS, OCCUPANCI
 from roomcalc.io import paths
 from roomcalc.io.checks import Checker, nearest, read_toml_file, toml_files
 from roomcalc.io.errors import Problem, RoomFileError
+from roomcalc.io.limits import RANGES
 
 ID_PATTERN = re.compile(r"^[a-z0-9]+(\.[a-z0-9]+)*(-[a-z0-9]+(\.[a-z0-9]+)*)*$")
 FORMAT_VERSION = 1
-#: Largest reverberation time accepted as a limit or target [s].
-RT60_LIMIT_MAX_S = 20.0
-#: Largest volume accepted [m^3].
-VOLUME_MAX_M3 = 1e6
+#: Largest reverberation time accepted as a limit or target [s] (as in room files).
+RT60_LIMIT_MAX_S = RANGES["rt60_limit"].high
+#: Largest volume accepted [m^3] (as in room files).
+VOLUME_MAX_M3 = RANGES["volume"].high
 #: Largest tolerance in seconds [s] and largest upper tolerance factor.
 TOLERANCE_SECONDS_MAX = 5.0
 TOLERANCE_FACTOR_MAX = 5.0
@@ -173,11 +174,11 @@ def parse_criteria(data: dict, filename: str) -> list[Criterion]:
 def _entry(e: dict, w: str, chk: Checker) -> Criterion | None:
     before = len(chk.problems)
     chk.keys(e, w, ALL_KEYS)
-    cid = chk.text(e, "id", w, required=True)
+    cid = chk.text(e, "id", w, required=True, nonempty=True)
     if cid is not None and not ID_PATTERN.match(cid):
         chk.add(f"{w}.id", f"'{cid}' must be lowercase words joined by hyphens (letters a-z, "
                 "digits, dots inside a word), e.g. 'din-18041-2016-a3'")
-    text = {k: chk.text(e, k, w, required=True)
+    text = {k: chk.text(e, k, w, required=True, nonempty=True)
             for k in ("title", "edition", "source", "provenance", "governs")}
     confidence = chk.text(e, "confidence", w, required=True, choices=CONFIDENCE)
     prov = text["provenance"]

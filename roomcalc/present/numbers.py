@@ -7,8 +7,8 @@ import textwrap
 
 import numpy as np
 
-__all__ = ["WIDTH", "fmt", "band_label", "wrap", "floats", "finite_or_none", "plural",
-           "json_text"]
+__all__ = ["WIDTH", "NO_VALUE", "fmt", "fit", "value_or_note", "band_label", "wrap", "floats",
+           "finite_or_none", "plural", "json_text"]
 
 #: Width of the text reports [characters].
 WIDTH = 80
@@ -23,6 +23,34 @@ def fmt(x, nd: int = 2) -> str:
     if not math.isfinite(x):
         return "-"
     return f"{x:.{nd}f}"
+
+
+#: What text, markdown and CSV say where a formula has no finite value to give (an infinity or
+#: NaN, such as the OSHA TWA of a day too quiet for its dose formula). One wording everywhere;
+#: a table cell, too narrow for it, shows "-".
+NO_VALUE = "below the range of the formula"
+
+
+def value_or_note(x, nd: int = 1, unit: str = "") -> str:
+    """``x`` with ``nd`` decimals and its unit, or :data:`NO_VALUE` when it is not finite."""
+    if x is None or not math.isfinite(float(x)):
+        return NO_VALUE
+    return f"{float(x):.{nd}f}" + (f" {unit}" if unit else "")
+
+
+def fit(cell: str, width: int) -> str:
+    """A number as :func:`fmt` wrote it, made to fit ``width`` characters so that columns never
+    run together: fewer decimals, then powers of ten ("9e+03")."""
+    if len(cell) <= width:
+        return cell
+    try:
+        x = float(cell)
+    except ValueError:
+        return cell[:width]
+    for text in (f"{x:.0f}", f"{x:.0e}".replace("e+0", "e+").replace("e-0", "e-")):
+        if len(text) <= width:
+            return text
+    return f"{x:.0e}"
 
 
 def band_label(b) -> str:

@@ -15,7 +15,7 @@ import io
 
 from roomcalc.engine.analysis import METHOD_TITLES, METHODS, RoomResult
 from roomcalc.io.units import METRIC, Units
-from roomcalc.present.numbers import floats, json_text, plural, wrap
+from roomcalc.present.numbers import NO_VALUE, floats, json_text, plural, wrap
 from roomcalc.present.sections import (exposure_dict, exposure_text, target_dict,
                                        target_text)
 from roomcalc.present.tables import BandRows
@@ -242,6 +242,7 @@ def report_csv(ans: Answer, source_name: str = "", u: Units = METRIC) -> str:
     for name, d in ans.exposures.items():
         w.writerow(["lex_8h", name, "dBA"] + [""] * nb + [f"{d.lex_8h_dba:.6g}"])
         w.writerow(["osha_dose", name, "%"] + [""] * nb + [f"{d.osha_dose_percent:.6g}"])
+        w.writerow(["osha_twa", name, "dBA"] + [""] * nb + [_cell(d.osha_twa_dba) or NO_VALUE])
     return buf.getvalue()
 
 

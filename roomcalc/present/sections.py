@@ -9,7 +9,8 @@ from typing import TYPE_CHECKING
 
 from roomcalc.engine.analysis import METHOD_TITLES
 from roomcalc.io.units import METRIC, Units
-from roomcalc.present.numbers import band_label, finite_or_none, fmt, floats, wrap
+from roomcalc.present.numbers import (band_label, finite_or_none, floats, fmt, value_or_note,
+                                      wrap)
 from roomcalc.study.assessment import Occupancy, PlanRun, TargetCheck
 
 if TYPE_CHECKING:
@@ -142,8 +143,7 @@ def exposure_text(days: dict[str, ExposureSummary], after: dict | None = None,
         lines.append(f"  {name}: {d.total_hours:g} h; LAeq {d.laeq_dba:.1f} dB(A), "
                      f"LEX,8h {d.lex_8h_dba:.1f} dB(A)")
         lines.append(wrap(f"EU 2003/10/EC: {d.eu.label}", "    ", "    ", width=width))
-        twa = (f"{d.osha_twa_dba:.1f} dBA" if math.isfinite(d.osha_twa_dba)
-               else "below the range of the formula")
+        twa = value_or_note(d.osha_twa_dba, 1, "dBA")
         lines.append(wrap(f"OSHA dose {d.osha_dose_percent:.0f} % (TWA {twa}"
                           f"{', action level reached' if d.osha_action_level_reached else ''}"
                           f"{', PEL exceeded' if d.osha_pel_exceeded else ''}); NIOSH dose "

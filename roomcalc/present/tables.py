@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from roomcalc.present.numbers import WIDTH, fmt
+from roomcalc.present.numbers import WIDTH, fit, fmt
 
 __all__ = ["BandRows"]
 
@@ -17,8 +17,13 @@ class BandRows:
         self.rows.append((label, [fmt(float(v), nd) for v in values],
                           None if extra is None else fmt(extra, 1)))
 
+    @property
+    def width(self) -> int:
+        """Characters per band column in text (a value fits in one less)."""
+        return 7 if len(self.bands) <= 6 else 6
+
     def text(self) -> str:
-        w = 7 if len(self.bands) <= 6 else 6
+        w = self.width
         lw = WIDTH - 1 - w * len(self.bands) - (7 if self.extra else 0)
         lw = min(lw, 26)
         head = self.title.ljust(lw) + "".join(f"{b:>{w}}" for b in self.bands) + \
@@ -26,8 +31,8 @@ class BandRows:
         lines = [head]
         for label, vals, ex in self.rows:
             label = label if len(label) <= lw - 1 else label[:lw - 2] + "~"
-            lines.append(label.ljust(lw) + "".join(f"{v:>{w}}" for v in vals) +
-                         (f"{ex or '':>7}" if self.extra else ""))
+            lines.append(label.ljust(lw) + "".join(f"{fit(v, w - 1):>{w}}" for v in vals) +
+                         (f"{fit(ex or '', 6):>7}" if self.extra else ""))
         return "\n".join(lines)
 
     def markdown(self) -> str:

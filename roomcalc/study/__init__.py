@@ -8,7 +8,8 @@ Layers: ``roomcalc.engine`` <- ``roomcalc.io`` <- ``roomcalc.study`` <- ``roomca
 
 from roomcalc.study.assessment import (LevelCheck, Occupancy, PlanRun, TargetCheck, exposures,
                                        make_plan, target_check)
+from roomcalc.engine.progress import PlanCancelled, PlanProgress
 from roomcalc.study.study import Answer, Study
 
-__all__ = ["Answer", "LevelCheck", "Occupancy", "PlanRun", "Study", "TargetCheck",
-           "exposures", "make_plan", "target_check"]
+__all__ = ["Answer", "LevelCheck", "Occupancy", "PlanCancelled", "PlanProgress", "PlanRun",
+           "Study", "TargetCheck", "exposures", "make_plan", "target_check"]

@@ -188,12 +188,19 @@ def exposures(spec: RoomSpec, result: RoomResult) -> dict[str, ExposureSummary]:
 
 
 def make_plan(spec: RoomSpec, room: Room, result: RoomResult, catalog, criteria: dict, *,
-              objective=None, enabled=None, filename: str = "<room>") -> PlanRun:
+              objective=None, enabled=None, filename: str = "<room>", progress=None,
+              cancel=None) -> PlanRun:
     """Run the planner on the room's ``[target]`` and ``[[candidates]]`` by the formula in
     force (``result.method``), for the room at the criterion's occupancy (``enabled``: the
     names of the candidates to use, None = all). Raises RoomFileError when the target or a
-    candidate cannot be resolved, ValueError when there is nothing to plan with."""
-    from roomcalc.engine.planner import apply_to_room, plan
+    candidate cannot be resolved, ValueError when there is nothing to plan with.
+
+    ``progress`` (called with each PlanProgress, steps counting up) and ``cancel`` (a callable
+    returning True to stop, or a ``threading.Event``) go to the planner, which checks the
+    latter between its steps; this function checks it once more before evaluating the room as
+    described. Stopped: PlanCancelled is raised, and nothing (spec, room, catalogue) has been
+    changed."""
+    from roomcalc.engine.planner import PlanWatch, apply_to_room, plan
     from roomcalc.io.planning import resolve_candidates, resolve_goals
 
     method = result.method
@@ -207,7 +214,9 @@ def make_plan(spec: RoomSpec, room: Room, result: RoomResult, catalog, criteria:
     if not cands:
         raise ValueError("there are no candidates to plan with: add [[candidates]] to the room "
                          "file (or tick some)")
-    p = plan(planned_room, cands, goals, objective=objective)
+    watch = PlanWatch(progress, cancel)
+    p = plan(planned_room, cands, goals, objective=objective, watch=watch)
+    watch.step("checking", detail="the room as described")
     before = occ.result if occ.result is not None else result
     treated = apply_to_room(planned_room, cands, p.amounts)
     if occ.result is None:

@@ -26,6 +26,7 @@ import math
 from roomcalc.engine.bands import DEFAULT_BANDS_HZ
 from roomcalc.engine.spectra import SPECTRUM_SHAPES, band_power_from_dba
 from roomcalc.io.catalog import Catalog
+from roomcalc.io.limits import RANGES
 from roomcalc.io.planning import convert_candidate_units
 from roomcalc.io.roomfile import RoomSpec, TargetSpec
 from roomcalc.io.units import UNITS
@@ -137,8 +138,9 @@ def parse_rt60_limit(text: str, n_bands: int):
     if len(vals) not in (1, n_bands):
         raise ValueError(f"{len(vals)} values: give one (every band) or {n_bands}, one per "
                          "band")
-    if not all(0.0 < v <= 20.0 and math.isfinite(v) for v in vals):
-        raise ValueError("each limit must be above 0 and at most 20 s")
+    low, high = RANGES["rt60_limit"].bounds()          # the room file's range
+    if not all(low <= v <= high and math.isfinite(v) for v in vals):
+        raise ValueError(f"each limit must be from {low:g} to {high:g} s")
     return vals[0] if len(vals) == 1 else vals
 
 

@@ -134,16 +134,32 @@ class Study:
         return Answer(self.spec, room, result, check, exposures(self.spec, result))
 
     def plan(self, *, objective: str | None = None, enabled=None,
-             result: RoomResult | None = None) -> PlanRun:
+             result: RoomResult | None = None, progress=None, cancel=None) -> PlanRun:
         """The cheapest (or smallest) treatment that meets the target, by the formula in
-        force (``result``: the evaluated room, if the caller has it)."""
+        force (``result``: the evaluated room, if the caller has it).
+
+        ``progress``: called with each step (a PlanProgress: what is being done, elapsed time);
+        ``cancel``: a callable returning True, or a ``threading.Event`` set, to stop between
+        steps, which raises PlanCancelled (the study is left as it was)."""
         if self.spec.target is None:
             raise ValueError("the room has no [target]: say what it must reach (criterion = "
                              "\"<id>\", or rt60_max = [...], or max_level_dba = {...})")
         room = self.room
         result = result if result is not None else self.evaluate(room)
         return make_plan(self.spec, room, result, self.catalog, self.criteria,
-                         objective=objective, enabled=enabled, filename=self.filename)
+                         objective=objective, enabled=enabled, filename=self.filename,
+                         progress=progress, cancel=cancel)
+
+    def snapshot(self) -> "Study":
+        """A copy that another thread may plan with while this one's spec is edited: its own
+        deep copy of the spec, the same catalogue and criteria, the room as last checked."""
+        import copy
+
+        other = Study(copy.deepcopy(self.spec), self.catalog, criteria=self._criteria,
+                      filename=self.filename, method=self.method,
+                      reverberant_model=self.reverberant_model)
+        other._room = self._room
+        return other
 
     def treated_spec(self, run: PlanRun) -> RoomSpec:
         """A copy of the spec with the plan's treatment added (for saving or applying)."""
@@ -157,10 +173,16 @@ class Study:
         return compare(before, after)
 
     def write_treated(self, run: PlanRun, path) -> RoomSpec:
-        """Write the treated room as a new room file (atomic); returns its spec."""
-        from roomcalc.io.roomfile import save_spec
+        """Write the treated room as a new room file (atomic), with the comments of the file it
+        was read from where they still belong; returns its spec."""
+        from roomcalc.io.atomic import write_text_atomic
+        from roomcalc.io.roomfile import spec_to_toml_keeping
 
         treated = self.treated_spec(run)
-        save_spec(treated, Path(path))
+        try:
+            original = Path(self.filename).read_text(encoding="utf-8")
+        except (OSError, UnicodeDecodeError):
+            original = None
+        write_text_atomic(Path(path), spec_to_toml_keeping(treated, original))
         return treated
 

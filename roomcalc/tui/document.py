@@ -13,7 +13,8 @@ from pathlib import Path
 
 from roomcalc.io.atomic import remove_stale_temporaries, write_text_atomic
 from roomcalc.io.roomfile import (CandidateSpec, ObjectSpec, ReceiverSpec, RoomSpec, ShapeSpec,
-                                  SourceSpec, SurfaceSpec, parse_spec, spec_to_toml)
+                                  SourceSpec, SurfaceSpec, comments_lost, parse_spec,
+                                  spec_to_toml_keeping)
 from roomcalc.tui.recovery import (discard_recovery, find_recovery,  # noqa: F401 (re-exported)
                                    recovery_path, write_recovery)
 
@@ -62,8 +63,14 @@ class Document:
     # ------------------------------------------------------------------ state
     @property
     def text(self) -> str:
-        """The room file's text, made from the spec now."""
-        return _with_header(spec_to_toml(self.spec), self.original_text)
+        """The room file's text, made from the spec now, written over the file as opened so
+        that the user's comments and layout stay (see roomcalc.io.roomfile.keep)."""
+        return spec_to_toml_keeping(self.spec, self.original_text)
+
+    def comments_lost(self) -> list[str]:
+        """The comments of the file as opened that saving now would drop (those of deleted
+        entries), for a confirmation before saving."""
+        return comments_lost(self.spec, self.original_text)
 
     @property
     def modified(self) -> bool:
@@ -240,18 +247,3 @@ def clone(obj):
 
 
 _FIELDS: dict[type, tuple[str, ...]] = {}
-
-
-def _with_header(text: str, original: str | None) -> str:
-    """Keep the comment lines at the top of the original file (a demo note, a description)."""
-    if not original:
-        return text
-    head = []
-    for line in original.splitlines():
-        if line.startswith("#") or (not line.strip() and head):
-            head.append(line)
-        else:
-            break
-    while head and not head[-1].strip():
-        head.pop()
-    return ("\n".join(head) + "\n" + text) if head else text

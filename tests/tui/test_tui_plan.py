@@ -67,6 +67,17 @@ async def _ready(pilot):
             return
 
 
+async def _planned(pilot, timeout_s: float = 30.0):
+    """Wait until the plan being made (in its worker thread) is shown."""
+    screen = pilot.app.screen
+    for _ in range(int(timeout_s / 0.02)):
+        await pilot.pause(0.02)
+        if not screen.planning:
+            await pilot.pause()
+            return
+    raise AssertionError("the plan did not finish")
+
+
 async def test_plan_view_plans_applies_and_undoes(tmp_path, catalog):
     path = tmp_path / "plan-room.toml"
     path.write_text(ROOM, encoding="utf-8")
@@ -90,7 +101,7 @@ async def test_plan_view_plans_applies_and_undoes(tmp_path, catalog):
                                                                          "Wall panels"]
         grid.focus()
         await pilot.press("r")
-        await pilot.pause()
+        await _planned(pilot)
         run = screen._plan_run
         assert run is not None and run.plan.feasible
         # Independent of the view: the engine on the treated room file the plan makes.
@@ -107,10 +118,10 @@ async def test_plan_view_plans_applies_and_undoes(tmp_path, catalog):
         # Untick the wall panels: the plan uses only the ceiling.
         grid.move_cursor(row=1)
         await pilot.press("space", "r")
-        await pilot.pause()
+        await _planned(pilot)
         assert {it.candidate for it in screen._plan_run.plan.items} <= {"Ceiling tiles"}
         await pilot.press("space", "r")          # both again
-        await pilot.pause()
+        await _planned(pilot)
         last = screen._plan_run
         await pilot.click("#plan-apply")
         await pilot.pause()

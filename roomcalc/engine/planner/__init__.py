@@ -9,7 +9,10 @@ Modules (each public name is documented where it is defined):
 - :mod:`.model` -- the linear programme as typed records, goal keys, tolerances;
 - :mod:`.build` -- the programme built from a room; :mod:`.solve` -- LP / MILP (HiGHS),
   cutting planes, elastic form; :mod:`.explain` -- the engine's verdict and the reasons;
-- :mod:`.apply` -- a treatment applied to a room; :mod:`.plan` -- :func:`plan`.
+- :mod:`.apply` -- a treatment applied to a room; :mod:`.plan` -- :func:`plan`;
+- the steps a plan reports and how a caller stops it (:class:`PlanProgress`,
+  :class:`PlanCancelled`, :class:`PlanWatch`) live in :mod:`roomcalc.engine.progress`, which
+  a front end may import without loading the planner.
 """
 
 from roomcalc.engine.planner.apply import apply_to_room
@@ -23,8 +26,9 @@ from roomcalc.engine.planner.model import (AMOUNT_STEP, LEVEL_TOL_DB, LOW_FREQUE
                                            MILP_TIME_LIMIT_S, RT_TOL_S, SURROGATE_MARGIN,
                                            TIE_WEIGHT)
 from roomcalc.engine.planner.plan import plan
+from roomcalc.engine.progress import PlanCancelled, PlanProgress, PlanWatch
 
-__all__ = ["plan", "apply_to_room", "Candidate", "Goals", "LevelGoal", "Plan", "PlanItem",
+__all__ = ["plan", "apply_to_room", "PlanCancelled", "PlanProgress", "PlanWatch", "Candidate", "Goals", "LevelGoal", "Plan", "PlanItem",
            "PLAN_METHODS", "OBJECTIVES", "KINDS", "ALPHA_MAX", "sabine_required_absorption",
            "eyring_required_absorption", "LEVEL_TOL_DB", "RT_TOL_S", "MAX_CUT_ROUNDS",
            "MAX_SURROGATE_ROUNDS", "SURROGATE_MARGIN", "AMOUNT_STEP", "TIE_WEIGHT",

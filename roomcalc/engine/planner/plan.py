@@ -15,6 +15,7 @@ from roomcalc.engine.planner.explain import evaluate_plan, explain, violations
 from roomcalc.engine.planner.goals import Candidate, Goals, Plan, PlanItem
 from roomcalc.engine.planner.model import (MAX_CUT_ROUNDS, MAX_SURROGATE_ROUNDS,
                                            SURROGATE_MARGIN, Miss, PlanModel, RtKey)
+from roomcalc.engine.progress import PlanWatch
 from roomcalc.engine.planner.solve import Outcome, solve
 
 __all__ = ["plan"]
@@ -62,17 +63,20 @@ class _Limits:
             self.t[kind][b] = math.exp(s - slope * f)
 
 
-def _search(model: PlanModel) -> _Search:
+def _search(model: PlanModel, watch: PlanWatch) -> _Search:
     """Plan with the linear rows; where the engine finds an RT goal missed by the formula in
     force (a formula planned through Eyring's bound, or rounding), tighten that band's limit
     and plan again, until the engine confirms, the rows can no longer be met, or
     MAX_SURROGATE_ROUNDS plans were made."""
     limits = _Limits(model)
     cur = model
+    watch.max_attempts = MAX_SURROGATE_ROUNDS
     for rounds in range(1, MAX_SURROGATE_ROUNDS + 1):
-        out = solve(cur, cur.rows, cur.levels, elastic=False)
+        watch.attempt = rounds
+        out = solve(cur, cur.rows, cur.levels, elastic=False, watch=watch)
         if out.status not in ("optimal", "stopped"):
             break
+        watch.step("checking")
         after = evaluate_plan(cur, out.x)
         missed = violations(cur, after)
         rt_missed = [mi for mi in missed if isinstance(mi.key, RtKey)]
@@ -81,8 +85,9 @@ def _search(model: PlanModel) -> _Search:
                            after=after, missed=missed, rounds=rounds)
         limits.tighten(rt_missed)
         cur = with_rt_limits(model, limits.t["rt_max"], limits.t["rt_min"])
-    partial = solve(cur, cur.rows, cur.levels, elastic=True)
+    partial = solve(cur, cur.rows, cur.levels, elastic=True, watch=watch)
     x = np.asarray(partial.x if partial.x is not None else np.zeros(model.n), dtype=float)
+    watch.step("checking", elastic=True)
     after = evaluate_plan(cur, x)
     return _Search(model=cur, out=out, partial=partial, x=x, after=after,
                    missed=violations(cur, after), rounds=rounds)
@@ -125,7 +130,8 @@ def _items(model: PlanModel, x) -> tuple[list, float, float, float]:
 
 
 def plan(room: Room, candidates: Sequence[Candidate], goals: Goals, *,
-         objective: str | None = None) -> Plan:
+         objective: str | None = None, progress=None, cancel=None,
+         watch: PlanWatch | None = None) -> Plan:
     """The cheapest (or smallest) treatment that brings a room to its goals.
 
     Parameters
@@ -136,6 +142,20 @@ def plan(room: Room, candidates: Sequence[Candidate], goals: Goals, *,
         levels at receivers
     objective : "cost" (sum of cost x amount) or "area" (m^2 covered plus units x area_each);
         None takes ``goals.objective``
+    progress : callable or None -- called with a
+        :class:`~roomcalc.engine.progress.PlanProgress` at each step (building, each
+        solver call, each cutting-plane round, each check of the treated room); steps count
+        up from 1
+    cancel : callable returning True to stop, an object with ``is_set()`` (such as
+        ``threading.Event``), or None -- checked at each of those steps; when it says stop,
+        :class:`~roomcalc.engine.progress.PlanCancelled` is raised (nothing is
+        returned; the room and candidates are not changed)
+    watch : PlanWatch or None -- both of the above already together (a caller that reports
+        further steps of its own, numbered on from the planner's); replaces them
+
+    Raises
+    ------
+    PlanCancelled -- when ``cancel`` said stop between two steps
 
     Returns
     -------
@@ -203,16 +223,20 @@ def plan(room: Room, candidates: Sequence[Candidate], goals: Goals, *,
        (1960) 703; Q. Huangfu & J. A. J. Hall, Math. Prog. Comp. 10 (2018) 119 (HiGHS, through
        scipy.optimize.linprog and milp).
     """
+    watch = watch if watch is not None else PlanWatch(progress, cancel)
+    watch.step("building", detail=f"{len(candidates)} candidate"
+               + ("s" if len(candidates) != 1 else ""))
     model = build_model(room, candidates, goals, objective)
     has_goals = bool(model.rows or model.levels)
     if model.n == 0 or not has_goals:
         x = np.zeros(model.n)
+        watch.step("checking")
         after = evaluate_plan(model, x)
         s = _Search(model=model, out=Outcome(status="optimal", x=x), partial=None, x=x,
                     after=after, missed=violations(model, after), rounds=1)
         solver = "none needed" if not has_goals else "none (no candidates)"
     else:
-        s = _search(model)
+        s = _search(model, watch)
         solver = ("scipy.optimize.milp (HiGHS)" if model.integer.any() else
                   "scipy.optimize.linprog (HiGHS)")
     stopped = s.out.status == "stopped" or (s.partial is not None

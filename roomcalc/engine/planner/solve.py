@@ -14,6 +14,7 @@ import numpy as np
 from roomcalc.engine.planner.model import (AMOUNT_STEP, DB_PER_NEPER, LEVEL_TOL_DB,
                                            MAX_CUT_ROUNDS, MILP_TIME_LIMIT_S, TIE_WEIGHT,
                                            PlanModel)
+from roomcalc.engine.progress import PlanWatch
 
 __all__ = ["Outcome", "lp", "solve"]
 
@@ -61,9 +62,11 @@ def lp(c, a_ub, b_ub, lo, hi, integrality) -> tuple[str, np.ndarray | None, str]
 class _Problem:
     """The programme in the solver's variables z = (y, slacks): fixed rows, goal rows, cuts."""
 
-    def __init__(self, model: PlanModel, rows, levels, elastic: bool):
+    def __init__(self, model: PlanModel, rows, levels, elastic: bool,
+                 watch: PlanWatch | None = None):
         n = model.n
         self.model, self.rows, self.levels, self.elastic = model, list(rows), list(levels), elastic
+        self.watch = watch
         self.k = len(self.rows) + len(self.levels) if elastic else 0
         self.nz = nz = n + self.k
         sy = model.step
@@ -131,6 +134,13 @@ class _Problem:
         n, last = self.model.n, None
         integ = self.integ if integral else np.zeros(self.nz, bool)
         for rnd in range(1, MAX_CUT_ROUNDS + 1):
+            if self.watch is not None:      # between solver calls: report, or stop if asked
+                if rnd == 1:
+                    self.watch.step("solving", integral=bool(integ.any()),
+                                    elastic=self.elastic)
+                else:
+                    self.watch.step("cutting", cut=rnd - 1, max_cuts=MAX_CUT_ROUNDS - 1,
+                                    integral=bool(integ.any()), elastic=self.elastic)
             self.solves += 1
             a_ub, b_ub = self.matrices(guard, extra_a, extra_b)
             status, z, msg = lp(c, a_ub, b_ub, self.lo, self.hi, integ)
@@ -173,7 +183,8 @@ class _Problem:
         return out
 
 
-def solve(model: PlanModel, rows, levels, *, elastic: bool) -> Outcome:
+def solve(model: PlanModel, rows, levels, *, elastic: bool,
+          watch: PlanWatch | None = None) -> Outcome:
     """Least objective amounts meeting ``rows`` and ``levels`` (cutting planes for the latter).
 
     elastic: every goal gets a slack; first the least total slack, then the least objective
@@ -182,11 +193,14 @@ def solve(model: PlanModel, rows, levels, *, elastic: bool) -> Outcome:
     Continuous amounts are rounded to AMOUNT_STEP afterwards; a row keeps a margin of
     AMOUNT_STEP |coef_j| for each continuous candidate j it guards, so that rounding cannot
     break it.
+
+    watch: told before each solver call (a first solve, then each round of cutting planes);
+    raises PlanCancelled there when its cancel check says stop.
     """
     if not elastic and any(r.impossible for r in rows):
         return Outcome(status="infeasible",
                        message="a goal is beyond what any absorption can reach")
-    prob = _Problem(model, rows, levels, elastic)
+    prob = _Problem(model, rows, levels, elastic, watch)
     if not elastic:
         return prob.run(prob.objective())
     n, k = model.n, prob.k

@@ -8,9 +8,10 @@ docs/room-files.md describes every key.
 The modules, by job: :mod:`.spec` (the dataclasses and the keys of each table), :mod:`.faces`
 (box faces and the area of a surface that fills the rest of one), :mod:`.parse` and
 :mod:`.parse_target` (TOML data to a checked spec), :mod:`.resolve` (spec to the engine's room,
-catalogue lookup), :mod:`.write` (spec to TOML text, atomic saving). The planning tables are
-read here with the rest of the file; :mod:`roomcalc.io.planning` turns them into the planner's
-SI goals and candidates.
+catalogue lookup), :mod:`.write` (spec to TOML text, atomic saving), :mod:`.keep` (spec to TOML
+text written over the text it was read from, keeping the user's comments and layout). The
+planning tables are read here with the rest of the file; :mod:`roomcalc.io.planning` turns them
+into the planner's SI goals and candidates.
 """
 
 from roomcalc.io.roomfile.faces import (AREA_OR_FACE, box_dimensions_m, face_areas,
@@ -29,7 +30,9 @@ from roomcalc.io.roomfile.spec import (AIR_KEYS, AREA_COST_KEY, CANDIDATE_ALPHA_
                                        CandidateSpec, ObjectSpec, ReceiverSpec, RoomSpec,
                                        ShapeSpec, SourceSpec, SurfaceSpec, TargetSpec, band_text,
                                        limit_values)
-from roomcalc.io.roomfile.write import save_spec, spec_to_dict, spec_to_toml
+from roomcalc.io.roomfile.keep import comments_lost, spec_to_toml_keeping
+from roomcalc.io.roomfile.write import (save_spec, spec_to_dict, spec_to_toml, toml_key,
+                                        toml_value)
 
 __all__ = [
     # spec
@@ -48,5 +51,7 @@ __all__ = [
     "read_room", "check_room", "resolve", "room_catalog", "material_values",
     "candidate_material", "material_problems", "unoccupied_values",
     # write
-    "spec_to_dict", "spec_to_toml", "save_spec",
+    "spec_to_dict", "spec_to_toml", "save_spec", "toml_key", "toml_value",
+    # keep
+    "spec_to_toml_keeping", "comments_lost",
 ]

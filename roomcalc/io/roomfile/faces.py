@@ -10,6 +10,7 @@ from __future__ import annotations
 import math
 
 from roomcalc.engine.model import FACE_AXIS
+from roomcalc.io.limits import RANGES
 from roomcalc.io.roomfile.spec import RoomSpec
 
 #: The problem of a surface that gives neither area nor face (reported at ``surfaces[i].area``).
@@ -64,4 +65,9 @@ def surface_area_m2(spec: RoomSpec, i: int) -> tuple[float | None, str | None]:
     if area <= 0:
         return None, (f"the other surfaces on face '{s.face}' take {taken / u.area:.2f} "
                       f"{u.area_label} of its {face / u.area:.2f}; nothing is left for this one")
+    low = RANGES["area"].bounds(u)[0]
+    if area / u.area < low:
+        return None, (f"the other surfaces on face '{s.face}' leave {area / u.area:.3g} "
+                      f"{u.area_label} of it, less than the smallest area a surface may have "
+                      f"({low:g} {u.area_label})")
     return area, None

@@ -10,13 +10,13 @@ from __future__ import annotations
 from pathlib import Path
 
 from roomcalc.engine.bands import ALLOWED_BANDS_HZ, DEFAULT_BANDS_HZ
-from roomcalc.engine.exposure import MAX_DAY_HOURS
 from roomcalc.engine.field import PLACEMENT_Q
 from roomcalc.engine.model import FACES
 from roomcalc.engine.spectra import SPECTRUM_SHAPES
-from roomcalc.io.catalog import ALPHA_MAX, parse_entries
+from roomcalc.io.catalog import parse_entries
 from roomcalc.io.checks import Checker, kind_of, read_toml
 from roomcalc.io.errors import Problem, RoomFileError
+from roomcalc.io.limits import RANGES, guard_size, limit
 from roomcalc.io.roomfile.faces import missing_area
 from roomcalc.io.roomfile.parse_target import check_one_method, parse_candidates, parse_target
 from roomcalc.io.roomfile.spec import (AIR_KEYS, FORMAT_VERSION, METHODS, OBJECT_KEYS,
@@ -42,6 +42,7 @@ def read_spec(path) -> RoomSpec:
     try:
         # Bytes decoded as they are: the text parsed is the file's, line ends included
         # (read_text would turn a stray carriage return into a new line).
+        guard_size(path.stat().st_size, str(path))
         text = path.read_bytes().decode("utf-8")
     except FileNotFoundError:
         raise RoomFileError([Problem(str(path), "", "no such file")]) from None
@@ -77,7 +78,7 @@ def parse_data(data: dict, filename: str = "<room>") -> RoomSpec:
     _shape(chk, data, spec, u)
     _surfaces(chk, data, spec, u)
     _objects(chk, data, spec, u)
-    bad_position = _sources(chk, data, spec)
+    bad_position = _sources(chk, data, spec, u)
     _receivers(chk, data, spec, u, bad_position)
     spec.target = parse_target(chk, data, spec.bands, [r.name for r in spec.receivers])
     check_one_method(chk, spec)
@@ -122,13 +123,8 @@ def _air(chk: Checker, data: dict, spec: RoomSpec, u: Units) -> None:
     if air is None:
         return
     chk.keys(air, "air", AIR_KEYS)
-    lo, hi = (-40.0, 60.0) if u.name == "metric" else (-40.0, 140.0)
-    spec.air.temperature = chk.number(air, "temperature", "air", low=lo, high=hi,
-                                      unit=u.temperature_label)
-    spec.air.relative_humidity = chk.number(air, "relative_humidity", "air", low=0.0,
-                                            high=100.0, unit="%")
-    spec.air.pressure_kpa = chk.number(air, "pressure_kpa", "air", low=50.0, high=120.0,
-                                       unit="kPa")
+    for key in ("temperature", "relative_humidity", "pressure_kpa"):
+        setattr(spec.air, key, chk.number(air, key, "air", **limit(key, u)))
 
 
 def _shape(chk: Checker, data: dict, spec: RoomSpec, u: Units) -> None:
@@ -137,14 +133,14 @@ def _shape(chk: Checker, data: dict, spec: RoomSpec, u: Units) -> None:
         return
     chk.keys(shape, "shape", SHAPE_KEYS)
     for k in ("length", "width", "height"):
-        setattr(spec.shape, k, chk.number(shape, k, "shape", low=0.0, low_open=True,
-                                          high=1000.0 / u.length, unit=u.length_label))
-    spec.shape.volume = chk.number(shape, "volume", "shape", low=0.0, low_open=True,
-                                   high=1e7 / u.volume, unit=u.volume_label)
+        setattr(spec.shape, k, chk.number(shape, k, "shape", **limit("length", u)))
+    spec.shape.volume = chk.number(shape, "volume", "shape", **limit("volume", u))
     given = [k for k in ("length", "width", "height") if k in shape]
     if given and len(given) < 3:
         chk.add("shape", "a box needs length, width and height; "
                 f"only {', '.join(given)} given")
+    elif spec.shape.is_box and "volume" not in shape:
+        _box_volume(chk, spec, u)
     if not given and "volume" not in shape:
         chk.add("shape", "give length, width and height (a box) or volume (a free shape)")
 
@@ -154,12 +150,14 @@ def _surfaces(chk: Checker, data: dict, spec: RoomSpec, u: Units) -> None:
     for i, s in enumerate(chk.array_of_tables(data, "surfaces")):
         w = f"surfaces[{i}]"
         chk.keys(s, w, SURFACE_KEYS)
-        sp = SurfaceSpec(name=chk.text(s, "name", w, default=f"Surface {i + 1}"))
-        sp.area = chk.number(s, "area", w, low=0.0, low_open=True, unit=u.area_label)
-        sp.count = chk.number(s, "count", w, low=1, integer=True, default=1)
+        sp = SurfaceSpec(name=chk.text(s, "name", w, default=f"Surface {i + 1}",
+                                       nonempty=True))
+        sp.area = chk.number(s, "area", w, **limit("area", u))
+        sp.count = chk.number(s, "count", w, integer=True, default=1,
+                              **limit("surface_count", u))
         sp.face = chk.text(s, "face", w, choices=FACES)
         sp.material = chk.text(s, "material", w, nonempty=True)
-        sp.alpha = chk.numbers(s, "alpha", w, length=nb, low=0.0, high=ALPHA_MAX, unit=bt)
+        sp.alpha = chk.numbers(s, "alpha", w, length=nb, **limit("alpha", u, unit=bt))
         if "material" in s and "alpha" in s:
             chk.add(w, "give either material or alpha, not both")
         elif "material" not in s and "alpha" not in s:
@@ -177,11 +175,11 @@ def _objects(chk: Checker, data: dict, spec: RoomSpec, u: Units) -> None:
     for i, o in enumerate(chk.array_of_tables(data, "objects")):
         w = f"objects[{i}]"
         chk.keys(o, w, OBJECT_KEYS)
-        op = ObjectSpec(name=chk.text(o, "name", w, default=f"Object {i + 1}"))
-        op.count = float(chk.number(o, "count", w, low=0.0, default=1))
+        op = ObjectSpec(name=chk.text(o, "name", w, default=f"Object {i + 1}", nonempty=True))
+        op.count = float(chk.number(o, "count", w, default=1, **limit("object_count", u)))
         op.material = chk.text(o, "material", w, nonempty=True)
-        op.absorption = chk.numbers(o, "absorption", w, length=nb, low=0.0,
-                                    high=1000.0 / u.area, unit=bt)
+        op.absorption = chk.numbers(o, "absorption", w, length=nb,
+                                    **limit("absorption", u, unit=bt))
         if ("material" in o) == ("absorption" in o):
             chk.add(w, "give either material (a catalogue id of kind object) or absorption "
                     f"({u.area_label} per unit, {bt})")
@@ -193,28 +191,27 @@ def _objects(chk: Checker, data: dict, spec: RoomSpec, u: Units) -> None:
         spec.objects.append(op)
 
 
-def _sources(chk: Checker, data: dict, spec: RoomSpec) -> set[str]:
+def _sources(chk: Checker, data: dict, spec: RoomSpec, u: Units) -> set[str]:
     """The sources; returns the names of those whose position is reported as wrong."""
     bad_position = set()
     bt = band_text(spec.bands)
     for i, s in enumerate(chk.array_of_tables(data, "sources")):
         w = f"sources[{i}]"
         chk.keys(s, w, SOURCE_KEYS)
-        sp = SourceSpec(name=chk.text(s, "name", w, default=f"Source {i + 1}"))
+        sp = SourceSpec(name=chk.text(s, "name", w, default=f"Source {i + 1}", nonempty=True))
         if any(o.name == sp.name for o in spec.sources):
             chk.add(f"{w}.name", f"'{sp.name}' is used by another source; names must differ")
-        sp.sound_power = chk.numbers(s, "sound_power", w, length=len(spec.bands), low=0.0,
-                                     high=200.0, unit=bt)
-        sp.sound_power_dba = chk.number(s, "sound_power_dba", w, low=0.0, high=200.0,
-                                        unit="dB(A)")
-        sp.spectrum = chk.text(s, "spectrum", w, choices=tuple(SPECTRUM_SHAPES))
+        sp.sound_power = chk.numbers(s, "sound_power", w, length=len(spec.bands),
+                                     **limit("sound_power", unit=bt))
+        sp.sound_power_dba = chk.number(s, "sound_power_dba", w, **limit("sound_power_dba"))
+        sp.spectrum = chk.text(s, "spectrum", w, choices=tuple(SPECTRUM_SHAPES),
+                               nonempty=True)
         _source_power_rules(chk, s, w, sp, spec.bands)
-        sp.directivity = chk.number(s, "directivity", w, low=0.0, low_open=True, high=100.0,
-                                    unit="(Q)")
-        sp.placement = chk.text(s, "placement", w, choices=tuple(PLACEMENT_Q))
+        sp.directivity = chk.number(s, "directivity", w, **limit("directivity"))
+        sp.placement = chk.text(s, "placement", w, choices=tuple(PLACEMENT_Q), nonempty=True)
         if "directivity" in s and "placement" in s:
             chk.add(w, "give either directivity (Q) or placement, not both")
-        sp.position = _position(chk, s, w)
+        sp.position = _position(chk, s, w, u)
         if "position" in s and sp.position is None:
             bad_position.add(sp.name)
         spec.sources.append(sp)
@@ -245,17 +242,15 @@ def _receivers(chk: Checker, data: dict, spec: RoomSpec, u: Units, bad_position:
     for i, r in enumerate(chk.array_of_tables(data, "receivers")):
         w = f"receivers[{i}]"
         chk.keys(r, w, RECEIVER_KEYS)
-        rp = ReceiverSpec(name=chk.text(r, "name", w, default=f"Receiver {i + 1}"))
+        rp = ReceiverSpec(name=chk.text(r, "name", w, default=f"Receiver {i + 1}",
+                                        nonempty=True))
         if any(o.name == rp.name for o in spec.receivers):
             chk.add(f"{w}.name", f"'{rp.name}' is used by another receiver; names must differ")
-        rp.position = _position(chk, r, w)
+        rp.position = _position(chk, r, w, u)
         d = chk.table(r, "distances", w)
         for k, x in (d or {}).items():
-            if k not in sources:
-                chk.add(f"{w}.distances.{k}", f"'{k}' is not a source of this room"
-                        + (f" (sources: {', '.join(sources)})" if sources else ""))
-            y = chk.value(x, f"{w}.distances.{k}", low=0.0, low_open=True,
-                          high=10000.0, unit=u.length_label)
+            path = chk.name_key(k, f"{w}.distances", sources, "source")
+            y = chk.value(x, path, **limit("distance", u))
             if y is not None:
                 rp.distances[k] = float(y)
         given = d if d is not None else {}
@@ -271,7 +266,7 @@ def _receivers(chk: Checker, data: dict, spec: RoomSpec, u: Units, bad_position:
 
 def _work_pattern(chk: Checker, r: dict, w: str, rp: ReceiverSpec, sources: list) -> None:
     """A receiver's hours per day, and the hours each source runs while it is there."""
-    rp.hours = chk.number(r, "hours", w, low=0.0, high=MAX_DAY_HOURS, unit="h per day")
+    rp.hours = chk.number(r, "hours", w, **limit("hours"))
     sh = chk.table(r, "source_hours", w)
     if sh is None:
         return
@@ -279,11 +274,8 @@ def _work_pattern(chk: Checker, r: dict, w: str, rp: ReceiverSpec, sources: list
         chk.add(f"{w}.source_hours", "needs hours (the hours per day at this position), which "
                 "no source's hours may exceed")
     for k, x in sh.items():
-        path = f"{w}.source_hours.{k}"
-        if k not in sources:
-            chk.add(path, f"'{k}' is not a source of this room"
-                    + (f" (sources: {', '.join(sources)})" if sources else ""))
-        y = chk.value(x, path, low=0.0, high=MAX_DAY_HOURS, unit="h per day")
+        path = chk.name_key(k, f"{w}.source_hours", sources, "source")
+        y = chk.value(x, path, **limit("hours"))
         if y is None:
             continue
         if rp.hours is not None and y > rp.hours:
@@ -293,10 +285,20 @@ def _work_pattern(chk: Checker, r: dict, w: str, rp: ReceiverSpec, sources: list
         rp.source_hours[k] = float(y)
 
 
-def _position(chk: Checker, table: dict, where: str):
+def _position(chk: Checker, table: dict, where: str, u: Units):
     if "position" not in table:
         return None
-    return chk.numbers(table, "position", where, length=3, unit="x, y, z")
+    return chk.numbers(table, "position", where, length=3,
+                       **limit("position", u, unit=f"x, y, z in {u.length_label}"))
+
+
+def _box_volume(chk: Checker, spec: RoomSpec, u: Units) -> None:
+    """A box's volume (length x width x height) lies in the range of volume."""
+    v = spec.shape.length * spec.shape.width * spec.shape.height
+    lo, hi = RANGES["volume"].bounds(u)
+    if not lo <= v <= hi:
+        chk.add("shape", f"the box's volume, {v:.6g} {u.volume_label} (length x width x "
+                f"height), is outside {lo:g} to {hi:g} {u.volume_label}")
 
 
 def _positions_inside(chk: Checker, spec: RoomSpec, u: Units) -> None:

@@ -6,9 +6,9 @@ SI goals and candidates.
 from __future__ import annotations
 
 from roomcalc.io.checks import Checker, kind_of, nearest
-from roomcalc.io.criteria import RT60_LIMIT_MAX_S
-from roomcalc.io.roomfile.spec import (AREA_COST_KEY, CANDIDATE_ALPHA_MAX, CANDIDATE_KEYS,
-                                       COVER_KEYS, LEVEL_LIMIT_MAX_DB, METHODS, OBJECTIVES,
+from roomcalc.io.limits import limit
+from roomcalc.io.roomfile.spec import (AREA_COST_KEY, CANDIDATE_KEYS, COVER_KEYS, METHODS,
+                                       OBJECTIVES,
                                        TARGET_KEYS, UNIT_KEYS, BandLimit, CandidateSpec,
                                        RoomSpec, TargetSpec, band_text, limit_values)
 from roomcalc.io.units import Units
@@ -23,13 +23,12 @@ def parse_target(chk: Checker, data: dict, bands, receivers: list) -> TargetSpec
     w = "target"
     chk.keys(t, w, TARGET_KEYS)
     tp = TargetSpec()
-    tp.method = chk.text(t, "method", w, choices=METHODS)
-    tp.objective = chk.text(t, "objective", w, choices=OBJECTIVES)
-    tp.currency = chk.text(t, "currency", w)
-    tp.criterion = chk.text(t, "criterion", w)
+    tp.method = chk.text(t, "method", w, choices=METHODS, nonempty=True)
+    tp.objective = chk.text(t, "objective", w, choices=OBJECTIVES, nonempty=True)
+    tp.currency = chk.text(t, "currency", w, nonempty=True)
+    tp.criterion = chk.text(t, "criterion", w, nonempty=True)
     for key in ("rt60_max", "rt60_min"):
-        setattr(tp, key, band_limit(chk, t, key, w, bands, low=0.0, low_open=True,
-                                    high=RT60_LIMIT_MAX_S, unit="s"))
+        setattr(tp, key, band_limit(chk, t, key, w, bands, **limit("rt60_limit")))
     own = [k for k in ("rt60_max", "rt60_min") if k in t]
     if "criterion" in t and own:
         keys = " and ".join(own)
@@ -70,29 +69,27 @@ def _window_not_empty(chk: Checker, tp: TargetSpec, bands) -> None:
 def _level_limits(chk: Checker, t: dict, tp: TargetSpec, bands, receivers: list) -> None:
     """max_level_dba and max_level_db: limits at named receivers."""
     w = "target"
-    rlist = f" (receivers: {', '.join(receivers)})" if receivers else " (it has none)"
-    for key, unit in (("max_level_dba", "dB(A)"), ("max_level_db", "dB")):
+    for key, rng in (("max_level_dba", "level_limit_dba"), ("max_level_db", "level_limit")):
         levels = chk.table(t, key, w)
         for k, x in (levels or {}).items():
-            path = f"{w}.{key}.{k}"
-            if k not in receivers:
-                chk.add(path, f"'{k}' is not a receiver of this room{rlist}")
+            path = chk.name_key(k, f"{w}.{key}", receivers, "receiver")
             if key == "max_level_dba":
-                y = chk.value(x, path, low=0.0, high=LEVEL_LIMIT_MAX_DB, unit=unit)
+                y = chk.value(x, path, **limit(rng))
                 y = None if y is None else float(y)
             else:
-                y = band_limit(chk, levels, k, f"{w}.{key}", bands, low=0.0,
-                               high=LEVEL_LIMIT_MAX_DB, unit=unit)
+                y = band_limit(chk, levels, k, f"{w}.{key}", bands, **limit(rng),
+                               path=path)
             if y is not None:
                 getattr(tp, key)[k] = y
 
 
 def band_limit(chk: Checker, table: dict, key: str, where: str, bands, *, low, high,
-               unit, low_open=False) -> BandLimit | None:
-    """A limit per band: one number (every band), a list (one per band) or a table by band."""
+               unit, low_open=False, path=None) -> BandLimit | None:
+    """A limit per band: one number (every band), a list (one per band) or a table by band.
+    ``path``: the field path of the limit (default ``WHERE.KEY``)."""
     if key not in table:
         return None
-    v, path = table[key], f"{where}.{key}"
+    v, path = table[key], path or f"{where}.{key}"
 
     def one(x, p):
         y = chk.value(x, p, low=low, high=high, low_open=low_open, unit=unit)
@@ -123,7 +120,8 @@ def parse_candidates(chk: Checker, data: dict, spec: RoomSpec, u: Units) -> list
     for i, c in enumerate(chk.array_of_tables(data, "candidates")):
         w = f"candidates[{i}]"
         chk.keys(c, w, CANDIDATE_KEYS)
-        cp = CandidateSpec(name=chk.text(c, "name", w, default=f"Candidate {i + 1}"))
+        cp = CandidateSpec(name=chk.text(c, "name", w, default=f"Candidate {i + 1}",
+                                         nonempty=True))
         if any(o.name == cp.name for o in out):
             chk.add(f"{w}.name", f"'{cp.name}' is used by another candidate; names must differ")
         cp.material = chk.text(c, "material", w, nonempty=True)
@@ -138,7 +136,7 @@ def parse_candidates(chk: Checker, data: dict, spec: RoomSpec, u: Units) -> list
 def _cover(chk: Checker, c: dict, w: str, cp: CandidateSpec, spec: RoomSpec, u: Units) -> None:
     """A candidate that covers part of a surface."""
     surfaces = [s.name for s in spec.surfaces]
-    cp.surface = chk.text(c, "surface", w)
+    cp.surface = chk.text(c, "surface", w, nonempty=True)
     if cp.surface is not None:
         hits = [f"surfaces[{j}]" for j, n in enumerate(surfaces) if n == cp.surface]
         if not hits:
@@ -155,20 +153,20 @@ def _cover(chk: Checker, c: dict, w: str, cp: CandidateSpec, spec: RoomSpec, u: 
             chk.add(f"{w}.{k}", "only goes with a candidate added as units (one "
                     "without surface); this one covers a surface")
     bt = band_text(spec.bands)
-    cp.alpha = chk.numbers(c, "alpha", w, length=len(spec.bands), low=0.0,
-                           high=CANDIDATE_ALPHA_MAX, unit=bt)
+    cp.alpha = chk.numbers(c, "alpha", w, length=len(spec.bands), **limit("alpha", unit=bt))
     if ("material" in c) == ("alpha" in c):
         chk.add(w, "give either material (a catalogue id of kind surface) or alpha ("
                 + bt + ") for the covered part")
-    cp.max_area = chk.number(c, "max_area", w, low=0.0, unit=u.area_label)
-    cp.step = chk.number(c, "step", w, low=0.0, low_open=True, unit=u.area_label)
+    cp.max_area = chk.number(c, "max_area", w, **limit("max_area", u))
+    cp.step = chk.number(c, "step", w, **limit("step", u))
     cost_key = AREA_COST_KEY[u.name]
     other_cost = AREA_COST_KEY["imperial" if u.name == "metric" else "metric"]
     if other_cost in c:
         chk.add(f"{w}.{other_cost}", f"a{'n' if u.name == 'imperial' else ''} "
                 f"{u.name} file gives areas in {u.area_label}, so the cost per "
                 f"{u.area_label}: use {cost_key}")
-    setattr(cp, cost_key, chk.number(c, cost_key, w, low=0.0, unit=f"per {u.area_label}"))
+    setattr(cp, cost_key, chk.number(c, cost_key, w,
+                                     **limit("cost", unit=f"per {u.area_label}")))
 
 
 def _units(chk: Checker, c: dict, w: str, cp: CandidateSpec, spec: RoomSpec, u: Units) -> None:
@@ -180,8 +178,8 @@ def _units(chk: Checker, c: dict, w: str, cp: CandidateSpec, spec: RoomSpec, u: 
                     "give surface (one of " + (", ".join(surfaces) or "none")
                     + "), or leave it out to add the candidate as units")
     bt = band_text(spec.bands)
-    cp.absorption = chk.numbers(c, "absorption", w, length=len(spec.bands), low=0.0,
-                                high=1000.0 / u.area, unit=bt)
+    cp.absorption = chk.numbers(c, "absorption", w, length=len(spec.bands),
+                                **limit("absorption", u, unit=bt))
     if ("material" in c) == ("absorption" in c) and "alpha" not in c:
         chk.add(w, "give either material (a catalogue id of kind object) or absorption "
                 f"({u.area_label} per unit, {bt}); or surface, to cover part "
@@ -191,11 +189,11 @@ def _units(chk: Checker, c: dict, w: str, cp: CandidateSpec, spec: RoomSpec, u: 
             cp.whole = c["whole"]
         else:
             chk.add(f"{w}.whole", f"must be true or false, not {kind_of(c['whole'])}")
-    cp.max_count = chk.number(c, "max_count", w, low=0.0, unit="units")
+    cp.max_count = chk.number(c, "max_count", w, **limit("max_count"))
     if cp.max_count is not None and cp.whole is not False and \
             not float(cp.max_count).is_integer():       # 40 or 40.0, not 2.5
         chk.add(f"{w}.max_count", f"must be a whole number for whole units, not "
                 f"{cp.max_count!r} (or set whole = false)")
         cp.max_count = None
-    cp.cost_each = chk.number(c, "cost_each", w, low=0.0, unit="per unit")
-    cp.area_each = chk.number(c, "area_each", w, low=0.0, low_open=True, unit=u.area_label)
+    cp.cost_each = chk.number(c, "cost_each", w, **limit("cost", unit="per unit"))
+    cp.area_each = chk.number(c, "area_each", w, **limit("area_each", u))

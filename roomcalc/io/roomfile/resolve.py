@@ -13,6 +13,7 @@ from roomcalc.io.catalog import Catalog, Material, counterpart_problems
 from roomcalc.io.checks import Checker, nearest
 from roomcalc.io.criteria import check_criterion_id
 from roomcalc.io.errors import Problem, RoomFileError
+from roomcalc.io.limits import RANGES
 from roomcalc.io.roomfile.faces import box_dimensions_m, surface_area_m2
 from roomcalc.io.roomfile.parse import SpecProblems, parse_data, read_spec
 from roomcalc.io.roomfile.spec import CandidateSpec, RoomSpec
@@ -236,11 +237,20 @@ def _receivers(spec: RoomSpec, sources: list[Source], chk: Checker) -> list[Rece
     for i, r in enumerate(spec.receivers):
         pos = tuple(x * u.length for x in r.position) if r.position else None
         out.append(Receiver(r.name, pos, {k: v * u.length for k, v in r.distances.items()}))
-        for s in sources:  # the engine needs a distance above 0 (its own norm, in SI)
-            if s.name not in r.distances and pos is not None and s.position is not None and \
-                    not math.dist(pos, s.position) > 0:
-                chk.add(f"receivers[{i}].position", f"{r.position} is where source "
-                        f"'{s.name}' is; a receiver must be some distance from each source")
+        for s in sources:  # as a given distance: in the range of distance (in SI here)
+            if s.name in r.distances or pos is None or s.position is None:
+                continue
+            d_m = math.dist(pos, s.position)
+            rng = RANGES["distance"]
+            if rng.low <= d_m <= rng.high:
+                continue
+            near, far = rng.bounds(u)
+            d = d_m / u.length
+            at = f"{d:.3g} {u.length_label} from source '{s.name}'" if d > 0 else \
+                f"where source '{s.name}' is"
+            chk.add(f"receivers[{i}].position", f"{r.position} is {at}; a receiver must be "
+                    + (f"at least {near:g}" if d_m < rng.low else f"at most {far:g}")
+                    + f" {u.length_label} from each source")
     return out
 
 

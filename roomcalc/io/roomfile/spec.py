@@ -13,6 +13,7 @@ from roomcalc.engine.analysis import METHODS
 from roomcalc.engine.bands import DEFAULT_BANDS_HZ
 from roomcalc.engine.field import PLACEMENT_Q
 from roomcalc.io.catalog import ALPHA_MAX, Material
+from roomcalc.io.limits import RANGES
 from roomcalc.io.units import UNITS, Units
 
 FORMAT_VERSION = 1
@@ -44,8 +45,8 @@ DEFAULT_PLACEMENT = "surface"
 #: room file never loads the solver; a test keeps them equal).
 OBJECTIVES = ("cost", "area")
 DEFAULT_OBJECTIVE = "cost"
-#: Largest level accepted as a limit at a receiver [dB], as for sound power.
-LEVEL_LIMIT_MAX_DB = 200.0
+#: Largest level accepted as a limit at a receiver [dB], as for sound power (roomcalc.io.limits).
+LEVEL_LIMIT_MAX_DB = RANGES["level_limit"].high
 
 
 @dataclass

@@ -100,26 +100,31 @@ def spec_to_toml(spec: RoomSpec) -> str:
     material, each list of numbers on one line.
     ``tomllib.loads(spec_to_toml(s)) == spec_to_dict(s)`` (a test checks it)."""
     d = spec_to_dict(spec)
-    out = [f"{_key(k)} = {_value(v)}" for k, v in d.items() if not isinstance(v, (dict, list))
+    out = [f"{toml_key(k)} = {toml_value(v)}" for k, v in d.items()
+           if not isinstance(v, (dict, list))
            or (isinstance(v, list) and not (v and isinstance(v[0], dict)))]
     for k, v in d.items():
         if isinstance(v, dict):
-            out += ["", f"[{_key(k)}]"] + [f"{_key(a)} = {_value(b)}" for a, b in v.items()]
+            out += ["", f"[{toml_key(k)}]"] + [f"{toml_key(a)} = {toml_value(b)}"
+                                               for a, b in v.items()]
         elif isinstance(v, list) and v and isinstance(v[0], dict):
             for item in v:
-                out += ["", f"[[{_key(k)}]]"] + [f"{_key(a)} = {_value(b)}"
-                                                 for a, b in item.items()]
+                out += ["", f"[[{toml_key(k)}]]"] + [f"{toml_key(a)} = {toml_value(b)}"
+                                                     for a, b in item.items()]
     return "\n".join(out) + "\n"
 
 
 _BARE_KEY = re.compile(r"[A-Za-z0-9_-]+")
 
 
-def _key(k: str) -> str:
-    return k if _BARE_KEY.fullmatch(k) else _value(k)
+def toml_key(k: str) -> str:
+    """A key as a room file writes it: bare if it can be, else quoted."""
+    return k if _BARE_KEY.fullmatch(k) else toml_value(k)
 
 
-def _value(v) -> str:
+def toml_value(v) -> str:
+    """A value as a room file writes it (a list of numbers on one line; floats by ``repr``,
+    the shortest text that reads back to the same float)."""
     if isinstance(v, bool):
         return "true" if v else "false"
     if isinstance(v, (int, float)):
@@ -127,9 +132,9 @@ def _value(v) -> str:
     if isinstance(v, str):
         return tomli_w.dumps({"x": v})[4:].rstrip("\n")
     if isinstance(v, list):
-        return "[" + ", ".join(_value(x) for x in v) + "]"
+        return "[" + ", ".join(toml_value(x) for x in v) + "]"
     if isinstance(v, dict):
-        return "{ " + ", ".join(f"{_key(a)} = {_value(b)}" for a, b in v.items()) + " }" \
+        return "{ " + ", ".join(f"{toml_key(a)} = {toml_value(b)}" for a, b in v.items()) + " }" \
             if v else "{}"
     raise TypeError(f"cannot write {type(v).__name__} to a room file")
 

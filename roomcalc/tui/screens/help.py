@@ -27,6 +27,7 @@ HELP = """\
 | p | pin the room as it is now as "before"; the before/after tab compares with it |
 | b | change the reverberant model: diffuse field (4/R) or Barron & Lee |
 | r / Space (in the plan tab) | make the plan / tick a treatment in or out |
+| Escape or Stop (in the plan tab) | stop the plan being made (other keys work meanwhile) |
 | Ctrl+Z / Ctrl+Y | undo / redo |
 | Ctrl+S / F2 | save / save as |
 | Ctrl+O / Ctrl+N | open / new room |
@@ -54,7 +55,10 @@ kept from before").
 - **Plan** (F9): the cheapest (or smallest) set of treatments from tab 6 that brings RT60 per
   band into the target window (a criterion such as DIN 18041 or ANSI S12.60, or the room file's
   own limits) and levels at receivers under their limits, by linear programming (whole units and
-  panels by mixed-integer programming). "Apply to the room" makes it one undoable edit.
+  panels by mixed-integer programming). "Apply to the room" makes it one undoable edit. The plan
+  is made in the background: the tab shows the step (building, solving, cutting plane k of at
+  most N, checking the treated room) and the time so far; a plan made for a room that has been
+  edited since is not shown as the room's and cannot be applied: press r again.
 - **Daily exposure**: receivers with hours per day get LEX,8h (ISO 9612), the EU 2003/10/EC
   action values and the OSHA and NIOSH doses in the report (`roomcalc report`).
 - **(stale)**: the room has a problem (shown in the strip at the bottom); the results are the

@@ -104,6 +104,9 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
         self._tables_drawn = False
         self._criteria = None                  # the criteria library, read when first needed
         self._plan_run = None                  # the plan last made (roomcalc.study.PlanRun)
+        self._plan_version = -1                # the room version it was made for
+        self._plan_job = None                  # the plan being made (plan_routes.PlanJob)
+        self.room_version = 0                  # counted up by every recompute
 
     # ------------------------------------------------------------------ layout
     def compose(self) -> ComposeResult:
@@ -148,6 +151,9 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
 
     def on_resize(self, event) -> None:
         self._layout_for(event.size.width)
+
+    def on_unmount(self) -> None:
+        self.stop_plan(None, notify=False)    # closing: the planner stops at its next step
 
     def _layout_for(self, width: int) -> None:
         _toggle(self, width < 110, "narrow")
@@ -216,6 +222,7 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
         """Check the room as a file would be checked, evaluate it, and show the result. On a
         problem the last valid result stays, marked stale."""
         t0 = time.perf_counter()
+        self.room_version += 1          # a plan made before this is not this room's
         unparsed = self._unparsed
         try:
             study = self.study
@@ -422,7 +429,15 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
             self.call_after_refresh(self.query_one(f"#t-{tab} #table").focus)
 
     def action_view_tab(self, tab: str) -> None:
-        self.query_one("#view", TabbedContent).active = tab
+        view = self.query_one("#view", TabbedContent)
+        focused = self.focused
+        if tab != view.active and focused is not None and view in focused.ancestors:
+            # The focus is in the tab being left (the Plan tab's list): a TabbedContent shows
+            # the tab that holds the focus, so it would stay. The keys go to the room's table.
+            edit = self.query_one("#edit", TabbedContent).active
+            table = self._opt(f"#t-{edit} #table") if edit != "room" else None
+            self.set_focus(table)
+        view.active = tab
         if tab == "v-plan":         # its keys (r, Space) work where the focus is
 
             def focus():
@@ -432,6 +447,7 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
             self.call_after_refresh(focus)
 
     def replace_document(self, doc: Document) -> None:
+        self.stop_plan("Plan stopped: another room was opened.", notify=False)
         self.document = doc
         self.pinned = None
         self._unparsed = {}

@@ -60,6 +60,7 @@ class PlanView(VerticalScroll):
     BINDINGS = [
         Binding("space", "toggle", "Use or not", id="plan.toggle"),
         Binding("r", "run", "Plan", id="plan.run"),
+        Binding("escape", "stop", "Stop the plan", id="plan.stop"),
     ]
 
     class Run(Message):
@@ -71,6 +72,9 @@ class PlanView(VerticalScroll):
 
     class Apply(Message):
         """Apply the plan last shown to the room."""
+
+    class Stop(Message):
+        """Stop the plan being made."""
 
     class TargetChanged(Message):
         """The user picked another criterion, method or objective."""
@@ -101,6 +105,7 @@ class PlanView(VerticalScroll):
             yield Select([("least cost", "cost"), ("least area", "area")],
                          id="plan-objective", allow_blank=False)
             yield Button("Plan (r)", id="plan-run", variant="primary")
+            yield Button("Stop (Esc)", id="plan-stop", variant="warning", disabled=True)
             yield Button("Apply", id="plan-apply", disabled=True)
         yield CellGrid(cursor_type="row", zebra_stripes=True, show_row_labels=False,
                        id="plan-candidates")
@@ -123,6 +128,7 @@ class PlanView(VerticalScroll):
             items.add_column(label, key=key, justify=just)
         items.display = False
         self.query_one("#plan-rt").display = False
+        self.query_one("#plan-stop").display = False     # shown while a plan is being made
 
     # ------------------------------------------------------------------ downward
     def show_setup(self, spec, criteria: dict, units, area_label: str) -> None:
@@ -165,7 +171,8 @@ class PlanView(VerticalScroll):
         levels = ", ".join(f"{k} <= {v:g} dB(A)" for k, v in (t.max_level_dba if t else {}).items())
         self.query_one("#plan-head", Static).update(
             "What the room must reach, and the cheapest treatment to get there. The "
-            "treatments are edited in tab 6; Space ticks one in or out, r plans."
+            "treatments are edited in tab 6; Space ticks one in or out, r plans, "
+            "Escape stops a plan being made."
             + (f"\nLevel goals: {levels}" if levels else ""))
         rows, self._names = [], []
         cur = f" {t.currency}" if t is not None and t.currency else ""
@@ -224,6 +231,26 @@ class PlanView(VerticalScroll):
         self.query_one("#plan-reasons", Static).update("")
         self.query_one("#plan-apply", Button).disabled = True
 
+    def show_running(self, text: str) -> None:
+        """A plan is being made: what it is doing now (the Stop button is shown)."""
+        stop = self.query_one("#plan-stop", Button)
+        if stop.disabled:
+            self.show_message(text)
+            stop.disabled = False
+            stop.display = True
+            self.refresh_bindings()         # Escape: shown in the key strip while planning
+            return
+        res = self.query_one("#plan-result", Static)
+        if str(res.content) != text:
+            res.update(text)
+
+    def show_idle(self) -> None:
+        """No plan is being made (the Stop button is hidden)."""
+        stop = self.query_one("#plan-stop", Button)
+        stop.disabled = True
+        stop.display = False
+        self.refresh_bindings()
+
     def mark_stale(self) -> None:
         res = self.query_one("#plan-result", Static)
         text = str(res.content)
@@ -246,6 +273,15 @@ class PlanView(VerticalScroll):
         rows = [g.get_row_at(i) for i in range(g.row_count)]
         rows[g.cursor_row] = row
         g.set_rows(rows, keys=self._names)
+
+    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
+        if action == "stop":            # Escape stops a plan; with none running it is left free
+            stop = self.query("#plan-stop")
+            return (bool(stop) and stop.first().display) or None
+        return True
+
+    def action_stop(self) -> None:
+        self.post_message(self.Stop())
 
     def action_run(self) -> None:
         self.post_message(self.Run({n for n in self._names if n not in self.disabled_names}))
@@ -270,6 +306,8 @@ class PlanView(VerticalScroll):
             self.action_run()
         elif event.button.id == "plan-apply":
             self.post_message(self.Apply())
+        elif event.button.id == "plan-stop":
+            self.action_stop()
 
     def on_select_changed(self, event: Select.Changed) -> None:
         event.stop()

@@ -1,0 +1,597 @@
+"""Writing an edited room spec over the text it was read from, keeping the user's comments and
+layout.
+
+:func:`spec_to_toml_keeping` reads the original text line by line into tables (the top level,
+``[air]``, ``[shape]``, ``[target]`` and each ``[[...]]`` entry) and each table into its
+``key = value`` entries, each with the comment and blank lines above it, its comment at the end
+of the line and any comments inside a value written over several lines. It then writes the
+edited spec table by table:
+
+- a value that did not change is written exactly as the user wrote it (``1e-5`` stays
+  ``1e-5``, a list over several lines stays so, with its comments); a changed value is written
+  as :func:`roomcalc.io.roomfile.write.toml_value` writes it, with the end-of-line comment
+  kept; a key the edit removed leaves its comments where it was; a new key goes after the key
+  before it in the documented order;
+- the entries of an array of tables are matched to the original's (the same content, else
+  the same name or id, else one left over between the same neighbours, or anywhere, with most
+  of its values the same), so that moving, renaming, duplicating, adding and deleting carry
+  each entry's comments with it; new entries and tables are written as
+  :func:`roomcalc.io.roomfile.write.spec_to_toml` writes them, where the documented order puts
+  them;
+- comments between tables stay with the table below them (those right under a table's last
+  line, before a blank line, with that table), comments at the end of the file at the end; the
+  file's line ends (LF or CRLF) are kept.
+
+What can be lost: the comments of an entry the edit deleted (above its header if not
+separated from it by a blank line, on its lines, inside it), and of ``[target]`` if the spec
+has none. An entry renamed *and* with half its values or more changed is taken for a deleted
+one and a new one. A comment block separated from a deleted entry's header by a blank line
+moves to the next table that stays; an ``[air]`` whose keys are all removed stays, empty, for
+its comments. :func:`comments_lost` lists what goes, before saving. A file laid out in a way
+this reader does not follow line by line (dotted keys, sub-tables such as
+``[target.max_level_dba]``, a table written inline at the top level) is written as
+:func:`spec_to_toml` writes it, keeping the comments at its top, and :func:`comments_lost`
+lists the others.
+
+The result always reads back to the spec (``parse_spec(text) == spec``), and writing the same
+spec over the result gives the result again (tests/test_roomfile_keep.py checks both).
+"""
+
+from __future__ import annotations
+
+import re
+import tomllib
+from dataclasses import dataclass, field
+from functools import lru_cache
+
+from roomcalc.io.roomfile.spec import RoomSpec
+from roomcalc.io.roomfile.write import spec_to_dict, spec_to_toml, toml_key, toml_value
+
+__all__ = ["spec_to_toml_keeping", "comments_lost"]
+
+#: Tables written once (``[name]``) and arrays of tables (``[[name]]``), in the documented order.
+SINGLE_TABLES = ("air", "shape", "target")
+ARRAY_TABLES = ("surfaces", "objects", "sources", "receivers", "candidates", "materials")
+TABLE_ORDER = ("air", "shape", "surfaces", "objects", "sources", "receivers", "target",
+               "candidates", "materials")
+
+
+def spec_to_toml_keeping(spec: RoomSpec, original_text: str | None) -> str:
+    """The room-file text of ``spec``, written over ``original_text`` (the text it was read
+    from) so that the user's comments and layout stay where they were. Without an original,
+    :func:`spec_to_toml`'s text."""
+    return _merge(spec, original_text)[0]
+
+
+def comments_lost(spec: RoomSpec, original_text: str | None) -> list[str]:
+    """The comments of ``original_text`` that :func:`spec_to_toml_keeping` cannot keep for
+    this spec (those of deleted entries; the module's notes say which), each as written
+    (``# ...``), in file order; empty when every comment is kept. For a confirmation before
+    saving."""
+    return _merge(spec, original_text)[1]
+
+
+# --------------------------------------------------------------------------- reading the text
+class _Unsupported(Exception):
+    """A layout this reader does not follow line by line."""
+
+
+@dataclass
+class _Entry:
+    """One ``key = value`` of a table as written."""
+
+    key: str
+    lead: list[str]          # comment and blank lines above it
+    lines: list[str]         # the entry's lines, verbatim
+    prefix: str              # the first line up to the value ("  area = ")
+    trail: str               # after the value on its last line ("  # measured"), or ""
+    inner: list[str]         # comments inside a value written over several lines
+    value: object = None     # as tomllib reads it
+
+
+@dataclass
+class _Table:
+    kind: str                # "" for the top level
+    lead: list[str]          # comment and blank lines above the header
+    header: str | None       # the header line, verbatim (None for the top level)
+    entries: list[_Entry] = field(default_factory=list)
+    tail: list[str] = field(default_factory=list)   # comments right after the last entry
+    data: dict = field(default_factory=dict)
+    content: object = None   # _content(data), for matching entries of arrays of tables
+
+    def comments(self, skip: int = 0) -> list[str]:
+        """Its comments as written, in order (``skip``: lines of the lead not counted)."""
+        out = _comment_lines(self.lead[skip:])
+        if self.header is not None:
+            m = _HEADER.fullmatch(self.header)
+            out += [m.group(4).strip()] if m and m.group(4) else []
+        for e in self.entries:
+            out += _comment_lines(e.lead) + e.inner + _trail_comment(e.trail)
+        return out + _comment_lines(self.tail)
+
+
+@dataclass
+class _Layout:
+    tables: list[_Table]     # in file order, the top level first
+    end: list[str]           # comment and blank lines at the end of the file
+    newline: str
+
+
+def _comment_lines(lines) -> list[str]:
+    return [x.strip() for x in lines if x.lstrip().startswith("#")]
+
+
+def _trail_comment(text: str) -> list[str]:
+    i = text.find("#")
+    return [text[i:].strip()] if i >= 0 and not text[:i].strip() else []
+
+
+_BARE = re.compile(r"[A-Za-z0-9_-]+")
+#: A value on one line that needs no scanning: a string with no escapes, a value with no
+#: string or brackets, or a list of such; then spaces and perhaps a comment.
+_ONE_LINE = re.compile(r"(\"[^\"\\]*\"|[^\"'#\[\]{}]*?|\[[^\"'#\[\]{}]*\])(\s*(?:#.*)?)")
+_HEADER = re.compile(r"\s*(\[\[?)\s*([A-Za-z0-9_-]+)\s*(\]\]?)\s*(#.*)?")
+
+
+@lru_cache(maxsize=8)
+def _layout(text: str) -> _Layout:
+    """The tables and entries of a room file's text (kept for the text: the interface writes
+    the room on every edit over the same original)."""
+    newline = "\r\n" if "\r\n" in text else "\n"
+    lines = text.split("\n")
+    if lines and lines[-1] == "":
+        lines.pop()
+    if newline == "\r\n":
+        lines = [x[:-1] if x.endswith("\r") else x for x in lines]
+    data = tomllib.loads(text)
+    root = _Table("", [], None, data=data)
+    tables, counts = [root], {}
+    table, pending = root, []
+    i = 0
+    while i < len(lines):
+        line = lines[i]
+        s = line.strip()
+        if not s or s.startswith("#"):
+            pending.append(line)
+            i += 1
+            continue
+        if s.startswith("["):
+            m = _HEADER.fullmatch(line)
+            if m is None:
+                raise _Unsupported(line)
+            kind, array = m.group(2), m.group(1) == "[["
+            if (m.group(3) == "]]") != array or \
+                    kind not in (ARRAY_TABLES if array else SINGLE_TABLES):
+                raise _Unsupported(line)
+            cut = _first_blank(pending) if table.entries or table.header else len(pending)
+            table.tail, lead = pending[:cut], pending[cut:]
+            if array:
+                n = counts.get(kind, 0)
+                counts[kind] = n + 1
+                tdata = data[kind][n]
+            else:
+                tdata = data[kind]
+            table = _Table(kind, lead, line, data=tdata,
+                           content=_content(tdata) if array else None)
+            tables.append(table)
+            pending = []
+            i += 1
+            continue
+        key, rest_at = _read_key(line)
+        if key not in table.data or (table is root and isinstance(data[key], dict)) or \
+                (table is root and key in ARRAY_TABLES):
+            raise _Unsupported(line)
+        end_line, trail, inner = _read_value(lines, i, rest_at)
+        entry = _Entry(key, pending, lines[i:end_line + 1], line[:rest_at], trail, inner,
+                       table.data[key])
+        table.entries.append(entry)
+        pending = []
+        i = end_line + 1
+    cut = _first_blank(pending)
+    table.tail, end = pending[:cut], pending[cut:]
+    return _Layout(tables, end, newline)
+
+
+def _first_blank(lines: list[str]) -> int:
+    for j, x in enumerate(lines):
+        if not x.strip():
+            return j
+    return len(lines)
+
+
+def _read_key(line: str) -> tuple[str, int]:
+    """The key of a ``key = value`` line and where its value starts."""
+    j = len(line) - len(line.lstrip())
+    if line[j] in "\"'":
+        q = line[j]
+        k = j + 1
+        while k < len(line) and line[k] != q:
+            k += 2 if q == '"' and line[k] == "\\" else 1
+        raw = line[j:k + 1]
+        key = tomllib.loads(f"x = {raw}")["x"]
+        j = k + 1
+    else:
+        m = _BARE.match(line, j)
+        if m is None:
+            raise _Unsupported(line)
+        key, j = m.group(0), m.end()
+    while j < len(line) and line[j] in " \t":
+        j += 1
+    if j >= len(line) or line[j] != "=":
+        raise _Unsupported(line)       # a dotted key
+    j += 1
+    while j < len(line) and line[j] in " \t":
+        j += 1
+    return key, j
+
+
+def _read_value(lines: list[str], i: int, at: int) -> tuple[int, str, list[str]]:
+    """Where the value starting at ``lines[i][at:]`` ends: (its last line, the text after it on
+    that line, the comments inside it)."""
+    m = _ONE_LINE.fullmatch(lines[i], at)
+    if m:
+        return i, m.group(2), []
+    inner: list[str] = []
+    depth, k, n = 0, at, i
+    line = lines[n]
+    while True:
+        if k >= len(line):
+            if depth == 0:
+                return n, "", inner
+            n += 1
+            if n >= len(lines):
+                raise _Unsupported(lines[i])
+            line, k = lines[n], 0
+            continue
+        c = line[k]
+        if c == "#":
+            if depth == 0:
+                return n, line[k:], inner
+            inner.append(line[k:].strip())
+            k = len(line)
+        elif c in "[{":
+            depth += 1
+            k += 1
+        elif c in "]}":
+            depth -= 1
+            k += 1
+        elif c in "\"'":
+            n, line, k = _skip_string(lines, n, k)
+        elif c in " \t" and depth == 0:
+            j = k
+            while j < len(line) and line[j] in " \t":
+                j += 1
+            if j >= len(line) or line[j] == "#":
+                return n, line[k:], inner
+            k = j
+        else:
+            k += 1
+
+
+def _skip_string(lines: list[str], n: int, k: int) -> tuple[int, str, int]:
+    """Past the string starting at ``lines[n][k]``: (line index, that line, position after)."""
+    line = lines[n]
+    q = line[k]
+    triple = line.startswith(q * 3, k)
+    k += 3 if triple else 1
+    while True:
+        if k >= len(line):
+            if not triple:
+                raise _Unsupported(line)
+            n += 1
+            if n >= len(lines):
+                raise _Unsupported(line)
+            line, k = lines[n], 0
+            continue
+        c = line[k]
+        if c == "\\" and q == '"':
+            k += 2
+        elif c == q and (not triple or line.startswith(q * 3, k)):
+            k += 3 if triple else 1
+            if triple:                      # up to two more quotes belong to the string
+                while k < len(line) and line[k] == q:
+                    k += 1
+            return n, line, k
+        else:
+            k += 1
+
+
+# --------------------------------------------------------------------------- writing
+def _merge(spec: RoomSpec, original: str | None) -> tuple[str, list[str]]:
+    if not original:
+        return spec_to_toml(spec), []
+    try:
+        layout = _layout(original)
+    except (_Unsupported, tomllib.TOMLDecodeError, KeyError, IndexError, TypeError):
+        return _fallback(spec, original)
+    d = spec_to_dict(spec)
+    nl = layout.newline
+    root_new = {k: v for k, v in d.items() if k not in SINGLE_TABLES + ARRAY_TABLES}
+    old = {k: [t for t in layout.tables[1:] if t.kind == k] for k in TABLE_ORDER}
+
+    # Which original table each new table is written over (None: a new one).
+    pairs: dict[str, list[tuple[_Table | None, dict]]] = {}
+    lost: list[str] = []
+    carried: dict[int, list[str]] = {}       # id(table) -> comment block moved above it
+    end_extra: list[str] = []
+    deleted: set[int] = set()
+    for kind in TABLE_ORDER:
+        olds = old[kind]
+        if kind in SINGLE_TABLES:
+            new = d.get(kind)
+            if new is None and kind == "air" and olds and olds[0].comments():
+                new = {}        # an emptied [air] stays for its comments (it reads the same)
+            pairs[kind] = [(olds[0] if olds else None, new)] if new is not None else []
+            deleted.update(id(t) for t in olds if new is None)
+        else:
+            news = d.get(kind) or []
+            match = _match([t.data for t in olds], news, "id" if kind == "materials" else "name",
+                           [t.content for t in olds])
+            pairs[kind] = [(olds[m] if m is not None else None, x) for m, x in zip(match, news)]
+            used = {m for m in match if m is not None}
+            deleted.update(id(t) for j, t in enumerate(olds) if j not in used)
+
+    # The comments of deleted tables: a block separated from the header by a blank line moves
+    # to the next table that stays; the rest goes with the table.
+    tables = layout.tables
+    for j, t in enumerate(tables):
+        if id(t) not in deleted:
+            continue
+        cut = _last_blank(t.lead)
+        block = t.lead[:cut] if _comment_lines(t.lead[:cut]) else []
+        lost += t.comments(skip=len(block))
+        if block:
+            nxt = next((u for u in tables[j + 1:] if id(u) not in deleted), None)
+            if nxt is None:
+                end_extra += block
+            else:
+                carried[id(nxt)] = block + carried.get(id(nxt), [])
+
+    out: list[str] = []
+    _write_table(tables[0], root_new, out, carried)
+    for kind in _kinds_in_order(layout):
+        for t, new in pairs.get(kind, ()):
+            if t is None:
+                out.append("")
+                out.append(f"[[{toml_key(kind)}]]" if kind in ARRAY_TABLES
+                           else f"[{toml_key(kind)}]")
+                out += [f"{toml_key(k)} = {toml_value(v)}" for k, v in new.items()]
+            else:
+                _write_table(t, new, out, carried)
+    out += end_extra + layout.end
+    return nl.join(out) + nl, lost
+
+
+def _fallback(spec: RoomSpec, original: str) -> tuple[str, list[str]]:
+    """A layout not followed line by line: the plain text, with the comments at the top kept."""
+    lines = original.replace("\r\n", "\n").split("\n")
+    head = []
+    for line in lines:
+        if line.startswith("#") or (not line.strip() and head):
+            head.append(line)
+        else:
+            break
+    while head and not head[-1].strip():
+        head.pop()
+    text = spec_to_toml(spec)
+    lost = _all_comments(lines[len(head):])
+    return ("\n".join(head) + "\n" + text) if head else text, lost
+
+
+def _all_comments(lines: list[str]) -> list[str]:
+    """Every comment in lines of TOML (outside strings), as written."""
+    out = []
+    for line in lines:
+        if "#" not in line:
+            continue
+        s = line.lstrip()
+        if s.startswith("#"):
+            out.append(s.strip())
+            continue
+        k, q = 0, None
+        while k < len(line):
+            c = line[k]
+            if q is None and c == "#":
+                out.append(line[k:].strip())
+                break
+            if c in "\"'" and q is None:
+                q = c
+            elif c == q:
+                q = None
+            elif c == "\\" and q == '"':
+                k += 1
+            k += 1
+    return out
+
+
+def _last_blank(lines: list[str]) -> int:
+    for j in range(len(lines) - 1, -1, -1):
+        if not lines[j].strip():
+            return j
+    return 0
+
+
+def _kinds_in_order(layout: _Layout) -> list[str]:
+    """The kinds of table in the order the original first has them, the others where the
+    documented order puts them."""
+    order: list[str] = []
+    for t in layout.tables[1:]:
+        if t.kind not in order:
+            order.append(t.kind)
+    for kind in TABLE_ORDER:
+        if kind in order:
+            continue
+        rank = TABLE_ORDER.index(kind)
+        at = 0
+        for j, k in enumerate(order):
+            if TABLE_ORDER.index(k) < rank:
+                at = j + 1
+        order.insert(at, kind)
+    return order
+
+
+def _write_table(t: _Table, new: dict, out: list[str], carried: dict) -> None:
+    out += carried.get(id(t), ())
+    out += t.lead
+    if t.header is not None:
+        out.append(t.header)
+    present = {e.key for e in t.entries}
+    after: dict[str | None, list[str]] = {}
+    anchor = None
+    for k in new:
+        if k in present:
+            anchor = k
+        else:
+            after.setdefault(anchor, []).append(k)
+    for k in after.get(None, ()):
+        out.append(f"{toml_key(k)} = {toml_value(new[k])}")
+    for e in t.entries:
+        out += e.lead
+        if e.key in new:
+            v = new[e.key]
+            if _same(v, e.value):
+                out += e.lines
+            elif len(e.lines) > 1 and (kept := _numbers_in_place(e, v)) is not None:
+                out += kept
+            else:
+                indent = e.prefix[:len(e.prefix) - len(e.prefix.lstrip())]
+                out += [indent + c for c in e.inner]
+                out.append(e.prefix + toml_value(v) + e.trail)
+        else:                                   # removed: its comments stay
+            indent = e.prefix[:len(e.prefix) - len(e.prefix.lstrip())]
+            out += [indent + c for c in e.inner + _trail_comment(e.trail)]
+        for k in after.get(e.key, ()):
+            out.append(f"{toml_key(k)} = {toml_value(new[k])}")
+    out += t.tail
+
+
+_NUMBER_OR_COMMENT = re.compile(r"#[^\n]*|[-+]?\d[\d_]*(?:\.\d[\d_]*)?(?:[eE][-+]?\d[\d_]*)?")
+
+
+def _numbers_in_place(e: _Entry, new) -> list[str] | None:
+    """A list of numbers written over several lines, changed but as long as it was: the lines
+    with only the changed numbers rewritten, so its comments stay beside the numbers they were
+    beside. None if it is not such a list."""
+    old = e.value
+    if not (isinstance(new, list) and isinstance(old, list) and len(new) == len(old)) or \
+            not all(isinstance(x, (int, float)) and not isinstance(x, bool)
+                    for x in new + old):
+        return None
+    whole = "\n".join(e.lines)
+    start, end = len(e.prefix), len(whole) - len(e.trail)
+    body = whole[start:end]
+    pieces, at, k = [], 0, 0
+    for m in _NUMBER_OR_COMMENT.finditer(body):
+        if m.group(0).startswith("#"):
+            continue
+        if k >= len(old) or float(m.group(0).replace("_", "")) != old[k]:
+            return None
+        if not _same(new[k], old[k]):
+            pieces += [body[at:m.start()], toml_value(new[k])]
+            at = m.end()
+        k += 1
+    if k != len(old):
+        return None
+    return (whole[:start] + "".join(pieces) + body[at:] + whole[end:]).split("\n")
+
+
+def _same(a, b) -> bool:
+    """Equal as data: numbers by value (an int and a float of the same value are the same),
+    booleans only to booleans, lists and tables element by element."""
+    if isinstance(a, bool) or isinstance(b, bool):
+        return type(a) is type(b) and a == b
+    if isinstance(a, (int, float)) and isinstance(b, (int, float)):
+        return a == b
+    if isinstance(a, list):
+        return isinstance(b, list) and len(a) == len(b) and all(map(_same, a, b))
+    if isinstance(a, dict):
+        return isinstance(b, dict) and a.keys() == b.keys() and \
+            all(_same(v, b[k]) for k, v in a.items())
+    return type(a) is type(b) and a == b
+
+
+def _content(d: dict):
+    """A hashable stand-in for an entry's content (equal for equal content; an int and a
+    float of the same value hash alike)."""
+    try:
+        k = tuple(d.items())
+        hash(k)
+        return k
+    except TypeError:           # lists or tables among the values
+        return _frozen(d)
+
+
+def _frozen(x):
+    if isinstance(x, bool):
+        return x
+    if isinstance(x, (int, float)):
+        return float(x)
+    if isinstance(x, list):
+        return tuple(_frozen(v) for v in x)
+    if isinstance(x, dict):
+        return tuple(sorted((k, _frozen(v)) for k, v in x.items()))
+    return x
+
+
+def _match(old: list[dict], new: list[dict], name: str,
+           old_content: list | None = None) -> list[int | None]:
+    """For each new entry of an array of tables, the original entry it continues (None: a new
+    one). In turn: the same content; the same name; an entry left over between the same
+    neighbours with most of its values the same (renamed, perhaps changed); such an entry
+    left over anywhere (renamed and moved). A renamed entry with half its values or more
+    changed counts as deleted and new (its comments are listed by :func:`comments_lost`)."""
+    m: list[int | None] = [None] * len(new)
+    used: set[int] = set()
+    by_content: dict = {}
+    for i, o in enumerate(old_content or [_content(o) for o in old]):
+        by_content.setdefault(o, []).append(i)
+    for j, x in enumerate(new):
+        free = by_content.get(_content(x))
+        if free:
+            m[j] = free.pop(0)
+            used.add(m[j])
+    if len(used) == len(old):
+        return m
+    by_name: dict = {}
+    for i, o in enumerate(old):
+        if i not in used:
+            by_name.setdefault(o.get(name), []).append(i)
+    for j, x in enumerate(new):
+        if m[j] is None and by_name.get(x.get(name)):
+            m[j] = by_name[x.get(name)].pop(0)
+            used.add(m[j])
+    left = [i for i in range(len(old)) if i not in used]
+    if not left or all(v is not None for v in m):
+        return m
+
+    def alike(x: dict, o: dict) -> bool:
+        """Most values the same (renamed, perhaps with one of three values changed)."""
+        keys = (x.keys() | o.keys()) - {name}
+        same = sum(1 for k in keys if k in x and k in o and _same(x[k], o[k]))
+        return bool(keys) and 2 * same > len(keys)
+
+    after = [len(old)] * (len(new) + 1)     # the original index of the next matched entry
+    for j in range(len(new) - 1, -1, -1):
+        after[j] = m[j] if m[j] is not None else after[j + 1]
+    gaps: dict[tuple[int, int], list[int]] = {}
+    lo = -1
+    for j in range(len(new)):
+        if m[j] is not None:
+            lo = m[j]
+        else:
+            gaps.setdefault((lo, after[j + 1]), []).append(j)
+    for (lo, hi), js in gaps.items():
+        there = [i for i in left if lo < i < hi]
+        for j in js:
+            i = next((i for i in there if alike(new[j], old[i])), None)
+            if i is not None:
+                m[j] = i
+                there.remove(i)
+                left.remove(i)
+    for j, x in enumerate(new):
+        if m[j] is None and left:
+            i = next((i for i in left if alike(x, old[i])), None)
+            if i is not None:
+                m[j] = i
+                left.remove(i)
+    return m

@@ -1,0 +1,45 @@
+"""Saving from the interface keeps the comments the user wrote in the room file."""
+
+from __future__ import annotations
+
+from roomcalc.io.roomfile import parse_spec
+from roomcalc.tui.app import AppConfig, make_app
+from roomcalc.tui.document import Document
+
+SIZE = (120, 40)
+AREA_COL = 2                    # the surfaces table's area column
+
+
+async def _ready(pilot, tries: int = 100):
+    for _ in range(tries):
+        await pilot.pause()
+        if pilot.app.screen.query("#reverb-table"):
+            return
+
+
+async def test_editing_a_value_and_saving_keeps_the_comments(room_file, catalog, pilot_keys):
+    path = room_file("classroom.toml")
+    before = path.read_text(encoding="utf-8")
+    assert "# What the room must reach" in before
+    app = make_app(Document.open(path), catalog,
+                   AppConfig(offer_recovery=False, theme="textual-dark"))
+    async with app.run_test(size=SIZE) as pilot:
+        await _ready(pilot)
+        doc = app.screen.document
+        windows = [s.name for s in doc.spec.surfaces].index("Windows")
+        await pilot_keys.edit_cell(pilot, app.screen.query_one("#t-surfaces"), windows,
+                                   AREA_COL, "2.5")
+        assert doc.spec.surfaces[windows].area == 2.5 and doc.modified
+        assert doc.comments_lost() == []
+        await pilot.press("ctrl+s")
+        await pilot.pause()
+        assert not doc.modified
+    after = path.read_text(encoding="utf-8")
+    assert after != before
+    comments = [ln for ln in before.splitlines() if ln.startswith("#")]
+    assert [ln for ln in after.splitlines() if ln.startswith("#")] == comments
+    assert "# What the room must reach" in after
+    # Only the edited line differs, and the file reads back to the edited room.
+    changed = [(a, b) for a, b in zip(before.splitlines(), after.splitlines()) if a != b]
+    assert changed == [("area = 2.4", "area = 2.5")]
+    assert parse_spec(after) == doc.spec
