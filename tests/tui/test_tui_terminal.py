@@ -1,5 +1,7 @@
-"""Smoke test in a real terminal: ``roomcalc open`` on the workshop example inside a detached
-tmux session (its own socket, 120x40), read back with capture-pane, quit with Ctrl+Q.
+"""Tests in a real terminal: ``roomcalc open`` inside a detached tmux session (its own socket,
+120x40), read back with capture-pane: the workshop example's numbers and Ctrl+Q; a save that
+fails on quitting keeps roomcalc running with the reason; an edit survives a kill and "Not
+now" keeps it.
 
 Skipped only when tmux is not installed.
 """
@@ -114,7 +116,7 @@ def _wait(capture, test, seconds: float = 15.0) -> str:
 
 
 @pytest.mark.skipif(TMUX is None, reason="tmux is not installed")
-def test_a_failed_save_on_quit_keeps_roomcalc_running(tmp_path):
+def test_a_failed_save_on_quit_keeps_roomcalc_running(tmp_path, monkeypatch):
     """In a real terminal: the room's folder stops taking writes, an edit, Ctrl+Q at once,
     Enter on "Save": roomcalc keeps running with the reason on screen, and the edit is in the
     recovery file. Then Ctrl+Q, "Don't save" quits (exit 0) and removes it.
@@ -130,6 +132,7 @@ def test_a_failed_save_on_quit_keeps_roomcalc_running(tmp_path):
     shutil.copyfile(EXAMPLES / "classroom.toml", room)
     surfaces = len(Document.open(room).spec.surfaces)
     data = tmp_path / "data"
+    monkeypatch.setenv("ROOMCALC_DATA_DIR", str(data))      # where this test looks, too
     exit_file = tmp_path / "exit.txt"
     sock = f"roomcalc-test-{uuid.uuid4().hex[:12]}"
     tmux = [TMUX, "-L", sock, "-f", os.devnull]
@@ -172,7 +175,7 @@ def test_a_failed_save_on_quit_keeps_roomcalc_running(tmp_path):
         assert "Not saved" in screen and reason in " ".join(screen.split()), screen
         time.sleep(1.0)
         assert not exit_file.exists(), capture()         # still running
-        rec = find_recovery(room) if not as_root else next((data / "recovery").glob("*.toml"))
+        rec = find_recovery(room)
         assert len(Document.open(rec).spec.surfaces) > surfaces       # the edit is kept
 
         keys("C-q")
@@ -189,3 +192,68 @@ def test_a_failed_save_on_quit_keeps_roomcalc_running(tmp_path):
         subprocess.run(tmux + ["kill-server"], capture_output=True, timeout=10)
         if folder.is_dir():
             os.chmod(folder, 0o755)
+
+
+@pytest.mark.skipif(TMUX is None, reason="tmux is not installed")
+def test_an_edit_survives_a_kill_and_not_now_keeps_it(tmp_path, monkeypatch):
+    """In a real terminal: an edit, then the process is killed (SIGKILL: no clean-up at all)
+    0.3 s after the edit is on screen. The edit is in the recovery file. Opened again, roomcalc
+    offers it; "Not now" and Ctrl+Q leave it on disk, kept under its time."""
+    import signal
+
+    from roomcalc.tui.document import Document
+    from roomcalc.tui.recovery import find_recoveries
+
+    room = tmp_path / "classroom.toml"
+    shutil.copyfile(EXAMPLES / "classroom.toml", room)
+    surfaces = len(Document.open(room).spec.surfaces)
+    data = tmp_path / "data"
+    monkeypatch.setenv("ROOMCALC_DATA_DIR", str(data))      # where this test looks, too
+    sock = f"roomcalc-test-{uuid.uuid4().hex[:12]}"
+    tmux = [TMUX, "-L", sock, "-f", os.devnull]
+
+    def start(name):
+        inner = (f"exec env -u COLUMNS -u LINES ROOMCALC_DATA_DIR={shlex.quote(str(data))} "
+                 f"{' '.join(shlex.quote(c) for c in _command())} open {shlex.quote(str(room))}")
+        subprocess.run(tmux + ["new-session", "-d", "-s", name, "-x", "120", "-y", "40",
+                               "sh", "-c", inner, ";", "set-option", "-t", name,
+                               "remain-on-exit", "on"], check=True, timeout=10, cwd=tmp_path,
+                       stdin=subprocess.DEVNULL)
+
+    def capture(name) -> str:
+        return subprocess.run(tmux + ["capture-pane", "-p", "-t", name], capture_output=True,
+                              text=True, timeout=10).stdout
+
+    def keys(name, *k):
+        subprocess.run(tmux + ["send-keys", "-t", name, *k], check=True, timeout=10)
+
+    try:
+        start("one")
+        assert "Sabine" in _wait(lambda: capture("one"), lambda s: "Sabine" in s)
+        new_row = f"Surface {surfaces + 1}"
+        for _ in range(3):           # the first key may come before the table has the focus
+            keys("one", "a")
+            if new_row in _wait(lambda: capture("one"), lambda s: new_row in s, 3):
+                break
+        assert new_row in capture("one")
+        time.sleep(0.3)
+        pid = int(subprocess.run(tmux + ["display-message", "-p", "-t", "one",
+                                         "#{pane_pid}"], capture_output=True, text=True,
+                                 timeout=10).stdout)
+        os.kill(pid, signal.SIGKILL)
+        found = find_recoveries(room)
+        assert len(found) == 1 and len(Document.open(found[0].path).spec.surfaces) > surfaces
+
+        start("two")
+        screen = _wait(lambda: capture("two"), lambda s: "Not now" in s)
+        assert "closed without saving" in " ".join(screen.split()), screen
+        keys("two", "Tab", "Tab", "Enter")                  # "Not now", the third button
+        assert "Sabine" in _wait(lambda: capture("two"), lambda s: "Not now" not in s
+                                 and "Sabine" in s)
+        keys("two", "C-q")
+        assert "Pane is dead" in _wait(lambda: capture("two"), lambda s: "Pane is dead" in s)
+        found = find_recoveries(room)
+        assert len(found) == 1 and found[0].kept, found
+        assert len(Document.open(found[0].path).spec.surfaces) > surfaces
+    finally:
+        subprocess.run(tmux + ["kill-server"], capture_output=True, timeout=10)
