@@ -311,7 +311,8 @@ class RoomApp(App):
             return
         if not asked:
             self._take_over_recovery(doc)
-        kept = find_recoveries(doc.path)
+        # Mid-session (asked), this session's own live file is not "from an earlier session".
+        kept = [r for r in find_recoveries(doc.path) if r.kept or not asked]
         if not kept:
             if asked:
                 self.notify("No unsaved changes from an earlier session are kept for "

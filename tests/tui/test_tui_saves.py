@@ -98,8 +98,9 @@ def _crashed_session(path, material="mineral-wool-50mm-48kg"):
     ceiling = next(s for s in crashed.spec.surfaces if s.name == "Ceiling")
     ceiling.material = material
     rec = crashed.write_recovery()
-    old = rec.stat().st_mtime - 60
-    os.utime(path, (old, old))
+    then = rec.stat().st_mtime - 120
+    os.utime(rec, (then, then))
+    os.utime(path, (then - 60, then - 60))
     return spec_to_toml(crashed.spec)
 
 
@@ -253,6 +254,10 @@ async def test_not_now_then_edit_keeps_both_and_offers_them_again(room_file, cat
         assert crashed in texts and len(texts) == 2
         palette = {c.title: c.callback for c in app.get_system_commands(app.screen)}
         palette[RESTORE_COMMAND]()
+        await _settle(pilot, lambda: isinstance(app.screen, Ask))
+        crash_time = [r for r in find_recoveries(path) if r.kept][0].when
+        question = str(app.screen.query_one(".question").content)
+        assert crash_time in question, question        # the crash's, not this session's own
         await _ask(pilot, "later")
         await pilot.press("ctrl+q")
         await _ask(pilot, "discard")                 # "Don't save" the new edit
