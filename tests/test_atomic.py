@@ -66,7 +66,7 @@ def test_next_save_removes_a_stale_temporary_of_the_same_target(tmp_path):
 def test_other_files_are_untouched(tmp_path):
     """Only ``.room.toml.XXXXXXXX.tmp`` (8 characters of mkstemp's alphabet) of this very
     target, and only when stale: another target's temporary, a name that merely starts the
-    same, a user's file and a fresh temporary (a save in progress) all stay."""
+    same, a user's file and a temporary a save is writing now (it holds the lock) all stay."""
     target = tmp_path / "room.toml"
     keep = [
         _left_by_kill(tmp_path, target="other.toml"),              # another target
@@ -78,12 +78,43 @@ def test_other_files_are_untouched(tmp_path):
     keep[-1].write_text("mine")
     _age(keep[-1], 3600)
     stale = _left_by_kill(tmp_path, random="zz9_zz9z")
-    removed = remove_stale_temporaries(target)
+    with _held(keep[3]):
+        removed = remove_stale_temporaries(target)
     assert removed == [stale] and not stale.exists()
     assert all(p.exists() for p in keep)
 
 
-def test_stale_means_older_than_the_threshold(tmp_path):
+@pytest.mark.skipif(atomic.fcntl is None, reason="no flock on this system")
+def test_a_temporary_of_a_killed_save_goes_at_once_a_locked_one_stays(tmp_path):
+    """With locks, staleness does not wait: a temporary nobody holds goes on the next save
+    however new it is (the save that made it was killed: its lock went with its process);
+    one a live save holds stays however old."""
+    target = tmp_path / "room.toml"
+    new = _left_by_kill(tmp_path, random="new_0001", age=0.0)
+    old = _left_by_kill(tmp_path, random="old_0001", age=3600.0)
+    with _held(old):
+        assert remove_stale_temporaries(target) == [new]
+    assert old.exists() and not new.exists()
+
+
+def _held(path):
+    """A context holding ``path``'s lock, as a save in progress does."""
+    import contextlib
+
+    @contextlib.contextmanager
+    def hold():
+        fd = os.open(path, os.O_RDONLY)
+        try:
+            if atomic.fcntl is not None:
+                atomic.fcntl.flock(fd, atomic.fcntl.LOCK_EX)
+            yield
+        finally:
+            os.close(fd)
+    return hold()
+
+
+def test_without_locks_stale_means_older_than_the_threshold(tmp_path, monkeypatch):
+    monkeypatch.setattr(atomic, "fcntl", None)
     target = tmp_path / "room.toml"
     p = _left_by_kill(tmp_path, age=STALE_TEMPORARY_S - 5)
     assert remove_stale_temporaries(target) == [] and p.exists()
