@@ -29,6 +29,9 @@ RESTORE_COMMAND = "Restore changes kept from before"
 SETTLE_DELAY_S = 1.0      # after start-up, the objects made so far leave the garbage collector
 
 
+LOST_COMMENTS_SHOWN = 6     # comments a save would drop, listed in its question
+
+
 @dataclass
 class AppConfig:
     """Settings of one run: recovery timing, whether to offer recovery at start."""
@@ -139,7 +142,7 @@ class RoomApp(App):
         if doc.path is None or doc.demo:
             self.action_save_as()
             return
-        self._write(doc, doc.path)
+        self._save(doc, doc.path)
 
     def action_save_as(self, then=None) -> None:
         """Ask a file name and save there; ``then`` runs after a save that worked (the quit
@@ -148,8 +151,7 @@ class RoomApp(App):
         default = str(doc.path) if doc.path and not doc.demo else "my-room.toml"
 
         def write(path):
-            if self._write(doc, path) and then is not None:
-                then()
+            self._save(doc, path, then)
 
         def done(name):
             if not name:
@@ -170,6 +172,33 @@ class RoomApp(App):
             else:
                 write(path)
         self.push_screen(AskText("Save the room as (a .toml file):", default), done)
+
+    def _save(self, doc: Document, path: Path, then=None) -> None:
+        """Save, then run ``then`` if it worked. A save that would drop comments the user
+        wrote (those in entries deleted since) asks first, naming them."""
+        lost = doc.comments_lost() if doc.modified else []
+
+        def go():
+            if self._write(doc, path) and then is not None:
+                then()
+        if not lost:
+            go()
+            return
+        shown = "\n".join(f"  {c}" for c in lost[:LOST_COMMENTS_SHOWN])
+        if len(lost) > LOST_COMMENTS_SHOWN:
+            shown += f"\n  (and {len(lost) - LOST_COMMENTS_SHOWN} more)"
+
+        def done(ans):
+            if ans == "save":
+                go()
+            else:
+                self.notify("Not saved: the changes and the comments are still here.",
+                            markup=False)
+        n = len(lost)
+        self.push_screen(Ask(f"Saving drops {n} comment{'s' if n != 1 else ''} written in "
+                             f"entries you deleted:\n{shown}",
+                             [("save", "Save without them", "warning"),
+                              ("cancel", "Cancel", "default")]), done)
 
     def _write(self, doc: Document, path: Path) -> bool:
         """Save; on failure say why (and that nothing is lost) and return False."""
@@ -208,8 +237,7 @@ class RoomApp(App):
                 if doc.path is None or doc.demo:
                     self.action_save_as(then=then)
                     return
-                if self._write(doc, doc.path):
-                    then()
+                self._save(doc, doc.path, then)
             elif ans == "discard":
                 self._discard_approved = doc       # its recovery goes when it is closed
                 then()

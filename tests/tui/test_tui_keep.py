@@ -43,3 +43,35 @@ async def test_editing_a_value_and_saving_keeps_the_comments(room_file, catalog,
     changed = [(a, b) for a, b in zip(before.splitlines(), after.splitlines()) if a != b]
     assert changed == [("area = 2.4", "area = 2.5")]
     assert parse_spec(after) == doc.spec
+
+
+async def test_a_save_that_drops_comments_asks_first(room_file, catalog):
+    """Deleting an entry that holds a comment: Ctrl+S names the comment and asks; Cancel
+    writes nothing, "Save without them" saves."""
+    from roomcalc.tui.screens.dialogs import Ask
+
+    path = room_file("classroom.toml")
+    text = path.read_text(encoding="utf-8").replace(
+        'name = "Door"', '# The old door: to be replaced next summer\nname = "Door"')
+    path.write_text(text, encoding="utf-8")
+    app = make_app(Document.open(path), catalog,
+                   AppConfig(offer_recovery=False, theme="textual-dark"))
+    async with app.run_test(size=SIZE) as pilot:
+        await _ready(pilot)
+        doc = app.screen.document
+        doc.delete("surfaces", [s.name for s in doc.spec.surfaces].index("Door"))
+        await pilot.press("ctrl+s")
+        await pilot.pause()
+        assert isinstance(app.screen, Ask)
+        assert "# The old door: to be replaced next summer" in app.screen.question
+        await pilot.click("#cancel")
+        await pilot.pause()
+        assert path.read_text(encoding="utf-8") == text and doc.modified
+        await pilot.press("ctrl+s")
+        await pilot.pause()
+        await pilot.click("#save")
+        await pilot.pause()
+        assert not doc.modified
+    after = path.read_text(encoding="utf-8")
+    assert "The old door" not in after and 'name = "Door"' not in after
+    assert parse_spec(after) == doc.spec
