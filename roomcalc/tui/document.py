@@ -136,7 +136,7 @@ class Document:
         while item.name in names:
             n += 1
             item.name = NEW_ITEM[collection](n).name
-        at = len(items) if index is None else index + 1
+        at = len(items) if index is None else min(index + 1, len(items))
         self.change(lambda spec: getattr(spec, collection).insert(at, item),
                     f"add {collection[:-1]}")
         return at

@@ -75,3 +75,13 @@ async def test_a_save_that_drops_comments_asks_first(room_file, catalog):
     after = path.read_text(encoding="utf-8")
     assert "The old door" not in after and 'name = "Door"' not in after
     assert parse_spec(after) == doc.spec
+
+
+def test_adding_to_an_empty_list_returns_where_the_entry_is():
+    """The index ``Document.add`` returns is the new entry's, also below the end of a short
+    list (the cursor of an empty table is row 0)."""
+    doc = Document.new_box(5.0, 4.0, 3.0)
+    assert doc.spec.objects == []
+    at = doc.add("objects", 0)
+    assert at == 0 and doc.spec.objects[at].name == "Object 1"
+    assert doc.add("objects", 7) == 1 and len(doc.spec.objects) == 2
