@@ -21,51 +21,10 @@ from roomcalc.tui.app import AppConfig, make_app
 from roomcalc.tui.document import Document
 from roomcalc.tui.widgets.plan_view import PlanView
 
+from test_tui_plan import ROOM    # the Plan tab tests' invented room
+
 SIZE = (120, 40)
 GATE_TIMEOUT_S = 20.0
-
-ROOM = """\
-# An invented test room.
-version = 1
-title = "Worker test room"
-units = "metric"
-
-[shape]
-length = 9.0
-width = 7.0
-height = 3.0
-
-[[surfaces]]
-name = "Floor"
-face = "floor"
-material = "linoleum-vinyl-on-concrete"
-
-[[surfaces]]
-name = "Ceiling"
-face = "ceiling"
-material = "plaster-on-masonry"
-
-[[surfaces]]
-name = "Walls"
-area = 96.0
-material = "plaster-on-masonry"
-
-[target]
-method = "sabine"
-rt60_max = 1.2
-
-[[candidates]]
-name = "Ceiling tiles"
-surface = "Ceiling"
-material = "mineral-wool-25mm-high-density"
-cost_per_m2 = 40.0
-
-[[candidates]]
-name = "Wall panels"
-surface = "Walls"
-material = "mineral-wool-50mm-48kg"
-cost_per_m2 = 65.0
-"""
 
 
 class SlowPlanner:
