@@ -564,5 +564,5 @@ def test_random_edits_keep_every_comment_but_those_of_deleted_entries(name, seed
     renamed: set[str] = set()
     for _ in range(steps):
         _op(doc, rng, tags, deleted, renamed)
-    out = check_written(doc, text, deleted, renamed | {""})
+    check_written(doc, text, deleted, renamed | {""})
     assert not any(c.startswith("# section") for c in comments_lost(doc.spec, text))

@@ -15,8 +15,7 @@ from roomcalc.io.atomic import remove_stale_temporaries, write_text_atomic
 from roomcalc.io.roomfile import (CandidateSpec, ObjectSpec, ReceiverSpec, RoomSpec, ShapeSpec,
                                   SourceSpec, SurfaceSpec, comments_lost, parse_spec,
                                   spec_to_toml_keeping)
-from roomcalc.tui.recovery import (discard_recovery, find_recovery,  # noqa: F401 (re-exported)
-                                   recovery_path, write_recovery)
+from roomcalc.tui.recovery import discard_recovery, write_recovery
 
 COLLECTIONS = ("surfaces", "objects", "sources", "receivers", "candidates")
 NEW_ITEM = {

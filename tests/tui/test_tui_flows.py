@@ -12,7 +12,8 @@ import os
 from roomcalc.io.roomfile import parse_spec, spec_to_toml
 from roomcalc.tui.app import AppConfig, make_app
 from roomcalc.study.edits import convert_units
-from roomcalc.tui.document import Document, find_recovery, recovery_path
+from roomcalc.tui.document import Document
+from roomcalc.tui.recovery import find_recovery, recovery_path
 from roomcalc.tui.screens.dialogs import Ask
 from roomcalc.tui.screens.main import MainScreen
 from roomcalc.tui.screens.materials import MaterialChooser

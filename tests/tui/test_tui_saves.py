@@ -17,8 +17,8 @@ import pytest
 from roomcalc.io.roomfile import spec_to_toml
 from roomcalc.tui import recovery as recovery_mod
 from roomcalc.tui.app import RESTORE_COMMAND, AppConfig, make_app
-from roomcalc.tui.document import Document, find_recovery, recovery_path
-from roomcalc.tui.recovery import find_recoveries
+from roomcalc.tui.document import Document
+from roomcalc.tui.recovery import find_recoveries, find_recovery, recovery_path
 from roomcalc.tui.screens.dialogs import Ask, AskText
 from roomcalc.tui.screens.main import MainScreen
 

@@ -124,7 +124,8 @@ def test_a_failed_save_on_quit_keeps_roomcalc_running(tmp_path, monkeypatch):
     As a regular user the folder is made read-only (chmod); as root, which writes into
     read-only folders anyway, the folder is replaced by a regular file (ENOTDIR for everyone).
     """
-    from roomcalc.tui.document import Document, find_recovery
+    from roomcalc.tui.document import Document
+    from roomcalc.tui.recovery import find_recovery
 
     folder = tmp_path / "rooms"
     folder.mkdir()
