@@ -101,11 +101,15 @@ def compare(before: RoomResult, after: RoomResult) -> Comparison:
                 dist = rb.distances_m[loudest]
                 if dist < rc:
                     inside = loudest
+                # The note only when the reverberant field falls by a change the reports show
+                # (0.1 dB at one decimal); rounded, then +0.0, so no "-0.0" is ever written.
+                fall_rev, fall_a = round(-d_rev, 1) + 0.0, round(-d_a, 1) + 0.0
+                if inside is not None and fall_rev > 0.0:
                     notes.append(
                         f"'{ra.name}' is {dist:.1f} m from '{loudest}', inside its critical "
                         f"distance ({rc:.1f} m at {bands[i_mid]} Hz): direct sound dominates "
-                        f"there, so the level falls by {-d_a:.1f} dB(A) although the "
-                        f"reverberant field falls by {-d_rev:.1f} dB(A). Absorption cannot "
+                        f"there, so the level falls by {fall_a:.1f} dB(A) although the "
+                        f"reverberant field falls by {fall_rev:.1f} dB(A). Absorption cannot "
                         "reduce direct sound; a screen, an enclosure or distance can.")
         changes.append(ReceiverChange(ra.name, d_band, float(d_a), float(d_rev), inside))
     return Comparison(before, after, rt_change, red, tuple(changes), tuple(notes), method)

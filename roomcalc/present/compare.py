@@ -6,7 +6,7 @@ import csv
 import io
 
 from roomcalc.engine.analysis import METHOD_TITLES, Comparison
-from roomcalc.present.numbers import floats, json_text, wrap
+from roomcalc.present.numbers import csv_number, floats, json_text, wrap
 from roomcalc.present.tables import BandRows
 
 __all__ = ["comparison_dict", "compare_report"]
@@ -66,12 +66,12 @@ def compare_report(cmp: Comparison, names: tuple[str, str], form: str = "text") 
         w = csv.writer(buf, lineterminator="\n")
         w.writerow(["quantity", "item", "unit"] + [str(x) for x in cmp.before.bands_hz] + ["dBA"])
         for k, v in cmp.rt60_change_s.items():
-            w.writerow(["rt60_change", k, "s"] + [f"{x:.6g}" for x in v] + [""])
+            w.writerow(["rt60_change", k, "s"] + [csv_number(x) for x in v] + [""])
         w.writerow(["reverberant_reduction", "room", "dB"] +
-                   [f"{x:.6g}" for x in cmp.reverberant_reduction_db] + [""])
+                   [csv_number(x) for x in cmp.reverberant_reduction_db] + [""])
         for c in cmp.receivers:
-            w.writerow(["level_change", c.name, "dB"] + [f"{x:.6g}" for x in c.level_change_db] +
-                       [f"{c.level_change_dba:.6g}"])
+            w.writerow(["level_change", c.name, "dB"] + [csv_number(x) for x in c.level_change_db] +
+                       [csv_number(c.level_change_dba)])
         return buf.getvalue()
     rt, lv = _compare_tables(cmp)
     md = form == "markdown"

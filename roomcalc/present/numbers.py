@@ -8,7 +8,7 @@ import textwrap
 import numpy as np
 
 __all__ = ["WIDTH", "NO_VALUE", "fmt", "fit", "value_or_note", "band_label", "wrap", "floats",
-           "finite_or_none", "plural", "json_text"]
+           "finite_or_none", "plural", "json_text", "csv_number"]
 
 #: Width of the text reports [characters].
 WIDTH = 80
@@ -16,13 +16,20 @@ WIDTH = 80
 
 def fmt(x, nd: int = 2) -> str:
     """``x`` with ``nd`` decimals; "-" for None, NaN or infinity (a value the formula has
-    none for)."""
+    none for). A value that rounds to zero is written unsigned ("0.0", never "-0.0").
+
+    >>> fmt(-0.004), fmt(-0.04, 1), fmt(-0.0, 0), fmt(-0.06, 1)
+    ('0.00', '0.0', '0', '-0.1')
+    """
     if x is None:
         return "-"
     x = float(x)
     if not math.isfinite(x):
         return "-"
-    return f"{x:.{nd}f}"
+    text = f"{x:.{nd}f}"
+    if text.startswith("-") and not text.strip("-0."):
+        return text[1:]
+    return text
 
 
 #: What text, markdown and CSV say where a formula has no finite value to give (an infinity or
@@ -35,7 +42,7 @@ def value_or_note(x, nd: int = 1, unit: str = "") -> str:
     """``x`` with ``nd`` decimals and its unit, or :data:`NO_VALUE` when it is not finite."""
     if x is None or not math.isfinite(float(x)):
         return NO_VALUE
-    return f"{float(x):.{nd}f}" + (f" {unit}" if unit else "")
+    return fmt(x, nd) + (f" {unit}" if unit else "")
 
 
 def fit(cell: str, width: int) -> str:
@@ -85,9 +92,24 @@ def plural(n: int, word: str, many: str | None = None) -> str:
     return f"{n:g} {word if n == 1 else (many or word + 's')}"
 
 
+def csv_number(x) -> str:
+    """A CSV cell: 6 significant digits, empty where there is no finite value, "0" for a
+    negative zero.
+
+    >>> csv_number(-0.0), csv_number(1.23456789), csv_number(float("nan"))
+    ('0', '1.23457', '')
+    """
+    if x is None or x == "":
+        return ""
+    x = float(x)
+    if not math.isfinite(x):
+        return ""
+    return f"{x + 0.0:.6g}"      # + 0.0 turns -0.0 into 0.0
+
+
 def _strict(obj):
     if isinstance(obj, float):
-        return obj if math.isfinite(obj) else None
+        return obj + 0.0 if math.isfinite(obj) else None     # + 0.0: no -0.0 in JSON
     if isinstance(obj, dict):
         return {k: _strict(v) for k, v in obj.items()}
     if isinstance(obj, (list, tuple)):

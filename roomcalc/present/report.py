@@ -15,7 +15,7 @@ import io
 
 from roomcalc.engine.analysis import METHOD_TITLES, METHODS, RoomResult
 from roomcalc.io.units import METRIC, Units
-from roomcalc.present.numbers import NO_VALUE, floats, json_text, plural, wrap
+from roomcalc.present.numbers import NO_VALUE, csv_number, floats, json_text, plural, wrap
 from roomcalc.present.sections import (exposure_dict, exposure_text, target_dict,
                                        target_text)
 from roomcalc.present.tables import BandRows
@@ -248,10 +248,7 @@ def report_csv(ans: Answer, source_name: str = "", u: Units = METRIC) -> str:
 
 def _cell(v) -> str:
     """A CSV cell: 6 significant digits, empty where there is no finite value."""
-    if v == "" or v is None:
-        return ""
-    x = float(v)
-    return f"{x:.6g}" if x == x and abs(x) != float("inf") else ""
+    return csv_number(v)
 
 
 REPORTERS = {"text": report_text, "markdown": report_markdown, "json": report_json,

@@ -192,3 +192,24 @@ async def test_each_view_says_when_it_is_mounted():
         async with app.run_test(size=SIZE, message_hook=hook) as pilot:
             await pilot.pause()
             assert [m.view.id for m in got] == ["the-view"], view_type.__name__
+
+
+async def test_compare_view_of_an_unchanged_room_has_no_negative_zero_and_no_note(catalog):
+    """The workshop example compared with itself: every change cell reads 0.0 or 0.00 (never
+    "-0.0") and no "falls by" note is shown for a change below display resolution."""
+    import re
+
+    res = _result(catalog, "workshop.toml")
+    cmp = compare(res, _result(catalog, "workshop.toml"))
+    app = ViewApp(CompareView())
+    async with app.run_test(size=SIZE) as pilot:
+        view = app.query_one(CompareView)
+        view.show(cmp)
+        await pilot.pause()
+        rows = _rows(app.query_one("#compare-table", CellGrid))
+        cells = [c for r in rows for c in r[1:]]
+        assert cells and not any(re.fullmatch(r"-0(\.0+)?", c) for c in cells), cells
+        changes = [r for r in rows if "change" in r[0]]
+        assert changes and all(c in ("0.0", "0.00", "") for r in changes for c in r[1:]), changes
+        notes = str(app.query_one("#compare-notes").content)
+        assert "falls by" not in notes and "-0.0" not in notes
