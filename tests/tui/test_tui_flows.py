@@ -545,3 +545,54 @@ async def test_adding_63_hz_keeps_the_workshop_valid(room_file, catalog):
         await pilot.press("ctrl+z")
         await pilot.pause()
         assert screen.document.spec.bands[0] == 125 and not screen.stale
+
+
+async def test_help_scrolls_with_the_keys_and_shows_its_last_section(room_file, catalog):
+    """F1 at 80x24: the scrolling container has the focus; End reaches the bottom (the last
+    section's heading is drawn), Home goes back to the top, PageDown / Space / Down move down,
+    PageUp / Up move up, and the mouse wheel scrolls too."""
+    from textual import events
+    from textual.containers import VerticalScroll
+    from textual.widgets import Markdown
+
+    from roomcalc.tui.screens.help import HelpScreen
+
+    app = _app(room_file("workshop.toml"), catalog)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await _ready(pilot)
+        await pilot.press("f1")
+        await pilot.pause()
+        assert isinstance(app.screen, HelpScreen)
+        box = app.screen.query_one(VerticalScroll)
+        assert app.screen.focused is box
+        assert box.max_scroll_y > 0                     # longer than the screen
+        assert box.scroll_y == 0
+        await pilot.press("end")
+        await pilot.pause(0.3)
+        assert box.scroll_y == box.max_scroll_y
+        last = list(app.screen.query_one(Markdown).query("MarkdownH2"))[-1]
+        assert "Hearing and safety" in str(last.render())
+        top, bottom = box.scroll_y, box.scroll_y + box.scrollable_content_region.height
+        y = last.virtual_region.y - box.virtual_region.y
+        assert top <= y < bottom, (top, y, bottom)       # the last heading is in view
+        await pilot.press("home")
+        await pilot.pause(0.3)
+        assert box.scroll_y == 0
+        for key in ("pagedown", "space", "down"):
+            before = box.scroll_y
+            await pilot.press(key)
+            await pilot.pause(0.3)
+            assert box.scroll_y > before, key
+        for key in ("pageup", "up"):
+            before = box.scroll_y
+            await pilot.press(key)
+            await pilot.pause(0.3)
+            assert box.scroll_y < before, key
+        before = box.scroll_y
+        md = app.screen.query_one(Markdown)             # the wheel over the text
+        md.post_message(events.MouseScrollDown(md, 2, 2, 0, 1, 0, False, False, False))
+        await pilot.pause(0.3)
+        assert box.scroll_y > before                     # the mouse wheel
+        await pilot.press("escape")
+        await pilot.pause()
+        assert isinstance(app.screen, MainScreen)

@@ -261,3 +261,54 @@ def test_an_edit_survives_a_kill_and_not_now_keeps_it(tmp_path, monkeypatch):
         assert len(Document.open(found[0].path).spec.surfaces) > surfaces
     finally:
         subprocess.run(tmux + ["kill-server"], capture_output=True, timeout=10)
+
+
+@pytest.mark.skipif(TMUX is None, reason="tmux is not installed")
+def test_help_scrolls_to_its_last_section_at_80x24(tmp_path):
+    """In a real 80x24 terminal: F1 opens the help, whose text is longer than the screen; End
+    brings its last section's heading and closing line into view, Home its first lines back,
+    PageDown the section explaining the numbers; Escape closes it."""
+    room = tmp_path / "workshop.toml"
+    shutil.copyfile(EXAMPLES / "workshop.toml", room)
+    data = tmp_path / "data"
+    sock = f"roomcalc-test-{uuid.uuid4().hex[:12]}"
+    tmux = [TMUX, "-L", sock, "-f", os.devnull]
+    inner = (f"env -u COLUMNS -u LINES ROOMCALC_DATA_DIR={shlex.quote(str(data))} "
+             f"{' '.join(shlex.quote(c) for c in _command())} open {shlex.quote(str(room))}")
+
+    def capture() -> str:
+        return subprocess.run(tmux + ["capture-pane", "-p", "-t", "rc"], capture_output=True,
+                              text=True, timeout=10).stdout
+
+    def keys(*k):
+        subprocess.run(tmux + ["send-keys", "-t", "rc", *k], check=True, timeout=10)
+
+    subprocess.run(tmux + ["new-session", "-d", "-s", "rc", "-x", "80", "-y", "24",
+                           "sh", "-c", inner, ";", "set-option", "-t", "rc",
+                           "remain-on-exit", "on"], check=True, timeout=10, cwd=tmp_path,
+                   stdin=subprocess.DEVNULL)
+    try:
+        screen = _wait(capture, lambda s: "Reverberation" in s or "Sabine" in s)
+        assert "Reverberation" in screen or "Sabine" in screen, screen
+        keys("F1")
+        screen = _wait(capture, lambda s: "keys and numbers" in s)
+        assert "keys and numbers" in screen, screen
+        assert "Hearing and safety" not in screen         # below the fold at first
+        keys("End")
+        screen = _wait(capture, lambda s: "Hearing and safety" in s)
+        assert "Hearing and safety" in screen and "Press Escape to close" in screen, screen
+        assert "keys and numbers" not in screen
+        keys("Home")
+        screen = _wait(capture, lambda s: "keys and numbers" in s)
+        assert "keys and numbers" in screen and "Hearing and safety" not in screen, screen
+        for _ in range(4):
+            keys("PageDown")
+            screen = _wait(capture, lambda s: "The numbers" in s, 2)
+            if "The numbers" in screen:
+                break
+        assert "The numbers" in screen, screen
+        keys("Escape")
+        screen = _wait(capture, lambda s: "keys and numbers" not in s)
+        assert "keys and numbers" not in screen and "Traceback" not in screen, screen
+    finally:
+        subprocess.run(tmux + ["kill-server"], capture_output=True, timeout=10)

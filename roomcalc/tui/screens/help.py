@@ -4,12 +4,14 @@ from __future__ import annotations
 
 from textual.app import ComposeResult
 from textual.binding import Binding
-from textual.containers import Vertical
+from textual.containers import VerticalScroll
 from textual.screen import ModalScreen
 from textual.widgets import Markdown
 
 HELP = """\
 # roomcalc: keys and numbers
+Up / Down, PageUp / PageDown (or Space), Home / End and the mouse wheel scroll this text;
+Escape closes it.
 
 ## Keys
 | Key | What it does |
@@ -64,6 +66,7 @@ kept from before").
 - **(stale)**: the room has a problem (shown in the strip at the bottom); the results are the
   last valid ones until it is fixed.
 
+## Hearing and safety
 Levels of 80 dB(A) or more bring a hearing caution. These are estimates: a measurement by a
 competent person and the local regulations govern.
 
@@ -74,13 +77,27 @@ Press Escape to close.
 class HelpScreen(ModalScreen[None]):
     DEFAULT_CSS = """
     HelpScreen { align: center middle; }
-    HelpScreen > Vertical { width: 96%; height: 94%; border: thick $primary; background: $surface; }
+    HelpScreen > VerticalScroll { width: 96%; height: 94%; border: thick $primary;
+                                  background: $surface; }
     """
-    BINDINGS = [Binding("escape,f1,q", "close", "Close", id="help.close")]
+    BINDINGS = [Binding("escape,f1,q", "close", "Close", id="help.close"),
+                Binding("space", "page_down", "Page down", show=False, id="help.page_down"),
+                Binding("shift+space", "page_up", "Page up", show=False, id="help.page_up")]
 
     def compose(self) -> ComposeResult:
-        with Vertical():
+        # A focused scrolling container: Up/Down, PageUp/PageDown, Home/End and the mouse wheel
+        # move through the text (it is longer than most terminals are tall).
+        with VerticalScroll(id="help-scroll", can_focus=True):
             yield Markdown(HELP)
+
+    def on_mount(self) -> None:
+        self.query_one("#help-scroll", VerticalScroll).focus()
+
+    def action_page_down(self) -> None:
+        self.query_one("#help-scroll", VerticalScroll).scroll_page_down()
+
+    def action_page_up(self) -> None:
+        self.query_one("#help-scroll", VerticalScroll).scroll_page_up()
 
     def action_close(self) -> None:
         self.dismiss(None)
