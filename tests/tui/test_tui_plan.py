@@ -147,3 +147,65 @@ async def test_plan_view_plans_applies_and_undoes(tmp_path, catalog):
         await pilot.pause()
         assert doc.spec.target.rt60_max == 1.0 and doc.spec.target.criterion is None
         assert [s.label for s in doc.undo_stack] == ["target: own RT60 limit"]
+
+
+async def test_the_applied_line_goes_when_the_room_changes_or_is_saved(tmp_path, catalog):
+    """"The plan is applied ... (Ctrl+Z takes it back)" describes the room just after Apply:
+    Ctrl+Z, Ctrl+Y, an edit and a save each replace it."""
+    from roomcalc.tui.screens.plan_routes import AFTER_APPLIED, APPLIED
+
+    path = tmp_path / "plan-room.toml"
+    path.write_text(ROOM, encoding="utf-8")
+    app = make_app(Document.open(path), catalog, AppConfig(offer_recovery=False,
+                                                           recovery_delay_s=3600))
+    async with app.run_test(size=SIZE) as pilot:
+        await _ready(pilot)
+        screen = app.screen
+        doc = screen.document
+        await pilot.press("f9")
+        for _ in range(20):
+            await pilot.pause()
+            if screen.query("#plan-view"):
+                break
+
+        def line() -> str:
+            return str(screen.query_one("#plan-result").content)
+
+        async def plan_and_apply():
+            screen.query_one("#plan-candidates", CellGrid).focus()
+            await pilot.press("r")
+            await _planned(pilot)
+            await pilot.click("#plan-apply")
+            await pilot.pause()
+            assert line() == APPLIED
+
+        async def changed_by(*keys):
+            await plan_and_apply()
+            screen.query_one("#plan-candidates", CellGrid).focus()
+            await pilot.press(*keys)
+            await pilot.pause()
+            assert line() == AFTER_APPLIED, keys
+            assert "Ctrl+Z" not in line()
+
+        await changed_by("ctrl+z")                # undo
+        await pilot.press("ctrl+y")               # redo: the plan is in again ...
+        await pilot.pause()
+        assert line() == AFTER_APPLIED            # ... but the line does not come back
+        await pilot.press("ctrl+z")
+        await pilot.pause()
+        await changed_by("ctrl+s")                # save
+        assert not doc.modified
+        await pilot.press("ctrl+z")               # the candidates are back to plan with
+        await pilot.pause()
+        # An edit: the room's title, changed as the form would.
+        await plan_and_apply()
+        screen.apply(lambda s: setattr(s, "title", "Renamed"), "title")
+        await pilot.pause()
+        assert line() == AFTER_APPLIED
+        # Redo after undo of an apply: also replaces it.
+        await pilot.press("ctrl+z", "ctrl+z")     # the title, the plan
+        await pilot.pause()
+        await plan_and_apply()
+        await pilot.press("ctrl+z", "ctrl+y")
+        await pilot.pause()
+        assert line() == AFTER_APPLIED

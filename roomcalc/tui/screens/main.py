@@ -106,6 +106,7 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
         self._plan_run = None                  # the plan last made (roomcalc.study.PlanRun)
         self._plan_version = -1                # the room version it was made for
         self._plan_job = None                  # the plan being made (plan_routes.PlanJob)
+        self._plan_applied_at = None           # the room state the "plan applied" line is for
         self.room_version = 0                  # counted up by every recompute
 
     # ------------------------------------------------------------------ layout
@@ -196,6 +197,9 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
         self.show_title()
 
     def show_title(self) -> None:
+        """The title line (file name, "(modified)"); called after every change and save, so
+        the Plan tab's status line is checked against the room here too."""
+        self.forget_stale_plan_status()
         doc = self.document
         title = f"roomcalc - {doc.spec.title or 'untitled room'}"
         sub = f"{doc.path if doc.path else doc.name}" + ("  (modified)" if doc.modified else "")

@@ -33,6 +33,10 @@ from roomcalc.tui.widgets.room_form import RECOMMENDED
 PROGRESS_EVERY_S = 0.2
 #: How often the waiting worker looks whether it was cancelled [s].
 POLL_S = 0.02
+#: The Plan tab's line just after a plan was applied, and the one that replaces it when the room
+#: changes or is saved.
+APPLIED = "The plan is applied to the room (Ctrl+Z takes it back); press r to check it."
+AFTER_APPLIED = "Press r to make a plan for the room as it is now."
 #: The name of the thread a plan is made in (the command line looks for it when the
 #: interface has closed: see roomcalc.cli).
 PLAN_THREAD_NAME = "roomcalc-plan"
@@ -109,6 +113,7 @@ class PlanRoutes:
         view = self._opt("#plan-view", PlanView)
         if view is None:
             return
+        self.forget_stale_plan_status()
         u = self.document.spec.unit_system
         view.show_setup(self.document.spec, self.criteria, u, u.area_label)
         check_text = ""
@@ -267,8 +272,26 @@ class PlanRoutes:
                 setattr(spec, f.name, getattr(treated, f.name))
         self._plan_run = None
         self.apply(fn, "apply the treatment plan")
-        self.query_one("#plan-view", PlanView).show_message(
-            "The plan is applied to the room (Ctrl+Z takes it back); press r to check it.")
+        self.query_one("#plan-view", PlanView).show_message(APPLIED)
+        # The line describes the room just after the plan went in: it goes as soon as the room
+        # changes (undo, redo, any edit) or is saved.
+        self._plan_applied_at = self._plan_state()
         self._say("Plan applied to the room; Ctrl+Z takes it back.")
+
+    def _plan_state(self) -> tuple:
+        """What a status line of the Plan tab describes: the room version and whether it has
+        unsaved changes."""
+        return self.room_version, self.document.modified
+
+    def forget_stale_plan_status(self) -> None:
+        """Replace the "plan is applied" line once the room has changed or been saved since
+        (called after every edit, undo, redo and save)."""
+        at = self._plan_applied_at
+        if at is None or at == self._plan_state():
+            return
+        self._plan_applied_at = None
+        view = self._opt("#plan-view", PlanView)
+        if view is not None and view.showing(APPLIED):
+            view.show_message(AFTER_APPLIED)
 
 

@@ -231,6 +231,10 @@ class PlanView(VerticalScroll):
         self.query_one("#plan-reasons", Static).update("")
         self.query_one("#plan-apply", Button).disabled = True
 
+    def showing(self, text: str) -> bool:
+        """The result line says ``text`` now."""
+        return str(self.query_one("#plan-result", Static).content) == text
+
     def show_running(self, text: str) -> None:
         """A plan is being made: what it is doing now (the Stop button is shown)."""
         stop = self.query_one("#plan-stop", Button)
