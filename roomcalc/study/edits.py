@@ -30,6 +30,7 @@ from roomcalc.io.limits import RANGES
 from roomcalc.io.planning import convert_candidate_units
 from roomcalc.io.roomfile import RoomSpec, TargetSpec
 from roomcalc.io.units import UNITS
+from roomcalc.study.typed import parse_numbers
 
 __all__ = ["COLLECTIONS", "set_item_fields", "rename_item", "change_bands", "convert_units",
            "nearest_band_fill", "set_method", "set_criterion", "set_objective",
@@ -129,12 +130,13 @@ def set_criterion(spec: RoomSpec, criterion: str | None) -> str:
 
 
 def parse_rt60_limit(text: str, n_bands: int):
-    """The room's own RT60 limit as typed: one number (every band) or one per band [s].
-    Raises ValueError saying what is allowed."""
+    """The room's own RT60 limit as typed: one number (every band) or one per band [s],
+    separated by spaces or semicolons (see :func:`roomcalc.study.typed.parse_numbers`; "0,6"
+    is 0.6). Raises ValueError saying what is allowed."""
     try:
-        vals = [float(x) for x in text.replace(",", " ").split()]
+        vals = parse_numbers(text)
     except ValueError:
-        raise ValueError("only numbers, in seconds, separated by spaces") from None
+        raise ValueError("only numbers, in seconds, separated by spaces or semicolons") from None
     if len(vals) not in (1, n_bands):
         raise ValueError(f"{len(vals)} values: give one (every band) or {n_bands}, one per "
                          "band")

@@ -596,3 +596,47 @@ async def test_help_scrolls_with_the_keys_and_shows_its_last_section(room_file, 
         await pilot.press("escape")
         await pilot.pause()
         assert isinstance(app.screen, MainScreen)
+
+
+async def test_decimal_commas_are_taken_where_numbers_are_typed(room_file, catalog, engine,
+                                                                 screen_tables, pilot_keys):
+    """A decimal comma ("2,5" is 2.5) in the cell editor, the room form and the own RT60 limit ("0,6 0,5 ..."
+    per band); the screen then shows the engine's numbers for the room with that value."""
+    from roomcalc.tui.widgets.plan_view import PlanView
+
+    app = _app(room_file("classroom.toml"), catalog)
+    async with app.run_test(size=SIZE) as pilot:
+        await _ready(pilot)
+        screen, doc = app.screen, app.screen.document
+        windows = _index(doc, "Windows")
+        await pilot_keys.edit_cell(pilot, _surfaces(app), windows, AREA_COL, "2,5")
+        assert doc.spec.surfaces[windows].area == 2.5
+        assert not screen.stale, screen.problems
+        _assert_reverb_matches(screen_tables.reverb(app), engine.result(doc.spec), engine)
+
+        # The room form: the length typed with a decimal comma.
+        screen.action_edit_tab("room")
+        await pilot.pause()
+        length = screen.query_one("#f-shape-length")
+        length.focus()
+        await pilot.press("end", "ctrl+u", *"9,5")
+        await pilot.pause()
+        assert doc.spec.shape.length == 9.5
+        assert str(screen.query_one("#form-error").render()) == ""
+        assert not screen.stale
+
+        # The own RT60 limit: one per band, decimal commas, spaces between.
+        await pilot.press("f9")
+        for _ in range(20):
+            await pilot.pause()
+            if screen.query("#plan-view"):
+                break
+        n = len(doc.spec.bands)
+        own = screen.query_one("#plan-own")
+        own.focus()
+        own.value = " ".join(["0,6"] * (n - 1) + ["0,5"])
+        await pilot.press("enter")
+        await pilot.pause()
+        assert doc.spec.target.rt60_max == [0.6] * (n - 1) + [0.5]
+        assert str(screen.query_one("#plan-own-error").render()) == ""
+        assert isinstance(screen.query_one("#plan-view"), PlanView)

@@ -105,13 +105,14 @@ async def test_record_table_sends_parsed_values():
         assert _edits(got) == [("surfaces", 1, "area", None), ("surfaces", 1, "count", 4)]
         assert type(_edits(got)[1][3]) is int
 
-        # A list per band: the wrong count is refused, commas or spaces both work.
+        # A list per band: the wrong count is refused; spaces, semicolons or a comma and a
+        # space separate (a comma between two digits is a decimal comma).
         got.clear()
         await _edit(pilot, rt, 0, ALPHA, "1 2")
         assert _edits(got) == []
         assert f"2 values given; {len(BANDS)} are needed" in \
             str(rt.query_one("#editor-error").render())
-        await pilot.press(*",3 4,5 6", "enter")          # appended to "1 2"
+        await pilot.press(*", 3; 4, 5 6", "enter")       # appended to "1 2"
         await pilot.pause()
         assert _edits(got) == [("surfaces", 0, "alpha", [1.0, 2.0, 3.0, 4.0, 5.0, 6.0])]
 

@@ -37,6 +37,10 @@ Escape closes it.
 | F1 or ? | this help |
 | Ctrl+Q | quit (asks first when there are unsaved changes) |
 
+Numbers may be typed with a decimal point or a decimal comma (9.5 or 9,5). The numbers of a
+list are separated by spaces or semicolons (0,6 0,5 or 0,6; 0,5), or by a comma and a space
+(0.6, 0.5).
+
 Unsaved changes are written to a recovery file a moment after each edit. After a crash,
 opening the room again offers them; "Not now" keeps them for later (Ctrl+P, "Restore changes
 kept from before").

@@ -9,6 +9,7 @@ from textual.screen import ModalScreen
 from textual.widgets import Button, Input, Select, Static
 
 from roomcalc.io.catalog import Catalog, Material
+from roomcalc.study.typed import parse_numbers
 from roomcalc.tui.widgets.grid import CellGrid
 
 
@@ -157,9 +158,9 @@ class MaterialChooser(ModalScreen[tuple | None]):
         text = self.query_one("#own", Input).value
         err = self.query_one("#own-error", Static)
         try:
-            vals = [float(x) for x in text.replace(",", " ").split()]
+            vals = parse_numbers(text)
         except ValueError:
-            err.update("Only numbers, separated by spaces.")
+            err.update("Only numbers, separated by spaces or semicolons.")
             return
         if len(vals) != len(self.bands):
             err.update(f"{len(vals)} values given; {len(self.bands)} are needed, one per band.")

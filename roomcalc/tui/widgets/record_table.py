@@ -16,6 +16,7 @@ from textual.containers import Vertical
 from textual.validation import ValidationResult, Validator
 from textual.widgets import Input, Static
 
+from roomcalc.study.typed import parse_number, parse_numbers, split_entries
 from roomcalc.tui.messages import FieldEdited, MaterialWanted, RowAction
 from roomcalc.tui.widgets.grid import CellGrid
 
@@ -62,10 +63,7 @@ def parse_value(text: str, col: Column):
     if col.kind == "text":
         return t
     if col.kind == "number":
-        try:
-            return float(t)
-        except ValueError:
-            raise ValueError(f"'{t}' is not a number") from None
+        return parse_number(t)             # "9,5" or "9.5"
     if col.kind == "int":
         try:
             return int(t)
@@ -76,36 +74,22 @@ def parse_value(text: str, col: Column):
             raise ValueError(f"'{t}' is not one of: {', '.join(col.choices)}")
         return t
     if col.kind in ("numbers", "position"):
-        parts = t.replace(",", " ").split()
-        try:
-            vals = [float(p) for p in parts]
-        except ValueError:
-            bad = next(p for p in parts if not _is_float(p))
-            raise ValueError(f"'{bad}' is not a number") from None
+        vals = parse_numbers(t)            # spaces, semicolons or ", " between; decimal commas
         n = 3 if col.kind == "position" else col.length
         if n is not None and len(vals) != n:
             raise ValueError(f"{len(vals)} values given; {n} are needed")
         return vals
     if col.kind == "distances":
         out = {}
-        for part in t.split(","):
+        for part in split_entries(t):
+            if not part.strip():
+                continue
             if "=" not in part:
                 raise ValueError(f"'{part.strip()}': write source=distance, e.g. Amp=3.2")
             k, _, x = part.partition("=")
-            try:
-                out[k.strip()] = float(x)
-            except ValueError:
-                raise ValueError(f"'{x.strip()}' is not a number") from None
+            out[k.strip()] = parse_number(x)
         return out
     return t
-
-
-def _is_float(p: str) -> bool:
-    try:
-        float(p)
-        return True
-    except ValueError:
-        return False
 
 
 class _ParseValidator(Validator):

@@ -9,6 +9,7 @@ from textual.widgets import Checkbox, Input, Label, Select, Static
 
 from roomcalc.engine.analysis import METHOD_TITLES, METHODS
 from roomcalc.io.roomfile import RoomSpec
+from roomcalc.study.typed import parse_number
 from roomcalc.tui.messages import FieldEdited
 
 #: The formula choice "none": the one roomcalc recommends for the room.
@@ -31,9 +32,9 @@ class _Number(Validator):
         if not value.strip():
             return self.success()
         try:
-            float(value)
-        except ValueError:
-            return self.failure(f"'{value}' is not a number")
+            parse_number(value)            # "9,5" or "9.5"
+        except ValueError as exc:
+            return self.failure(str(exc))
         return self.success()
 
 
@@ -120,7 +121,7 @@ class RoomForm(VerticalScroll):
             self.post_message(FieldEdited("room", None, key, _Unparsed(event.value)))
             return
         err.update("")
-        value = float(event.value) if event.value.strip() else None
+        value = parse_number(event.value) if event.value.strip() else None
         self.post_message(FieldEdited("room", None, key, value))
 
     def on_select_changed(self, event: Select.Changed) -> None:
@@ -153,7 +154,7 @@ class _Unparsed(str):
 
 def _same(text: str, v) -> bool:
     try:
-        return v is not None and float(text) == v
+        return v is not None and parse_number(text) == v
     except ValueError:
         return False
 
