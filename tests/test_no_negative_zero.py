@@ -57,3 +57,11 @@ def test_value_or_note_and_csv_cells_never_write_a_negative_zero():
     assert value_or_note(-0.01, 1, "dB") == "0.0 dB"
     assert csv_number(-0.0) == "0" and csv_number(-1.5) == "-1.5"
     assert csv_number(float("inf")) == "" and csv_number(None) == ""
+
+
+@pytest.mark.parametrize("x, nd, text", [
+    (0.26, 1, "+0.3"), (-0.01, 1, "0.0"), (0.04, 1, "0.0"), (-2.0, 1, "-2.0"), (0.0, 2, "0.00"),
+    (-0.004, 2, "0.00"), (1.5, 0, "+2")])
+def test_signed_changes_and_margins_write_zero_unsigned(x, nd, text):
+    """A change or a margin is written with its sign ("+0.3", "-2.0"), zero without one."""
+    assert fmt(x, nd, signed=True) == text

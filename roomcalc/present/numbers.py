@@ -14,20 +14,23 @@ __all__ = ["WIDTH", "NO_VALUE", "fmt", "fit", "value_or_note", "band_label", "wr
 WIDTH = 80
 
 
-def fmt(x, nd: int = 2) -> str:
+def fmt(x, nd: int = 2, signed: bool = False) -> str:
     """``x`` with ``nd`` decimals; "-" for None, NaN or infinity (a value the formula has
-    none for). A value that rounds to zero is written unsigned ("0.0", never "-0.0").
+    none for). A value that rounds to zero is written unsigned ("0.0", never "-0.0" or
+    "+0.0"); ``signed``: a "+" before a positive value (a change or a margin).
 
     >>> fmt(-0.004), fmt(-0.04, 1), fmt(-0.0, 0), fmt(-0.06, 1)
     ('0.00', '0.0', '0', '-0.1')
+    >>> fmt(0.26, 1, signed=True), fmt(-0.01, 1, signed=True), fmt(-2.0, 1, signed=True)
+    ('+0.3', '0.0', '-2.0')
     """
     if x is None:
         return "-"
     x = float(x)
     if not math.isfinite(x):
         return "-"
-    text = f"{x:.{nd}f}"
-    if text.startswith("-") and not text.strip("-0."):
+    text = f"{x:{'+' if signed else ''}.{nd}f}"
+    if text[0] in "+-" and not text.strip("+-0."):
         return text[1:]
     return text
 

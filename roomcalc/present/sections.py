@@ -66,7 +66,7 @@ def target_text(check: TargetCheck, width=None, described=None) -> str:
         lines.append(wrap(a.governs, "  ", "  ", width=width))
     for lc in check.levels:
         lines.append(f"  {lc.receiver}: {lc.level_dba:.1f} dB(A) against at most "
-                     f"{lc.max_dba:.1f} dB(A), margin {lc.margin_db:+.1f} dB: "
+                     f"{lc.max_dba:.1f} dB(A), margin {fmt(lc.margin_db, 1, signed=True)} dB: "
                      f"{'pass' if lc.passed else 'fail'}")
     return "\n".join(lines) + "\n"
 
@@ -96,7 +96,7 @@ def _assessment_lines(check: TargetCheck, described, width) -> list[str]:
     if mean:
         lines.append(f"  mean of the assessed bands {a.mean_s:.2f} s against "
                      f"{window_text(a.mean_min_s, a.mean_max_s)}, margin "
-                     f"{a.mean_margin_s:+.2f} s: {a.mean_status}")
+                     f"{fmt(a.mean_margin_s, 2, signed=True)} s: {a.mean_status}")
     if show_described:
         lines.append(wrap(f"(estimate: {check.occupancy.label}; as given: the room as its "
                           "file gives it; the verdict is for the estimate)", "  ", "   ",
@@ -153,7 +153,7 @@ def exposure_text(days: dict[str, ExposureSummary], after: dict | None = None,
         if after and name in after:
             ch = compare_exposure(d, after[name])
             lines.append(f"    after the plan: LEX,8h {after[name].lex_8h_dba:.1f} dB(A) "
-                         f"({ch.lex_8h_change_db:+.1f} dB), OSHA dose "
+                         f"({fmt(ch.lex_8h_change_db, 1, signed=True)} dB), OSHA dose "
                          f"{after[name].osha_dose_percent:.0f} %")
     lines.append(wrap(EXPOSURE_CAUTION, "  ! ", "    ", width=width))
     return "\n".join(lines) + "\n"
@@ -252,7 +252,8 @@ def plan_text(run: PlanRun, u: Units = METRIC, width=None) -> str:
     if lo is not None:
         lines.append("  " + f"{'at least':16}" + "".join(f"{fmt(x):>7}" for x in lo))
     for name, before, after in plan_levels(run):
-        lines.append(f"  {name}: {before:.1f} -> {after:.1f} dB(A) ({after - before:+.1f} dB)")
+        change = fmt(after - before, 1, signed=True)
+        lines.append(f"  {name}: {before:.1f} -> {after:.1f} dB(A) ({change} dB)")
     for r in p.reasons:
         lines.append(wrap(r, "  ! ", "    ", width=width))
     return "\n".join(lines) + "\n"

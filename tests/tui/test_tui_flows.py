@@ -600,8 +600,9 @@ async def test_help_scrolls_with_the_keys_and_shows_its_last_section(room_file, 
 
 async def test_decimal_commas_are_taken_where_numbers_are_typed(room_file, catalog, engine,
                                                                  screen_tables, pilot_keys):
-    """A decimal comma ("2,5" is 2.5) in the cell editor, the room form and the own RT60 limit ("0,6 0,5 ..."
-    per band); the screen then shows the engine's numbers for the room with that value."""
+    """A decimal comma ("2,5" is 2.5) in the cell editor, the room form and the own RT60
+    limit ("0,6 0,5 ..." per band); the screen then shows the engine's numbers for the room
+    with that value."""
     from roomcalc.tui.widgets.plan_view import PlanView
 
     app = _app(room_file("classroom.toml"), catalog)
