@@ -1,0 +1,133 @@
+"""Opening what is not a room file from the interface (Ctrl+O = RoomApp.open_path, and the
+recovery restore) names the file and what is wrong, as `roomcalc check` does; saving a room with
+problems saves it and says what is wrong (Pilot)."""
+
+from __future__ import annotations
+
+import os
+import tempfile
+from pathlib import Path
+
+import pytest
+
+from roomcalc.io.roomfile import read_spec
+from roomcalc.tui.app import AppConfig, make_app
+from roomcalc.tui.document import Document
+from roomcalc.tui.screens.main import MainScreen
+
+SIZE = (120, 40)
+
+
+@pytest.fixture(autouse=True)
+def _private(tmp_path, monkeypatch):
+    folder = tmp_path / "systemp"
+    folder.mkdir()
+    monkeypatch.setattr(tempfile, "tempdir", str(folder))
+    monkeypatch.setenv("ROOMCALC_DATA_DIR", str(tmp_path / "data"))
+
+
+def _app(path, catalog, **config):
+    config.setdefault("offer_recovery", False)
+    config.setdefault("theme", "textual-dark")
+    return make_app(Document.open(path), catalog, AppConfig(**config))
+
+
+def _notes(app) -> list[tuple[str, str]]:
+    seen = []
+    original = app.notify
+
+    def notify(message, *args, **kw):
+        seen.append((str(message), kw.get("severity", "information")))
+        return original(message, *args, **kw)
+    app.notify = notify
+    return seen
+
+
+async def _ready(pilot):
+    app = pilot.app
+    for _ in range(100):
+        await pilot.pause()
+        s = app.screen
+        if isinstance(s, MainScreen) and s.result is not None:
+            return
+    raise AssertionError("the screen never got there")
+
+
+async def test_open_a_folder_or_binary_file_names_it(room_file, catalog, tmp_path):
+    path = room_file("classroom.toml")
+    binary = tmp_path / "shop.toml"
+    binary.write_bytes(b"\xff\xfe\x00")
+    app = _app(path, catalog)
+    notes = _notes(app)
+    async with app.run_test(size=SIZE) as pilot:
+        await _ready(pilot)
+        app.open_path(str(tmp_path))
+        await pilot.pause()
+        assert notes[-1] == (f"Cannot open it:\n{tmp_path}: cannot read it: it is a folder",
+                             "error")
+        app.open_path(str(binary))
+        await pilot.pause()
+        assert notes[-1] == (f"Cannot open it:\n{binary}: cannot read it: not UTF-8 text "
+                             "(byte 0xff at position 0)", "error")
+        assert app.screen.document.path == path          # the room open stays open
+
+
+async def test_open_permission_denied_names_it(room_file, catalog, monkeypatch):
+    path = room_file("classroom.toml")
+    other = room_file("workshop.toml")
+    real = Path.read_bytes
+
+    def read_bytes(self):
+        if self == other:
+            raise PermissionError(13, "Permission denied", str(self))
+        return real(self)
+    app = _app(path, catalog)
+    notes = _notes(app)
+    async with app.run_test(size=SIZE) as pilot:
+        await _ready(pilot)
+        monkeypatch.setattr(Path, "read_bytes", read_bytes)
+        app.open_path(str(other))
+        await pilot.pause()
+        assert notes[-1] == (f"Cannot open it:\n{other}: cannot read it: permission denied",
+                             "error")
+
+
+async def test_restoring_an_unreadable_recovery_file_names_it(room_file, catalog, tmp_path):
+    path = room_file("classroom.toml")
+    rec = tmp_path / "kept.toml"
+    rec.write_bytes(b'title = "a"\n\xc3(\n')
+    app = _app(path, catalog)
+    notes = _notes(app)
+    async with app.run_test(size=SIZE) as pilot:
+        await _ready(pilot)
+        app._restore(app.screen.document, rec)
+        await pilot.pause()
+        text, severity = notes[-1]
+        assert severity == "error"
+        assert f"{rec}: cannot read it: not UTF-8 text (byte 0xc3 at position 12)" in text
+        assert rec.exists()
+
+
+async def test_saving_a_room_with_problems_saves_it_and_says_what_is_wrong(room_file, catalog):
+    path = room_file("classroom.toml")
+    app = _app(path, catalog)
+    notes = _notes(app)
+    async with app.run_test(size=SIZE) as pilot:
+        await _ready(pilot)
+        doc = app.screen.document
+        doc.change(lambda s: setattr(s.air, "relative_humidity", 150.0), "humidity")
+        assert app._write(doc, path)
+        await pilot.pause()
+        text, severity = notes[-1]
+        assert severity == "warning"
+        assert text.startswith(f"Saved {path}, but the room has 1 problem:\n"
+                               "air.relative_humidity: 150")
+        assert "0 to 100 %" in text        # the file's range (roomcalc.io.limits)
+        # Saved all the same: the file holds the user's value.
+        assert "relative_humidity = 150" in path.read_text(encoding="utf-8")
+        # A valid room saves with the plain notice.
+        doc.change(lambda s: setattr(s.air, "relative_humidity", 50.0), "humidity")
+        assert app._write(doc, path)
+        await pilot.pause()
+        assert notes[-1] == (f"Saved {path}", "information")
+        assert read_spec(path).air.relative_humidity == 50.0
