@@ -121,3 +121,33 @@ def test_cli_open_folder_exits_2_before_the_interface(tmp_path, capsys, monkeypa
     monkeypatch.setattr(sys.stdout, "isatty", lambda: True, raising=False)
     assert main(["open", str(tmp_path)]) == 2
     assert f"{tmp_path}: {FOLDER}" in capsys.readouterr().err
+
+
+# ----------------------------------------------------------------- a box size outside a file
+@pytest.mark.parametrize("size, units, want", [
+    ((5000, 4, 2.7), "metric", [("shape.length", "5000 is outside 0.1 to 1000 m")]),
+    ((-9, 4, 2.7), "metric", [("shape.length", "-9 is outside 0.1 to 1000 m")]),
+    ((6, 1410, 2.7), "metric", [("shape.width", "1410 is outside 0.1 to 1000 m")]),
+    ((6, 4, 2.7), "metric", []),
+    # 1000 m = 3280.84 ft (1 ft = 0.3048 m exactly, by the international yard of 1959).
+    ((3000, 12, 9), "imperial", []),
+    ((3300, 12, 9), "imperial", [("shape.length", "3300 is outside 0.328084 to 3280.84 ft")]),
+    ((0.5, 0.5, 0.5), "metric",
+     [("shape", "the box's volume, 0.125 m^3 (length x width x height), is outside 1 to "
+       "1e+06 m^3")]),
+])
+def test_box_size_is_checked_as_the_file_shape_is(size, units, want):
+    from roomcalc.io.roomfile import box_size_problems, parse_spec
+
+    got = [(p.where, p.message) for p in box_size_problems(*size, units)]
+    assert got == want
+    # The same size written in a file gives the same problems.
+    L, W, H = size
+    text = (f'units = "{units}"\n[shape]\nlength = {L}\nwidth = {W}\nheight = {H}\n'
+            '[[surfaces]]\nname = "All"\nface = "floor"\nmaterial = "x"\n')
+    try:
+        parse_spec(text, "f.toml")
+        from_file = []
+    except RoomFileError as exc:
+        from_file = [(p.where, p.message) for p in exc.problems if p.where.startswith("shape")]
+    assert from_file == want

@@ -131,3 +131,71 @@ async def test_saving_a_room_with_problems_saves_it_and_says_what_is_wrong(room_
         await pilot.pause()
         assert notes[-1] == (f"Saved {path}", "information")
         assert read_spec(path).air.relative_humidity == 50.0
+
+
+async def _type(pilot, field: str, text: str) -> None:
+    """Empty ``field`` and type ``text`` into it key by key, as a user would."""
+    from textual.widgets import Input
+
+    inp = pilot.app.screen.query_one(f"#{field}", Input)
+    inp.focus()
+    inp.value = ""
+    await pilot.pause()
+    for ch in text:
+        await pilot.press({"-": "minus", ".": "full_stop"}.get(ch, ch))
+    await pilot.pause()
+
+
+def _message(app, field: str) -> str:
+    from textual.widgets import Static
+
+    return str(app.screen.query_one(f"#{field}-error", Static).content)
+
+
+async def test_new_room_sizes_are_checked_with_the_file_ranges(room_file, catalog):
+    """The room file's ranges (roomcalc.io.limits: a box side 0.1 to 1000 m, volume 1 to
+    1e6 m^3) and messages, under the field; the dialog stays until the size is good."""
+    from textual.widgets import Input, Select
+
+    from roomcalc.tui.screens.dialogs import AskBox
+
+    path = room_file("classroom.toml")
+    app = _app(path, catalog)
+    async with app.run_test(size=SIZE) as pilot:
+        await _ready(pilot)
+        before = app.screen.document
+        await pilot.press("ctrl+n")
+        await pilot.pause()
+        assert isinstance(app.screen, AskBox)
+        for typed, want in (("-9", "-9 is outside 0.1 to 1000 m"),
+                            ("5000", "5000 is outside 0.1 to 1000 m"),
+                            ("1410", "1410 is outside 0.1 to 1000 m"),
+                            ("abc", "'abc' is not a number")):
+            await _type(pilot, "length", typed)
+            assert app.screen.query_one("#length", Input).value == typed   # "-" is kept
+            await pilot.press("enter")
+            await pilot.pause()
+            assert isinstance(app.screen, AskBox), typed       # not closed
+            assert _message(app, "length") == want
+            assert _message(app, "width") == ""
+        # The box's volume: 0.5 x 0.5 x 0.5 m = 0.125 m^3 is below 1 m^3.
+        for field in ("length", "width", "height"):
+            await _type(pilot, field, "0.5")
+        await pilot.press("enter")
+        await pilot.pause()
+        assert isinstance(app.screen, AskBox)
+        assert "the box's volume, 0.125 m^3" in str(app.screen.query_one("#error").content)
+        # Imperial: the sides are in ft (1000 m = 3280.84 ft), so 3000 is a good side.
+        app.screen.query_one("#units", Select).value = "imperial"
+        await _type(pilot, "length", "3000")
+        await _type(pilot, "width", "12")
+        await _type(pilot, "height", "9")
+        await pilot.press("enter")
+        for _ in range(20):
+            await pilot.pause()
+            if isinstance(app.screen, MainScreen) and app.screen.document is not before:
+                break
+        doc = app.screen.document
+        assert doc is not before
+        assert (doc.spec.units, doc.spec.shape.length, doc.spec.shape.width,
+                doc.spec.shape.height) == ("imperial", 3000.0, 12.0, 9.0)

@@ -280,6 +280,24 @@ def _position(chk: Checker, table: dict, where: str, u: Units):
                        **limit("position", u, unit=f"x, y, z in {u.length_label}"))
 
 
+def box_size_problems(length, width, height, units: str = "metric",
+                      filename: str = "<new room>") -> list[Problem]:
+    """A box size given outside a file (the interface's new-room dialog), checked as the
+    file's ``[shape]`` is: each side a number in the range of ``length`` (0.1 to 1000 m; in ft
+    for imperial), then the box's volume in the range of ``volume``. The problems name the
+    field (``shape.length``, ..., ``shape`` for the volume) with the file's messages; none
+    when the size is good."""
+    u = UNITS[units]
+    chk = Checker(filename)
+    spec = RoomSpec(units=units)
+    shape = {"length": length, "width": width, "height": height}
+    for k in ("length", "width", "height"):
+        setattr(spec.shape, k, chk.number(shape, k, "shape", **limit("length", u)))
+    if not chk.problems:
+        _box_volume(chk, spec, u)
+    return chk.problems
+
+
 def _box_volume(chk: Checker, spec: RoomSpec, u: Units) -> None:
     """A box's volume (length x width x height) lies in the range of volume."""
     v = spec.shape.length * spec.shape.width * spec.shape.height
