@@ -80,6 +80,7 @@ class AskBox(ModalScreen[tuple | None]):
     stays open until the size is good."""
 
     DEFAULT_CSS = ("AskBox { align: center middle; } AskBox Input { width: 16; } "
+                   "AskBox .dialog { max-height: 100%; overflow-y: auto; } "
                    "AskBox .field { height: auto; } AskBox .field Label { width: 8; "
                    "padding-top: 1; } AskBox .unit { padding-top: 1; padding-left: 1; }"
                    + DIALOG_CSS)
