@@ -225,10 +225,12 @@ class RoomApp(App):
         if problems:
             # Saved all the same (the user's work is never lost), but not as a good room.
             n = len(problems)
-            shown = "\n".join(problems[:6]) + (f"\n... and {n - 6} more" if n > 6 else "")
-            self.notify(f"Saved {path}, but the room has {n} problem{'s' if n != 1 else ''}:"
-                        f"\n{shown}", severity="warning", timeout=NOT_SAVED_NOTICE_S,
-                        markup=False)
+            if n == 1:
+                said = f"Saved {path}, but the room has 1 problem: {problems[0]}"
+            else:
+                said = (f"Saved {path}, but the room has {n} problems:\n" +
+                        "\n".join(problems[:6]) + (f"\n... and {n - 6} more" if n > 6 else ""))
+            self.notify(said, severity="warning", timeout=NOT_SAVED_NOTICE_S, markup=False)
         else:
             self.notify(f"Saved {path}", markup=False)
         return True

@@ -120,11 +120,21 @@ async def test_saving_a_room_with_problems_saves_it_and_says_what_is_wrong(room_
         await pilot.pause()
         text, severity = notes[-1]
         assert severity == "warning"
-        assert text.startswith(f"Saved {path}, but the room has 1 problem:\n"
+        assert text.startswith(f"Saved {path}, but the room has 1 problem: "
                                "air.relative_humidity: 150")
         assert "0 to 100 %" in text        # the file's range (roomcalc.io.limits)
         # Saved all the same: the file holds the user's value.
         assert "relative_humidity = 150" in path.read_text(encoding="utf-8")
+        # Two problems: each on its own line.
+        doc.change(lambda s: setattr(s.air, "pressure_kpa", 5.0), "pressure")
+        assert app._write(doc, path)
+        await pilot.pause()
+        text, severity = notes[-1]
+        lines = text.splitlines()
+        assert severity == "warning" and lines[0] == f"Saved {path}, but the room has 2 problems:"
+        assert sorted(x.split(":")[0] for x in lines[1:]) == ["air.pressure_kpa",
+                                                             "air.relative_humidity"]
+        doc.change(lambda s: setattr(s.air, "pressure_kpa", None), "pressure")
         # A valid room saves with the plain notice.
         doc.change(lambda s: setattr(s.air, "relative_humidity", 50.0), "humidity")
         assert app._write(doc, path)
