@@ -131,10 +131,18 @@ def _run(args) -> int:
         return _interface(args, catalog)
 
     if args.command == "materials":
-        from roomcalc.present.materials import materials_text
+        from roomcalc.present.materials import materials_text, no_match_text
 
-        mats = catalog.search(" ".join(args.words), args.category, args.kind)
-        sys.stdout.write(materials_text(mats, args.format))
+        words = " ".join(args.words)
+        mats = catalog.search(words, args.category, args.kind)
+        if mats or args.format in ("json", "csv"):
+            sys.stdout.write(materials_text(mats, args.format))
+        if not mats:        # said on stdout as the listing, beside the data in JSON and CSV
+            from roomcalc.present.numbers import wrap
+
+            print(wrap(no_match_text(words, catalog.suggest_categories(words), args.category)
+                       + " (roomcalc materials --category NAME)", "", "  "),
+                  file=sys.stderr if args.format in ("json", "csv") else sys.stdout)
         return EXIT_OK
 
     if args.command == "plan":

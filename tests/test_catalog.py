@@ -131,3 +131,44 @@ def test_user_entry_may_name_a_shipped_counterpart(tmp_path):
                                extra='occupant = true\nunoccupied = "hard-chair-unoccupied"'))
     m = load_catalog([f], include_user=False)["pupil-at-bench"]
     assert (m.occupant, m.unoccupied) == (True, "hard-chair-unoccupied")
+
+
+# Words people use for things (common practice: everyday and trade names, British and American
+# spellings), and what each must find in our catalogue.
+@pytest.mark.parametrize("words,must_find", [
+    ("drywall", "gypsum-board-on-studs"),
+    ("plasterboard", "gypsum-board-on-studs"),
+    ("gypsum", "plasterboard-ceiling-suspended"),
+    ("window", "double-glazing-sealed-unit"),
+    ("glazing", "window-glass-ordinary"),
+    ("bass trap", "corner-trap-membrane"),
+    ("baffle", "mineral-wool-50mm-48kg"),
+    ("hanging panel", "glass-fibre-board-50mm-fabric"),
+    ("rockwool 50mm", "mineral-wool-50mm-48kg"),
+    ("fiberglass", "glass-fibre-board-25mm-fabric"),
+])
+def test_search_finds_what_people_call_things(catalog, words, must_find):
+    assert must_find in [m.id for m in catalog.search(words)]
+
+
+def test_search_words_still_narrow(catalog):
+    """Every word must match (a synonym counts as its word): more words, fewer materials."""
+    wide = {m.id for m in catalog.search("bass trap")}
+    narrow = {m.id for m in catalog.search("bass trap membrane")}
+    assert narrow and narrow < wide
+    assert catalog.search("drywall linoleum") == []
+
+
+def test_a_search_with_no_hit_says_so_and_suggests_categories(catalog, capsys):
+    from roomcalc.cli import main
+
+    assert catalog.suggest_categories("woool") == ["ceilings", "porous panels"]
+    assert "glazing and doors" in catalog.suggest_categories("glas")
+    assert catalog.suggest_categories("zzz") == catalog.categories()
+    assert main(["materials", "woool"]) == 0
+    out = " ".join(capsys.readouterr().out.split())      # wrapped to the report's width
+    assert "No material matches 'woool'" in out and "porous panels" in out
+    assert "0 material(s)" not in out
+    assert main(["materials", "woool", "--format", "json"]) == 0
+    got = capsys.readouterr()
+    assert got.out.strip() == "[]" and "No material matches" in got.err

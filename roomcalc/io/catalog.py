@@ -103,8 +103,10 @@ class Catalog:
 
     def search(self, words: str = "", category: str | None = None,
                kind: str | None = None) -> list[Material]:
-        """Materials whose id, name, category or notes contain every word (any case)."""
-        terms = [w.lower() for w in words.split()]
+        """Materials whose id, name, category or notes contain every word (any case), a word
+        people use for a thing the catalogue names otherwise also finding it
+        (:data:`EVERYDAY_WORDS`: "drywall" finds gypsum board, "bass trap" the corner traps)."""
+        terms = search_terms(words)
         out = []
         for m in self.materials.values():
             if category and category.lower() not in m.category.lower():
@@ -112,12 +114,71 @@ class Catalog:
             if kind and m.kind != kind:
                 continue
             hay = f"{m.id} {m.name} {m.category} {m.notes}".lower()
-            if all(t in hay for t in terms):
+            if all(any(t in hay for t in alternatives) for alternatives in terms):
                 out.append(m)
         return sorted(out, key=lambda m: (m.category, m.name))
 
+    def suggest_categories(self, words: str = "") -> list[str]:
+        """Categories to try when a search finds nothing: those of the materials holding a
+        word near one of the words (a misspelling: "woool" -> wool), or whose name is near
+        one; else every category."""
+        import difflib
+
+        cats = self.categories()
+        vocabulary: dict[str, set[str]] = {}
+        for m in self.materials.values():
+            for w in re.findall(r"[a-z]+", f"{m.id} {m.name} {m.category}".lower()):
+                vocabulary.setdefault(w, set()).add(m.category)
+        near: set[str] = set()
+        for w in words.lower().split():
+            for close in difflib.get_close_matches(w, list(vocabulary), n=3, cutoff=0.75):
+                near |= vocabulary[close]
+        return [c for c in cats if c in near] or cats
+
     def categories(self) -> list[str]:
         return sorted({m.category for m in self.materials.values()})
+
+
+#: Words people use for things the catalogue calls otherwise: each finds the terms after it in
+#: a material's id, name, category or notes. Our own list, from everyday and trade usage
+#: (common practice; British and American spellings both).
+EVERYDAY_WORDS: dict[str, tuple[str, ...]] = {
+    "drywall": ("gypsum", "plasterboard"), "plasterboard": ("gypsum", "plasterboard"),
+    "gypsum": ("gypsum", "plasterboard"), "sheetrock": ("gypsum", "plasterboard"),
+    "wallboard": ("gypsum", "plasterboard"),
+    "window": ("window", "glass", "glazing"), "glazing": ("window", "glass", "glazing"),
+    "glass": ("window", "glass", "glazing"),
+    "rockwool": ("mineral wool", "mineral-wool"), "stonewool": ("mineral wool", "mineral-wool"),
+    "fiberglass": ("glass fibre", "glass-fibre"), "fibreglass": ("glass fibre", "glass-fibre"),
+    "fiber": ("fibre",),
+    "baffle": ("porous panel", "suspended"), "cloud": ("porous panel", "suspended"),
+    "hanging panel": ("porous panel", "suspended", "hung"),
+    "acoustic panel": ("porous panel",),
+    "bass trap": ("corner trap", "corner-trap", "low-frequency"),
+    "trap": ("corner trap", "corner-trap", "low-frequency"),
+    "drape": ("curtain", "velour", "drape"), "drapes": ("curtain", "velour", "drape"),
+    "rug": ("rug", "carpet"), "couch": ("sofa",), "settee": ("sofa",),
+    "audience": ("audience", "person", "people"), "people": ("audience", "person", "people"),
+    "chair": ("seat", "chair"), "chairs": ("seat", "chair"),
+}
+
+
+def search_terms(words: str) -> list[tuple[str, ...]]:
+    """The words of a search, each with the terms that satisfy it (itself, and those of
+    :data:`EVERYDAY_WORDS`; two-word entries such as "bass trap" are taken together)."""
+    tokens = words.lower().split()
+    out: list[tuple[str, ...]] = []
+    i = 0
+    while i < len(tokens):
+        pair = " ".join(tokens[i:i + 2])
+        if i + 1 < len(tokens) and pair in EVERYDAY_WORDS:
+            out.append((pair,) + EVERYDAY_WORDS[pair])
+            i += 2
+            continue
+        t = tokens[i]
+        out.append((t,) + EVERYDAY_WORDS.get(t, ()))
+        i += 1
+    return out
 
 
 def parse_entries(entries: list, chk: Checker, where: str = "materials",

@@ -36,19 +36,44 @@ def toml_files(folders, extra=(), what: str = "file") -> list[Path]:
     return files
 
 
+def read_text_file(path) -> str:
+    """The text of a user's file (room file, catalogue, criteria, a kept recovery file), read
+    in one place so that every way in gives the same message: a missing file, a folder, a
+    file the user may not read, one larger than :mod:`roomcalc.io.limits` allows or bytes
+    that are not UTF-8 become a RoomFileError naming the file ("FILE: cannot read it: it is a
+    folder"). The bytes are decoded as they are, line ends included (``read_text`` would turn a
+    stray carriage return into a new line)."""
+    from roomcalc.io.errors import RoomFileError
+
+    path = Path(path)
+
+    def fail(message: str):
+        return RoomFileError([Problem(str(path), "", message)])
+
+    try:
+        if path.is_dir():
+            raise IsADirectoryError(21, "Is a directory", str(path))
+        guard_size(path.stat().st_size, str(path))
+        data = path.read_bytes()
+    except FileNotFoundError:
+        raise fail("no such file") from None
+    except IsADirectoryError:
+        raise fail("cannot read it: it is a folder") from None
+    except PermissionError:
+        raise fail("cannot read it: permission denied") from None
+    except OSError as exc:
+        raise fail(f"cannot read it: {exc.strerror or exc}") from None
+    try:
+        return data.decode("utf-8")
+    except UnicodeDecodeError as exc:
+        raise fail(f"cannot read it: not UTF-8 text (byte 0x{data[exc.start]:02x} at "
+                   f"position {exc.start})") from None
+
+
 def read_toml_file(path) -> dict:
     """Read and parse a TOML data file (catalogue, criteria); an unreadable file, text that is
     not UTF-8 or a syntax error becomes a RoomFileError naming the file."""
-    from roomcalc.io.errors import RoomFileError
-
-    try:
-        guard_size(Path(path).stat().st_size, str(path))
-        text = Path(path).read_text(encoding="utf-8")
-    except OSError as exc:
-        raise RoomFileError([Problem(str(path), "", f"cannot be read: {exc.strerror}")]) from None
-    except UnicodeDecodeError:
-        raise RoomFileError([Problem(str(path), "", "cannot be read: not UTF-8 text")]) from None
-    return read_toml(text, str(path))
+    return read_toml(read_text_file(path), str(path))
 
 
 def read_toml(text: str, filename: str) -> dict:

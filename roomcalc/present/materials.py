@@ -8,7 +8,7 @@ import io
 from roomcalc.io.catalog import Material
 from roomcalc.present.numbers import fmt, json_text, wrap
 
-__all__ = ["material_dict", "materials_text"]
+__all__ = ["material_dict", "materials_text", "no_match_text"]
 
 
 def material_dict(m: Material) -> dict:
@@ -62,3 +62,11 @@ def materials_text(mats: list[Material], form: str = "text") -> str:
         lines.append(f"{len(mats)} material(s). SAA~ is an estimate from octave data; a "
                      "product's test report\nto ISO 354 / ASTM C423 supersedes these values.")
     return "\n".join(lines) + "\n"
+
+
+def no_match_text(words: str, categories: list[str], category: str | None = None) -> str:
+    """What a search that found nothing says, with the categories to try instead."""
+    asked = f"'{words.strip()}'" if words.strip() else "that"
+    within = f" in '{category}'" if category else ""
+    return (f"No material matches {asked}{within}. Fewer words, or a category: "
+            f"{', '.join(categories)}.")

@@ -15,6 +15,7 @@ from textual.binding import Binding
 
 from roomcalc.io.catalog import Catalog
 from roomcalc.io.errors import RoomFileError
+from roomcalc.study import Study
 from roomcalc.tui.document import Document
 from roomcalc.tui.recovery import (RecoveryWriter, Status, discard_file, find_recoveries,
                                    take_over)
@@ -220,8 +221,33 @@ class RoomApp(App):
                         timeout=NOT_SAVED_NOTICE_S, markup=False)
             return False
         self.main.show_title()
-        self.notify(f"Saved {path}", markup=False)
+        problems = self._problems_of(doc)
+        if problems:
+            # Saved all the same (the user's work is never lost), but not as a good room.
+            n = len(problems)
+            if n == 1:
+                said = f"Saved {path}, but the room has 1 problem: {problems[0]}"
+            else:
+                said = (f"Saved {path}, but the room has {n} problems:\n" +
+                        "\n".join(problems[:6]) + (f"\n... and {n - 6} more" if n > 6 else ""))
+            self.notify(said, severity="warning", timeout=NOT_SAVED_NOTICE_S, markup=False)
+        else:
+            self.notify(f"Saved {path}", markup=False)
         return True
+
+    def _problems_of(self, doc: Document) -> list[str]:
+        """What the core's check finds wrong with ``doc`` as saved ("field: message"; none when
+        it is a valid room)."""
+        main = self.main
+        study = main.study if doc is main.document else \
+            Study(doc.spec, main.catalog, filename=doc.name)
+        try:
+            study.check()
+        except RoomFileError as exc:
+            return [p.located for p in exc.problems]
+        except ValueError as exc:
+            return [str(exc)]
+        return []
 
     def _guard(self, then) -> None:
         """Run ``then`` now, or after asking what to do with unsaved changes. The recovery
@@ -288,13 +314,11 @@ class RoomApp(App):
         try:
             doc = Document.open(path)
         except RoomFileError as exc:
+            # A folder, a file that may not be read or is not UTF-8 text is named here too,
+            # in the words of `roomcalc check` (roomcalc.io.checks.read_text_file).
             lines = [str(p) for p in exc.problems[:8]]
             self.notify("Cannot open it:\n" + "\n".join(lines), severity="error", timeout=12,
                         markup=False)
-            self._discard_approved = None
-            return
-        except (OSError, UnicodeDecodeError) as exc:
-            self.notify(f"Cannot open {path}: {exc}", severity="error", timeout=8, markup=False)
             self._discard_approved = None
             return
         self._set_document(doc)
@@ -376,9 +400,10 @@ class RoomApp(App):
     def _restore(self, doc: Document, rec: Path) -> None:
         try:
             restored = Document.open(rec)
-        except (RoomFileError, OSError, UnicodeDecodeError):
-            self.notify(f"The recovery file {rec} could not be read; it is left as it is.",
-                        severity="error", markup=False)
+        except RoomFileError as exc:
+            lines = [str(p) for p in exc.problems[:8]]
+            self.notify("The recovery file could not be restored; it is left as it is:\n" +
+                        "\n".join(lines), severity="error", timeout=12, markup=False)
             return
         spec = restored.spec
         doc.change(lambda s: s.__dict__.update(spec.__dict__), "restore unsaved changes")

@@ -12,6 +12,7 @@ from dataclasses import dataclass, field, fields, is_dataclass
 from pathlib import Path
 
 from roomcalc.io.atomic import remove_stale_temporaries, write_text_atomic
+from roomcalc.io.checks import read_text_file
 from roomcalc.io.roomfile import (CandidateSpec, ObjectSpec, ReceiverSpec, RoomSpec, ShapeSpec,
                                   SourceSpec, SurfaceSpec, comments_lost, parse_spec,
                                   spec_to_toml_keeping)
@@ -189,9 +190,10 @@ class Document:
 
     @classmethod
     def open(cls, path) -> "Document":
-        """Read a room file (raises RoomFileError with every problem)."""
+        """Read a room file (raises RoomFileError with every problem, or naming the file
+        when it cannot be read: roomcalc.io.checks.read_text_file)."""
         path = Path(path)
-        text = path.read_text(encoding="utf-8")
+        text = read_text_file(path)
         remove_stale_temporaries(path)       # left by a save that was killed half-way
         spec = parse_spec(text, str(path))
         return cls(spec=spec, path=path, saved_text=text, original_text=text)

@@ -212,9 +212,12 @@ async def test_bad_values(room_file, catalog, engine, screen_tables, pilot_keys)
         findings = screen_tables.text(app, "#findings")
         under = screen_tables.text(app, "#t-surfaces #problems")
         assert "Not computed" in findings
+        # The place as the screen shows it: row numbers from 1, and the row's name.
+        place = f'Surfaces row {windows + 1} "Windows", area'
         for p in want:
-            assert p.message in findings and p.where in findings
-            assert p.message in under and p.where in under
+            assert p.message in findings and place in findings
+            assert p.message in under and place in under
+            assert p.where not in findings          # not the file's count from 0
         # The last valid results stay, marked stale.
         assert screen_tables.reverb(app) == shown
         _assert_reverb_matches(shown, good, engine)

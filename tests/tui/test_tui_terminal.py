@@ -264,6 +264,42 @@ def test_an_edit_survives_a_kill_and_not_now_keeps_it(tmp_path, monkeypatch):
 
 
 @pytest.mark.skipif(TMUX is None, reason="tmux is not installed")
+def test_roomcalc_open_a_folder_in_a_real_terminal(tmp_path):
+    """`roomcalc open FOLDER` in a real terminal: the message names the folder, exit 2, no
+    traceback on the screen."""
+    folder = tmp_path / "rooms"
+    folder.mkdir()
+    exit_file = tmp_path / "exit.txt"
+    sock = f"roomcalc-test-{uuid.uuid4().hex[:12]}"
+    tmux = [TMUX, "-L", sock, "-f", os.devnull]
+    inner = (f"env -u COLUMNS -u LINES ROOMCALC_DATA_DIR={shlex.quote(str(tmp_path / 'data'))} "
+             f"{' '.join(shlex.quote(c) for c in _command())} open {shlex.quote(str(folder))}; "
+             f"echo EXIT=$? > {shlex.quote(str(exit_file))}")
+
+    def capture() -> str:
+        # With the history (-S -): a program that ends at once may print before the pane
+        # has its final size, and its first lines scroll off the visible part.
+        return subprocess.run(tmux + ["capture-pane", "-p", "-J", "-S", "-", "-t", "rc"],
+                              capture_output=True, text=True, timeout=10).stdout
+
+    subprocess.run(tmux + ["new-session", "-d", "-s", "rc", "-x", "120", "-y", "40",
+                           "sh", "-c", inner, ";", "set-option", "-t", "rc",
+                           "remain-on-exit", "on"], check=True, timeout=10, cwd=tmp_path,
+                   stdin=subprocess.DEVNULL)
+    try:
+        deadline = time.monotonic() + 15
+        while time.monotonic() < deadline and not exit_file.exists():
+            time.sleep(0.2)
+        assert exit_file.exists(), capture()
+        assert exit_file.read_text().strip() == "EXIT=2"
+        screen = capture()
+        assert f"{folder}: cannot read it: it is a folder" in screen, screen
+        assert "Traceback" not in screen and "Error" not in screen, screen
+    finally:
+        subprocess.run(tmux + ["kill-server"], capture_output=True, timeout=10)
+
+
+@pytest.mark.skipif(TMUX is None, reason="tmux is not installed")
 def test_help_scrolls_to_its_last_section_at_80x24(tmp_path):
     """In a real 80x24 terminal: F1 opens the help, whose text is longer than the screen; End
     brings its last section's heading and closing line into view, Home its first lines back,

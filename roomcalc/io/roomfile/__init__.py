@@ -16,7 +16,8 @@ into the planner's SI goals and candidates.
 
 from roomcalc.io.roomfile.faces import (AREA_OR_FACE, box_dimensions_m, face_areas,
                                         missing_area, surface_area_m2)
-from roomcalc.io.roomfile.parse import SpecProblems, parse_data, parse_spec, read_spec
+from roomcalc.io.roomfile.parse import (SpecProblems, box_size_problems, parse_data, parse_spec,
+                                        read_spec)
 from roomcalc.io.roomfile.parse_target import band_limit, parse_candidates, parse_target
 from roomcalc.io.roomfile.resolve import (candidate_material, check_room, material_problems,
                                           material_values, read_room, resolve, room_catalog,
@@ -46,7 +47,7 @@ __all__ = [
     "AREA_OR_FACE", "missing_area", "face_areas", "box_dimensions_m", "surface_area_m2",
     # parse
     "SpecProblems", "read_spec", "parse_spec", "parse_data", "parse_target", "parse_candidates",
-    "band_limit",
+    "band_limit", "box_size_problems",
     # resolve
     "read_room", "check_room", "resolve", "room_catalog", "material_values",
     "candidate_material", "material_problems", "unoccupied_values",

@@ -7,16 +7,14 @@ The planning tables (``[target]``, ``[[candidates]]``) are read by
 
 from __future__ import annotations
 
-from pathlib import Path
-
 from roomcalc.engine.bands import ALLOWED_BANDS_HZ, DEFAULT_BANDS_HZ
 from roomcalc.engine.field import PLACEMENT_Q
 from roomcalc.engine.model import FACES
 from roomcalc.engine.spectra import SPECTRUM_SHAPES
 from roomcalc.io.catalog import parse_entries
-from roomcalc.io.checks import Checker, kind_of, read_toml
+from roomcalc.io.checks import Checker, kind_of, read_text_file, read_toml
 from roomcalc.io.errors import Problem, RoomFileError
-from roomcalc.io.limits import RANGES, guard_size, limit
+from roomcalc.io.limits import RANGES, limit
 from roomcalc.io.roomfile.faces import missing_area
 from roomcalc.io.roomfile.parse_target import check_one_method, parse_candidates, parse_target
 from roomcalc.io.roomfile.spec import (AIR_KEYS, FORMAT_VERSION, METHODS, OBJECT_KEYS,
@@ -37,19 +35,9 @@ class SpecProblems(RoomFileError):
 
 
 def read_spec(path) -> RoomSpec:
-    """Read and check a room file without resolving materials."""
-    path = Path(path)
-    try:
-        # Bytes decoded as they are: the text parsed is the file's, line ends included
-        # (read_text would turn a stray carriage return into a new line).
-        guard_size(path.stat().st_size, str(path))
-        text = path.read_bytes().decode("utf-8")
-    except FileNotFoundError:
-        raise RoomFileError([Problem(str(path), "", "no such file")]) from None
-    except (OSError, UnicodeDecodeError) as exc:
-        reason = getattr(exc, "strerror", None) or str(exc)
-        raise RoomFileError([Problem(str(path), "", f"cannot be read: {reason}")]) from None
-    return parse_spec(text, str(path))
+    """Read and check a room file without resolving materials (a file that cannot be read is
+    reported by :func:`roomcalc.io.checks.read_text_file`)."""
+    return parse_spec(read_text_file(path), str(path))
 
 
 def parse_spec(text: str, filename: str = "<room>") -> RoomSpec:
@@ -290,6 +278,24 @@ def _position(chk: Checker, table: dict, where: str, u: Units):
         return None
     return chk.numbers(table, "position", where, length=3,
                        **limit("position", u, unit=f"x, y, z in {u.length_label}"))
+
+
+def box_size_problems(length, width, height, units: str = "metric",
+                      filename: str = "<new room>") -> list[Problem]:
+    """A box size given outside a file (the interface's new-room dialog), checked as the
+    file's ``[shape]`` is: each side a number in the range of ``length`` (0.1 to 1000 m; in ft
+    for imperial), then the box's volume in the range of ``volume``. The problems name the
+    field (``shape.length``, ..., ``shape`` for the volume) with the file's messages; none
+    when the size is good."""
+    u = UNITS[units]
+    chk = Checker(filename)
+    spec = RoomSpec(units=units)
+    shape = {"length": length, "width": width, "height": height}
+    for k in ("length", "width", "height"):
+        setattr(spec.shape, k, chk.number(shape, k, "shape", **limit("length", u)))
+    if not chk.problems:
+        _box_volume(chk, spec, u)
+    return chk.problems
 
 
 def _box_volume(chk: Checker, spec: RoomSpec, u: Units) -> None:

@@ -6,7 +6,6 @@ from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical
 from textual.screen import ModalScreen
-from textual.validation import ValidationResult, Validator
 from textual.widgets import Button, Input, Label, Select, Static
 
 DIALOG_CSS = """
@@ -70,19 +69,21 @@ class AskText(ModalScreen[str | None]):
         self.dismiss(None)
 
 
-class _Positive(Validator):
-    def validate(self, value: str) -> ValidationResult:
-        try:
-            v = float(value)
-        except ValueError:
-            return self.failure(f"'{value}' is not a number")
-        return self.success() if v > 0 else self.failure("must be above 0")
+#: The sides of the new-room dialog: (key, label, default in the chosen units).
+BOX_SIDES = (("length", "Length", "6"), ("width", "Width", "4"), ("height", "Height", "2.7"))
 
 
 class AskBox(ModalScreen[tuple | None]):
-    """A box size for a new room: length, width, height and units."""
+    """A box size for a new room: length, width, height and units. The sizes are checked as
+    the room file's ``[shape]`` is (roomcalc.io.roomfile.box_size_problems: the file's ranges
+    and messages, in the chosen units); each problem shows under its field, and the dialog
+    stays open until the size is good."""
 
-    DEFAULT_CSS = "AskBox { align: center middle; } AskBox Input { width: 16; }" + DIALOG_CSS
+    DEFAULT_CSS = ("AskBox { align: center middle; } AskBox Input { width: 16; } "
+                   "AskBox .dialog { max-height: 100%; overflow-y: auto; } "
+                   "AskBox .field { height: auto; } AskBox .field Label { width: 8; "
+                   "padding-top: 1; } AskBox .unit { padding-top: 1; padding-left: 1; }"
+                   + DIALOG_CSS)
     BINDINGS = [Binding("escape", "dismiss_none", "Cancel", id="dialog.cancel")]
 
     def __init__(self, question: str = "Size of the new room (a box):") -> None:
@@ -92,30 +93,74 @@ class AskBox(ModalScreen[tuple | None]):
     def compose(self) -> ComposeResult:
         with Vertical(classes="dialog"):
             yield Static(self.question, classes="question", markup=False)
-            with Horizontal(classes="buttons"):
-                for key, label, default in (("length", "Length", "6"), ("width", "Width", "4"),
-                                            ("height", "Height", "2.7")):
-                    yield Label(f"{label} ")
-                    yield Input(default, id=key, validators=[_Positive()])
+            for key, label, default in BOX_SIDES:
+                with Horizontal(classes="field"):
+                    yield Label(label)
+                    yield Input(default, id=key)
+                    yield Static("m", classes="unit")
+                yield Static("", classes="error", id=f"{key}-error", markup=False)
             yield Select([("metric (m)", "metric"), ("imperial (ft)", "imperial")],
                          value="metric", allow_blank=False, id="units")
-            yield Static("", classes="error", id="error")
+            yield Static("", classes="error", id="error", markup=False)
             with Horizontal(classes="buttons"):
                 yield Button("Create", id="create", variant="primary")
                 yield Button("Cancel", id="cancel")
 
+    def on_mount(self) -> None:
+        self._show({})
+
+    def problems(self) -> tuple[dict[str, str], list[float] | None]:
+        """The message of each field with a problem ("" for the box's volume), and the
+        size when there is none."""
+        from roomcalc.io.roomfile import box_size_problems
+
+        units = self.query_one("#units", Select).value
+        raw, vals, out = {}, {}, {}
+        for key, _, _ in BOX_SIDES:
+            raw[key] = self.query_one(f"#{key}", Input).value.strip()
+            try:
+                vals[key] = float(raw[key])
+            except ValueError:
+                out[key] = f"'{raw[key]}' is not a number" if raw[key] else "give a number"
+                vals[key] = raw[key]
+        if not out:
+            for p in box_size_problems(vals["length"], vals["width"], vals["height"], units):
+                key = p.where.removeprefix("shape").lstrip(".")
+                out[key] = p.message
+        return out, None if out else [vals[k] for k, _, _ in BOX_SIDES]
+
+    def _show(self, problems: dict[str, str]) -> None:
+        """Each message under its field (a field without one takes no line)."""
+        for key in [k for k, _, _ in BOX_SIDES] + [""]:
+            self._say(key, problems.get(key, ""))
+
+    def _say(self, key: str, message: str) -> None:
+        w = self.query_one(f"#{key}-error" if key else "#error", Static)
+        w.update(message)
+        w.display = bool(message)
+
     def _submit(self) -> None:
-        vals = []
-        for key in ("length", "width", "height"):
-            inp = self.query_one(f"#{key}", Input)
-            res = inp.validate(inp.value)
-            if res is not None and not res.is_valid:
-                self.query_one("#error", Static).update(
-                    f"{key}: " + "; ".join(res.failure_descriptions))
-                inp.focus()
-                return
-            vals.append(float(inp.value))
-        self.dismiss((*vals, self.query_one("#units", Select).value))
+        problems, size = self.problems()
+        self._show(problems)
+        if size is None:
+            first = next((k for k, _, _ in BOX_SIDES if k in problems), None)
+            if first is not None:
+                self.query_one(f"#{first}", Input).focus()
+            return
+        self.dismiss((*size, self.query_one("#units", Select).value))
+
+    def on_select_changed(self, event: Select.Changed) -> None:
+        label = "ft" if event.value == "imperial" else "m"
+        for unit in self.query(".unit").results(Static):
+            unit.update(label)
+        if any(w.display for w in self.query(".error").results(Static)):
+            self._show(self.problems()[0])
+
+    def on_input_changed(self, event: Input.Changed) -> None:
+        # A message goes as soon as its field is edited; the next Create checks again.
+        if event.input.id:
+            self._say(event.input.id, "")
+            self._say("", "")
 
     def on_input_submitted(self, event: Input.Submitted) -> None:
         self._submit()

@@ -23,6 +23,7 @@ from roomcalc.engine.analysis import RoomResult
 from roomcalc.io.catalog import Catalog
 from roomcalc.io.errors import RoomFileError
 from roomcalc.present import sections
+from roomcalc.present.places import TABLE_TITLES, problem_on_screen
 from roomcalc.study import Answer, Study
 from roomcalc.study.distance import distance_picture
 from roomcalc.tui.columns import RecordColumns
@@ -234,7 +235,7 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
             result = study.evaluate(room)
             self.problems = [f"{k}: '{v}' is not a number" for k, v in unparsed.items()]
         except RoomFileError as exc:
-            self.problems = [p.located for p in exc.problems]
+            self.problems = [problem_on_screen(p, self.document.spec) for p in exc.problems]
             self.problems += [f"{k}: '{v}' is not a number" for k, v in unparsed.items()]
             result = None
         except ValueError as exc:
@@ -340,7 +341,7 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
 
     def _show_table_problems(self) -> None:
         for coll in EDIT_TABS[1:]:
-            mine = [p for p in self.problems if p.startswith(coll + "[")]
+            mine = [p for p in self.problems if p.startswith(TABLE_TITLES[coll] + " row ")]
             t = self._opt(f"#t-{coll}", RecordTable)
             if t is not None:
                 t.show_problems(mine)

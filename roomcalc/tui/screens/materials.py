@@ -9,6 +9,7 @@ from textual.screen import ModalScreen
 from textual.widgets import Button, Input, Select, Static
 
 from roomcalc.io.catalog import Catalog, Material
+from roomcalc.present.materials import no_match_text
 from roomcalc.study.typed import parse_numbers
 from roomcalc.tui.widgets.grid import CellGrid
 
@@ -124,7 +125,10 @@ class MaterialChooser(ModalScreen[tuple | None]):
         table = self.query_one("#list", CellGrid)
         det = self.query_one("#details", Static)
         if not self._shown:
-            det.update("Nothing matches. Fewer words, or another category.")
+            words = self.query_one("#words", Input).value
+            cat = self.query_one("#category", Select).value
+            det.update(no_match_text(words, self.catalog.suggest_categories(words),
+                                     cat if isinstance(cat, str) else None))
             return
         m = self._shown[min(table.cursor_row, len(self._shown) - 1)]
         det.update(material_details(m, self.bands))
