@@ -253,8 +253,11 @@ def test_an_edit_survives_a_kill_and_not_now_keeps_it(tmp_path, monkeypatch):
         keys("two", "Escape")                 # the same answer as "Not now"
         screen = _wait(lambda: capture("two"), lambda s: "Not now" not in s and "Sabine" in s)
         assert "Not now" not in screen and "Sabine" in screen, screen
-        keys("two", "C-q")
-        screen = _wait(lambda: capture("two"), lambda s: "Pane is dead" in s)
+        for _ in range(3):      # on a busy machine a key may come before the screen takes it
+            keys("two", "C-q")
+            screen = _wait(lambda: capture("two"), lambda s: "Pane is dead" in s, 8)
+            if "Pane is dead" in screen:
+                break
         assert "Pane is dead" in screen, screen
         found = find_recoveries(room)
         assert len(found) == 1 and found[0].kept, found
