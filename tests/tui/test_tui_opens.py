@@ -195,10 +195,11 @@ async def test_new_room_sizes_are_checked_with_the_file_ranges(room_file, catalo
         await pilot.pause()
         assert isinstance(app.screen, AskBox)
         assert "the box's volume, 0.125 m^3" in str(app.screen.query_one("#error").content)
-        # Imperial: the sides are in ft (1000 m = 3280.84 ft), so 3000 is a good side.
+        # Imperial: the sides are in ft (1000 m = 3280.84 ft), so 3000 is a good side; a
+        # decimal comma is read as a point ("12,5" ft).
         app.screen.query_one("#units", Select).value = "imperial"
         await _type(pilot, "length", "3000")
-        await _type(pilot, "width", "12")
+        await _type(pilot, "width", "12,5")
         await _type(pilot, "height", "9")
         await pilot.press("enter")
         for _ in range(20):
@@ -208,4 +209,4 @@ async def test_new_room_sizes_are_checked_with_the_file_ranges(room_file, catalo
         doc = app.screen.document
         assert doc is not before
         assert (doc.spec.units, doc.spec.shape.length, doc.spec.shape.width,
-                doc.spec.shape.height) == ("imperial", 3000.0, 12.0, 9.0)
+                doc.spec.shape.height) == ("imperial", 3000.0, 12.5, 9.0)

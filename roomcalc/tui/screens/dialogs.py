@@ -113,13 +113,14 @@ class AskBox(ModalScreen[tuple | None]):
         """The message of each field with a problem ("" for the box's volume), and the
         size when there is none."""
         from roomcalc.io.roomfile import box_size_problems
+        from roomcalc.study.typed import parse_number
 
         units = self.query_one("#units", Select).value
         raw, vals, out = {}, {}, {}
         for key, _, _ in BOX_SIDES:
             raw[key] = self.query_one(f"#{key}", Input).value.strip()
             try:
-                vals[key] = float(raw[key])
+                vals[key] = parse_number(raw[key])         # "3,5" too
             except ValueError:
                 out[key] = f"'{raw[key]}' is not a number" if raw[key] else "give a number"
                 vals[key] = raw[key]
