@@ -4,7 +4,6 @@ problems saves it and says what is wrong (Pilot)."""
 
 from __future__ import annotations
 
-import os
 import tempfile
 from pathlib import Path
 

@@ -22,6 +22,7 @@ from textual.worker import Worker, WorkerState, get_current_worker
 
 from roomcalc.io.errors import RoomFileError
 from roomcalc.present import sections
+from roomcalc.present.places import problem_on_screen
 from roomcalc.study import PlanCancelled
 from roomcalc.study.edits import (parse_rt60_limit, set_criterion, set_method, set_objective,
                                   set_own_rt60_limit)
@@ -234,7 +235,9 @@ class PlanRoutes:
         if event.state == WorkerState.CANCELLED or isinstance(error, PlanCancelled):
             view.show_message("Plan stopped.")
         elif isinstance(error, RoomFileError):
-            view.show_message("Cannot plan: " + "; ".join(p.located for p in error.problems))
+            spec = self.document.spec
+            view.show_message("Cannot plan: " + "; ".join(problem_on_screen(p, spec)
+                                                          for p in error.problems))
         elif isinstance(error, ValueError):
             view.show_message(f"Cannot plan: {error}")
         elif error is not None:
