@@ -31,7 +31,6 @@ from roomcalc.io.roomfile.spec import (AIR_KEYS, AREA_COST_KEY, CANDIDATE_ALPHA_
                                        CandidateSpec, ObjectSpec, ReceiverSpec, RoomSpec,
                                        ShapeSpec, SourceSpec, SurfaceSpec, TargetSpec, band_text,
                                        limit_values)
-from roomcalc.io.roomfile.keep import comments_lost, spec_to_toml_keeping
 from roomcalc.io.roomfile.write import (save_spec, spec_to_dict, spec_to_toml, toml_key,
                                         toml_value)
 
@@ -56,3 +55,13 @@ __all__ = [
     # keep
     "spec_to_toml_keeping", "comments_lost",
 ]
+
+
+def __getattr__(name: str):
+    """The keeping writer is imported when first asked for: the command line's reports never
+    write a file, and its regular expressions and tables cost their start-up 5 ms."""
+    if name in ("spec_to_toml_keeping", "comments_lost"):
+        from roomcalc.io.roomfile import keep
+
+        return getattr(keep, name)
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
