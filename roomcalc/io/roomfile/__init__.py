@@ -9,7 +9,8 @@ The modules, by job: :mod:`.spec` (the dataclasses and the keys of each table), 
 (box faces and the area of a surface that fills the rest of one), :mod:`.parse` and
 :mod:`.parse_target` (TOML data to a checked spec), :mod:`.resolve` (spec to the engine's room,
 catalogue lookup), :mod:`.write` (spec to TOML text, atomic saving), :mod:`.keep` (spec to TOML
-text written over the text it was read from, keeping the user's comments and layout). The
+text written over the text it was read from, keeping the user's comments and layout, as
+:mod:`.layout` reads it). The
 planning tables are read here with the rest of the file; :mod:`roomcalc.io.planning` turns them
 into the planner's SI goals and candidates.
 """

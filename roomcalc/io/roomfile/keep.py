@@ -41,20 +41,14 @@ from __future__ import annotations
 
 import re
 import tomllib
-from dataclasses import dataclass, field
-from functools import lru_cache
 
+from roomcalc.io.roomfile.layout import (ARRAY_TABLES, SINGLE_TABLES, TABLE_ORDER, Entry,
+                                         Layout, Table, Unsupported, comment_lines, content_key,
+                                         read_layout, trail_comment)
 from roomcalc.io.roomfile.spec import RoomSpec
 from roomcalc.io.roomfile.write import spec_to_dict, spec_to_toml, toml_key, toml_value
 
 __all__ = ["spec_to_toml_keeping", "comments_lost"]
-
-#: Tables written once (``[name]``) and arrays of tables (``[[name]]``), in the documented order.
-SINGLE_TABLES = ("air", "shape", "target")
-ARRAY_TABLES = ("surfaces", "objects", "sources", "receivers", "candidates", "materials")
-TABLE_ORDER = ("air", "shape", "surfaces", "objects", "sources", "receivers", "target",
-               "candidates", "materials")
-
 
 def spec_to_toml_keeping(spec: RoomSpec, original_text: str | None) -> str:
     """The room-file text of ``spec``, written over ``original_text`` (the text it was read
@@ -71,238 +65,12 @@ def comments_lost(spec: RoomSpec, original_text: str | None) -> list[str]:
     return _merge(spec, original_text)[1]
 
 
-# --------------------------------------------------------------------------- reading the text
-class _Unsupported(Exception):
-    """A layout this reader does not follow line by line."""
-
-
-@dataclass
-class _Entry:
-    """One ``key = value`` of a table as written."""
-
-    key: str
-    lead: list[str]          # comment and blank lines above it
-    lines: list[str]         # the entry's lines, verbatim
-    prefix: str              # the first line up to the value ("  area = ")
-    trail: str               # after the value on its last line ("  # measured"), or ""
-    inner: list[str]         # comments inside a value written over several lines
-    value: object = None     # as tomllib reads it
-
-
-@dataclass
-class _Table:
-    kind: str                # "" for the top level
-    lead: list[str]          # comment and blank lines above the header
-    header: str | None       # the header line, verbatim (None for the top level)
-    entries: list[_Entry] = field(default_factory=list)
-    tail: list[str] = field(default_factory=list)   # comments right after the last entry
-    data: dict = field(default_factory=dict)
-    content: object = None   # _content(data), for matching entries of arrays of tables
-
-    def comments(self, skip: int = 0) -> list[str]:
-        """Its comments as written, in order (``skip``: lines of the lead not counted)."""
-        out = _comment_lines(self.lead[skip:])
-        if self.header is not None:
-            m = _HEADER.fullmatch(self.header)
-            out += [m.group(4).strip()] if m and m.group(4) else []
-        for e in self.entries:
-            out += _comment_lines(e.lead) + e.inner + _trail_comment(e.trail)
-        return out + _comment_lines(self.tail)
-
-
-@dataclass
-class _Layout:
-    tables: list[_Table]     # in file order, the top level first
-    end: list[str]           # comment and blank lines at the end of the file
-    newline: str
-
-
-def _comment_lines(lines) -> list[str]:
-    return [x.strip() for x in lines if x.lstrip().startswith("#")]
-
-
-def _trail_comment(text: str) -> list[str]:
-    i = text.find("#")
-    return [text[i:].strip()] if i >= 0 and not text[:i].strip() else []
-
-
-_BARE = re.compile(r"[A-Za-z0-9_-]+")
-#: A value on one line that needs no scanning: a string with no escapes, a value with no
-#: string or brackets, or a list of such; then spaces and perhaps a comment.
-_ONE_LINE = re.compile(r"(\"[^\"\\]*\"|[^\"'#\[\]{}]*?|\[[^\"'#\[\]{}]*\])(\s*(?:#.*)?)")
-_HEADER = re.compile(r"\s*(\[\[?)\s*([A-Za-z0-9_-]+)\s*(\]\]?)\s*(#.*)?")
-
-
-@lru_cache(maxsize=8)
-def _layout(text: str) -> _Layout:
-    """The tables and entries of a room file's text (kept for the text: the interface writes
-    the room on every edit over the same original)."""
-    newline = "\r\n" if "\r\n" in text else "\n"
-    lines = text.split("\n")
-    if lines and lines[-1] == "":
-        lines.pop()
-    if newline == "\r\n":
-        lines = [x[:-1] if x.endswith("\r") else x for x in lines]
-    data = tomllib.loads(text)
-    root = _Table("", [], None, data=data)
-    tables, counts = [root], {}
-    table, pending = root, []
-    i = 0
-    while i < len(lines):
-        line = lines[i]
-        s = line.strip()
-        if not s or s.startswith("#"):
-            pending.append(line)
-            i += 1
-            continue
-        if s.startswith("["):
-            m = _HEADER.fullmatch(line)
-            if m is None:
-                raise _Unsupported(line)
-            kind, array = m.group(2), m.group(1) == "[["
-            if (m.group(3) == "]]") != array or \
-                    kind not in (ARRAY_TABLES if array else SINGLE_TABLES):
-                raise _Unsupported(line)
-            cut = _first_blank(pending) if table.entries or table.header else len(pending)
-            table.tail, lead = pending[:cut], pending[cut:]
-            if array:
-                n = counts.get(kind, 0)
-                counts[kind] = n + 1
-                tdata = data[kind][n]
-            else:
-                tdata = data[kind]
-            table = _Table(kind, lead, line, data=tdata,
-                           content=_content(tdata) if array else None)
-            tables.append(table)
-            pending = []
-            i += 1
-            continue
-        key, rest_at = _read_key(line)
-        if key not in table.data or (table is root and isinstance(data[key], dict)) or \
-                (table is root and key in ARRAY_TABLES):
-            raise _Unsupported(line)
-        end_line, trail, inner = _read_value(lines, i, rest_at)
-        entry = _Entry(key, pending, lines[i:end_line + 1], line[:rest_at], trail, inner,
-                       table.data[key])
-        table.entries.append(entry)
-        pending = []
-        i = end_line + 1
-    cut = _first_blank(pending)
-    table.tail, end = pending[:cut], pending[cut:]
-    return _Layout(tables, end, newline)
-
-
-def _first_blank(lines: list[str]) -> int:
-    for j, x in enumerate(lines):
-        if not x.strip():
-            return j
-    return len(lines)
-
-
-def _read_key(line: str) -> tuple[str, int]:
-    """The key of a ``key = value`` line and where its value starts."""
-    j = len(line) - len(line.lstrip())
-    if line[j] in "\"'":
-        q = line[j]
-        k = j + 1
-        while k < len(line) and line[k] != q:
-            k += 2 if q == '"' and line[k] == "\\" else 1
-        raw = line[j:k + 1]
-        key = tomllib.loads(f"x = {raw}")["x"]
-        j = k + 1
-    else:
-        m = _BARE.match(line, j)
-        if m is None:
-            raise _Unsupported(line)
-        key, j = m.group(0), m.end()
-    while j < len(line) and line[j] in " \t":
-        j += 1
-    if j >= len(line) or line[j] != "=":
-        raise _Unsupported(line)       # a dotted key
-    j += 1
-    while j < len(line) and line[j] in " \t":
-        j += 1
-    return key, j
-
-
-def _read_value(lines: list[str], i: int, at: int) -> tuple[int, str, list[str]]:
-    """Where the value starting at ``lines[i][at:]`` ends: (its last line, the text after it on
-    that line, the comments inside it)."""
-    m = _ONE_LINE.fullmatch(lines[i], at)
-    if m:
-        return i, m.group(2), []
-    inner: list[str] = []
-    depth, k, n = 0, at, i
-    line = lines[n]
-    while True:
-        if k >= len(line):
-            if depth == 0:
-                return n, "", inner
-            n += 1
-            if n >= len(lines):
-                raise _Unsupported(lines[i])
-            line, k = lines[n], 0
-            continue
-        c = line[k]
-        if c == "#":
-            if depth == 0:
-                return n, line[k:], inner
-            inner.append(line[k:].strip())
-            k = len(line)
-        elif c in "[{":
-            depth += 1
-            k += 1
-        elif c in "]}":
-            depth -= 1
-            k += 1
-        elif c in "\"'":
-            n, line, k = _skip_string(lines, n, k)
-        elif c in " \t" and depth == 0:
-            j = k
-            while j < len(line) and line[j] in " \t":
-                j += 1
-            if j >= len(line) or line[j] == "#":
-                return n, line[k:], inner
-            k = j
-        else:
-            k += 1
-
-
-def _skip_string(lines: list[str], n: int, k: int) -> tuple[int, str, int]:
-    """Past the string starting at ``lines[n][k]``: (line index, that line, position after)."""
-    line = lines[n]
-    q = line[k]
-    triple = line.startswith(q * 3, k)
-    k += 3 if triple else 1
-    while True:
-        if k >= len(line):
-            if not triple:
-                raise _Unsupported(line)
-            n += 1
-            if n >= len(lines):
-                raise _Unsupported(line)
-            line, k = lines[n], 0
-            continue
-        c = line[k]
-        if c == "\\" and q == '"':
-            k += 2
-        elif c == q and (not triple or line.startswith(q * 3, k)):
-            k += 3 if triple else 1
-            if triple:                      # up to two more quotes belong to the string
-                while k < len(line) and line[k] == q:
-                    k += 1
-            return n, line, k
-        else:
-            k += 1
-
-
-# --------------------------------------------------------------------------- writing
 def _merge(spec: RoomSpec, original: str | None) -> tuple[str, list[str]]:
     if not original:
         return spec_to_toml(spec), []
     try:
-        layout = _layout(original)
-    except (_Unsupported, tomllib.TOMLDecodeError, KeyError, IndexError, TypeError):
+        layout = read_layout(original)
+    except (Unsupported, tomllib.TOMLDecodeError, KeyError, IndexError, TypeError):
         return _fallback(spec, original)
     d = spec_to_dict(spec)
     nl = layout.newline
@@ -310,7 +78,7 @@ def _merge(spec: RoomSpec, original: str | None) -> tuple[str, list[str]]:
     old = {k: [t for t in layout.tables[1:] if t.kind == k] for k in TABLE_ORDER}
 
     # Which original table each new table is written over (None: a new one).
-    pairs: dict[str, list[tuple[_Table | None, dict]]] = {}
+    pairs: dict[str, list[tuple[Table | None, dict]]] = {}
     lost: list[str] = []
     carried: dict[int, list[str]] = {}       # id(table) -> comment block moved above it
     end_extra: list[str] = []
@@ -338,7 +106,7 @@ def _merge(spec: RoomSpec, original: str | None) -> tuple[str, list[str]]:
         if id(t) not in deleted:
             continue
         cut = _last_blank(t.lead)
-        block = t.lead[:cut] if _comment_lines(t.lead[:cut]) else []
+        block = t.lead[:cut] if comment_lines(t.lead[:cut]) else []
         lost += t.comments(skip=len(block))
         if block:
             nxt = next((u for u in tables[j + 1:] if id(u) not in deleted), None)
@@ -411,7 +179,7 @@ def _last_blank(lines: list[str]) -> int:
     return 0
 
 
-def _kinds_in_order(layout: _Layout) -> list[str]:
+def _kinds_in_order(layout: Layout) -> list[str]:
     """The kinds of table in the order the original first has them, the others where the
     documented order puts them."""
     order: list[str] = []
@@ -430,7 +198,7 @@ def _kinds_in_order(layout: _Layout) -> list[str]:
     return order
 
 
-def _write_table(t: _Table, new: dict, out: list[str], carried: dict) -> None:
+def _write_table(t: Table, new: dict, out: list[str], carried: dict) -> None:
     out += carried.get(id(t), ())
     out += t.lead
     if t.header is not None:
@@ -459,7 +227,7 @@ def _write_table(t: _Table, new: dict, out: list[str], carried: dict) -> None:
                 out.append(e.prefix + toml_value(v) + e.trail)
         else:                                   # removed: its comments stay
             indent = e.prefix[:len(e.prefix) - len(e.prefix.lstrip())]
-            out += [indent + c for c in e.inner + _trail_comment(e.trail)]
+            out += [indent + c for c in e.inner + trail_comment(e.trail)]
         for k in after.get(e.key, ()):
             out.append(f"{toml_key(k)} = {toml_value(new[k])}")
     out += t.tail
@@ -468,7 +236,7 @@ def _write_table(t: _Table, new: dict, out: list[str], carried: dict) -> None:
 _NUMBER_OR_COMMENT = re.compile(r"#[^\n]*|[-+]?\d[\d_]*(?:\.\d[\d_]*)?(?:[eE][-+]?\d[\d_]*)?")
 
 
-def _numbers_in_place(e: _Entry, new) -> list[str] | None:
+def _numbers_in_place(e: Entry, new) -> list[str] | None:
     """A list of numbers written over several lines, changed but as long as it was: the lines
     with only the changed numbers rewritten, so its comments stay beside the numbers they were
     beside. None if it is not such a list."""
@@ -510,29 +278,6 @@ def _same(a, b) -> bool:
     return type(a) is type(b) and a == b
 
 
-def _content(d: dict):
-    """A hashable stand-in for an entry's content (equal for equal content; an int and a
-    float of the same value hash alike)."""
-    try:
-        k = tuple(d.items())
-        hash(k)
-        return k
-    except TypeError:           # lists or tables among the values
-        return _frozen(d)
-
-
-def _frozen(x):
-    if isinstance(x, bool):
-        return x
-    if isinstance(x, (int, float)):
-        return float(x)
-    if isinstance(x, list):
-        return tuple(_frozen(v) for v in x)
-    if isinstance(x, dict):
-        return tuple(sorted((k, _frozen(v)) for k, v in x.items()))
-    return x
-
-
 def _match(old: list[dict], new: list[dict], name: str,
            old_content: list | None = None) -> list[int | None]:
     """For each new entry of an array of tables, the original entry it continues (None: a new
@@ -543,10 +288,10 @@ def _match(old: list[dict], new: list[dict], name: str,
     m: list[int | None] = [None] * len(new)
     used: set[int] = set()
     by_content: dict = {}
-    for i, o in enumerate(old_content or [_content(o) for o in old]):
+    for i, o in enumerate(old_content or [content_key(o) for o in old]):
         by_content.setdefault(o, []).append(i)
     for j, x in enumerate(new):
-        free = by_content.get(_content(x))
+        free = by_content.get(content_key(x))
         if free:
             m[j] = free.pop(0)
             used.add(m[j])
