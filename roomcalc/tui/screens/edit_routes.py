@@ -8,10 +8,15 @@ from __future__ import annotations
 
 from textual.widgets import TabbedContent
 
+from roomcalc.present.places import TABLE_TITLES, place_on_screen
 from roomcalc.study.edits import change_bands, convert_units, set_item_fields, set_method
 from roomcalc.tui.messages import FieldEdited, MaterialWanted, RowAction
 from roomcalc.tui.widgets.record_table import RecordTable
 from roomcalc.tui.widgets.room_form import Unparsed
+
+
+#: The tables whose rows have a material (``m`` opens the chooser for them).
+MATERIAL_TABLES = ("surfaces", "objects", "candidates")
 
 
 class EditRoutes:
@@ -88,11 +93,18 @@ class EditRoutes:
         self._choose_material(msg.collection, msg.index)
 
     def action_material(self) -> None:
+        """``m``: choose the material of the highlighted row of the table shown on the left
+        (Surfaces, Objects or Treatments); the chooser names the row it will change."""
         tab = self.query_one("#edit", TabbedContent).active
-        if tab in ("surfaces", "objects"):
-            i = self.query_one(f"#t-{tab}", RecordTable).current_row
-            if i is not None:
-                self._choose_material(tab, i)
+        if tab not in MATERIAL_TABLES:
+            self.notify("m chooses the material of a row of Surfaces, Objects or Treatments: "
+                        "show one of those tables (2, 3 or 6) first.", timeout=6)
+            return
+        i = self.query_one(f"#t-{tab}", RecordTable).current_row
+        if i is None:
+            self.notify(f"{TABLE_TITLES[tab]} has no rows yet: a adds one.", timeout=6)
+            return
+        self._choose_material(tab, i)
 
     def _choose_material(self, coll: str, i: int) -> None:
         from roomcalc.tui.screens.materials import MaterialChooser
@@ -119,8 +131,9 @@ class EditRoutes:
                 for k, v in values.items():
                     setattr(item, k, v)
             self.apply(fn, f"{coll[:-1]} '{rec.name}': material")
+        row = place_on_screen(f"{coll}[{i}]", self.document.spec)
         self.app.push_screen(MaterialChooser(cat, kind, self.document.spec.bands, rec.material,
-                                             own), done)
+                                             own, changes=row), done)
 
     # ------------------------------------------------------------------ undo and redo
     def action_undo(self) -> None:

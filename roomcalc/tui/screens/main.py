@@ -17,7 +17,7 @@ from textual.containers import Horizontal, Vertical
 from textual.reactive import reactive
 from textual.css.query import NoMatches
 from textual.screen import Screen
-from textual.widgets import Static, TabbedContent, TabPane
+from textual.widgets import Input, Select, Static, TabbedContent, TabPane
 
 from roomcalc.engine.analysis import RoomResult
 from roomcalc.io.catalog import Catalog
@@ -78,6 +78,10 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
         Binding("f8", "view_tab('v-compare')", "Before/after", show=False,
                 id="main.view.compare"),
         Binding("f9", "view_tab('v-plan')", "Plan", show=False, id="main.view.plan"),
+        # Typing in a field types; Escape leaves the field for its tab bar, where the one-key
+        # shortcuts work again, and Down goes from a tab bar into its tab.
+        Binding("escape", "leave_field", "Leave the field", id="main.leave_field"),
+        Binding("down", "enter_tab", "Into the tab", show=False, id="main.enter_tab"),
     ]
 
     # repaint=False: a reactive on the screen would otherwise repaint the whole screen on each
@@ -429,9 +433,37 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
         self.recompute()
 
     def action_edit_tab(self, tab: str) -> None:
-        self.query_one("#edit", TabbedContent).active = tab
+        edit = self.query_one("#edit", TabbedContent)
+        edit.active = tab
         if tab != "room":   # the table of the new tab takes the keys (the old one is hidden)
             self.call_after_refresh(self.query_one(f"#t-{tab} #table").focus)
+        else:               # its tab bar: a digit typed next switches tabs, not into a field
+            self.call_after_refresh(edit.query_one("ContentTabs").focus)
+
+    def _field_focused(self):
+        """The focused text field or drop-down of this screen (None when the focus is on a
+        table, a tab bar or a button)."""
+        focused = self.focused
+        return focused if isinstance(focused, (Input, Select)) else None
+
+    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
+        if action == "leave_field":
+            return self._field_focused() is not None
+        if action == "enter_tab":
+            return self.focused is not None and type(self.focused).__name__ == "ContentTabs"
+        return True
+
+    def action_leave_field(self) -> None:
+        """Escape in a field: the focus goes to the bar of the tabs the field is in."""
+        field = self._field_focused()
+        tabs = next((a for a in field.ancestors if isinstance(a, TabbedContent)), None) \
+            if field is not None else None
+        if tabs is not None:
+            tabs.query_one("ContentTabs").focus()
+
+    def action_enter_tab(self) -> None:
+        """Down on a tab bar: the focus goes to the first thing in the tab shown."""
+        self.focus_next()
 
     def action_view_tab(self, tab: str) -> None:
         view = self.query_one("#view", TabbedContent)

@@ -41,6 +41,8 @@ class MaterialChooser(ModalScreen[tuple | None]):
     MaterialChooser { align: center middle; }
     MaterialChooser > Vertical { width: 96%; height: 94%; border: thick $primary;
                                  background: $surface; padding: 0 1; }
+    MaterialChooser #title { text-style: bold; }
+    MaterialChooser #hint { color: $text-muted; }
     MaterialChooser #search-row { height: auto; }
     MaterialChooser #words { width: 1fr; }
     MaterialChooser #category { width: 30; }
@@ -56,8 +58,11 @@ class MaterialChooser(ModalScreen[tuple | None]):
                 Binding("ctrl+f", "focus_search", "Search", id="chooser.search")]
 
     def __init__(self, catalog: Catalog, kind: str, bands, current: str | None = None,
-                 current_values: list | None = None) -> None:
+                 current_values: list | None = None, changes: str = "") -> None:
+        """``changes``: the row the choice will change, as the screen names it
+        (``Surfaces row 1 "Floor"``), shown in the title."""
         super().__init__()
+        self.changes = changes
         self.catalog, self.kind, self.bands = catalog, kind, tuple(bands)
         self.current, self.current_values = current, current_values
         self._shown: list[Material] = []
@@ -65,9 +70,11 @@ class MaterialChooser(ModalScreen[tuple | None]):
 
     def compose(self) -> ComposeResult:
         with Vertical():
-            yield Static(f"Choose a {'surface material' if self.kind == 'surface' else 'kind of object'}"
-                         " - type words to search; Enter picks the highlighted row",
-                         id="title")
+            what = "surface material" if self.kind == "surface" else "kind of object"
+            target = f" for {self.changes}" if self.changes else ""
+            yield Static(f"Choose a {what}{target}", id="title", markup=False)
+            yield Static("Type words to search; Enter picks the highlighted row; Esc leaves "
+                         "it as it was", id="hint")
             with Horizontal(id="search-row"):
                 yield Input(placeholder="search: words of the name, e.g. wool 50", id="words")
                 cats = sorted({m.category for m in self.catalog.materials.values()

@@ -39,8 +39,10 @@ class PlanRtTable(BandTable):
         self._flush()
 
 
-class PlanView(VerticalScroll):
-    """Criterion, method and objective; the candidates with a tick each; the plan."""
+class PlanView(VerticalScroll, can_focus=False):
+    """Criterion, method and objective; the candidates with a tick each; the plan. The view
+    itself takes no focus (its fields, list and buttons do: a focus stop must show where it
+    is); its keys work wherever the focus is inside it."""
 
     DEFAULT_CSS = """
     PlanView { height: 1fr; }
