@@ -39,6 +39,8 @@ class GridColumn:
     width: int | None = None            # fixed content width; None = as wide as the widest cell
     justify: str = "left"               # or "right"
     content_width: int = 0              # the width used now
+    shrink_to: int | None = None        # text that may be cut (with an ellipsis) to this width
+    #                                     so that the grid's first columns fit its view
 
 
 class CellGrid(ScrollView, can_focus=True):
@@ -134,12 +136,15 @@ class CellGrid(ScrollView, can_focus=True):
         self._styles: dict[str, Style] = {}
         self._parsed: dict[str, Style] = {}
         self._label_width = 0
+        # How many leading columns must fit the view without scrolling sideways: columns with
+        # a ``shrink_to`` among them are cut to make room (names, never numbers).
+        self.keep_in_view = 0
 
     # ------------------------------------------------------------------ columns and rows
     def add_column(self, label: str, *, key: str | None = None, width: int | None = None,
-                   justify: str = "left") -> str:
+                   justify: str = "left", shrink_to: int | None = None) -> str:
         key = key if key is not None else str(len(self.columns))
-        self.columns[key] = GridColumn(key, str(label), width, justify)
+        self.columns[key] = GridColumn(key, str(label), width, justify, shrink_to=shrink_to)
         self._cache.clear()
         self._widths.clear()
         self._changed()
@@ -350,6 +355,7 @@ class CellGrid(ScrollView, can_focus=True):
             widths.append(w)
         label_w = (max((cell_len(x) for x in self._labels), default=0) + 2 * PAD
                    if self.show_row_labels and any(self._labels) else 0)
+        self._fit(widths, label_w)
         if widths != [c.content_width for c in self.columns.values()] \
                 or label_w != self._label_width:
             for col, w in zip(self.columns.values(), widths):
@@ -377,6 +383,28 @@ class CellGrid(ScrollView, can_focus=True):
                 if self.is_mounted and self.container_size:
                     self._scroll_update(size)   # the scrollbars now, in the same frame
         self.refresh()
+
+    def _fit(self, widths: list[int], label_w: int) -> None:
+        """Narrow the cuttable columns among the first ``keep_in_view`` (the widest first, to
+        their ``shrink_to``) until those columns fit the view; the rest scroll sideways."""
+        view = self.size.width - (self.scrollbar_size_vertical if self.is_mounted else 0)
+        k = min(self.keep_in_view, len(widths))
+        if not k or view <= 0:
+            return
+        cols = list(self.columns.values())
+        excess = label_w + sum(widths[:k]) + 2 * PAD * k - view
+        while excess > 0:
+            cuttable = [j for j in range(k) if cols[j].shrink_to is not None
+                        and widths[j] > cols[j].shrink_to]
+            if not cuttable:
+                return
+            j = max(cuttable, key=lambda i: widths[i])
+            widths[j] -= 1
+            excess -= 1
+
+    def on_resize(self, event: events.Resize) -> None:
+        if self.keep_in_view:
+            self._changed()
 
     def _move_thumbs(self, size: Size) -> None:
         """Tell the scrollbars the new scrolled size; each redraws only if its own numbers
@@ -450,7 +478,7 @@ class CellGrid(ScrollView, can_focus=True):
             w = col.content_width
             n = cell_len(text)
             if n > w:
-                text = text[:max(0, w - 1)] + "~" if w > 1 else text[:w]
+                text = text[:max(0, w - 1)] + "\u2026" if w > 1 else text[:w]
                 n = cell_len(text)
             text = " " * (w - n) + text if col.justify == "right" else text + " " * (w - n)
             style = own + cursor_style if cursor is not None and cursor in (j, -1) else own

@@ -40,6 +40,11 @@ class Column:
     extra: dict = field(default_factory=dict)
 
 
+#: The narrowest a column of text may be cut to (with an ellipsis) so that the table's
+#: leading columns fit its pane; other kinds (numbers) are never cut.
+SHRINK_TO = {"text": 8, "material": 10, "choice": 6}
+
+
 def fmt_value(v, kind: str) -> str:
     if v is None:
         return ""
@@ -155,8 +160,16 @@ class RecordTable(Vertical):
     def on_mount(self) -> None:
         table = self.query_one("#table", CellGrid)
         table.cursor_moved = lambda coordinate: self._detail(coordinate.row)
+        self._add_columns(table)
+
+    def _add_columns(self, table: CellGrid) -> None:
+        """The grid's columns; the leading ones up to the first per-band list stay in view,
+        names and materials cut to make room (numbers never are)."""
         for col in self.columns:
-            table.add_column(col.label, key=col.key, width=col.width)
+            table.add_column(col.label, key=col.key, width=col.width,
+                             shrink_to=SHRINK_TO.get(col.kind))
+        lists = [i for i, col in enumerate(self.columns) if col.kind == "numbers"]
+        table.keep_in_view = lists[0] if lists else len(self.columns)
 
     # ---------------------------------------------------------------- downward
     def set_columns(self, columns: list[Column]) -> None:
@@ -167,8 +180,7 @@ class RecordTable(Vertical):
             return
         table = self.query_one("#table", CellGrid)
         table.clear(columns=True)
-        for col in self.columns:
-            table.add_column(col.label, key=col.key, width=col.width)
+        self._add_columns(table)
         self.records = []
 
     def set_records(self, records: list, annotations: dict | None = None) -> None:
