@@ -17,7 +17,9 @@ Escape closes it.
 | Key | What it does |
 |---|---|
 | Tab / Shift+Tab | move between panels |
-| 1 to 6 | the Room, Surfaces, Objects, Sources, Receivers, Treatments tabs |
+| 1 to 6 | the Room, Surfaces, Objects, Sources, Receivers, Treatments tabs (when the focus is not in a field) |
+| Escape in a field | leave the field for its tab bar, where 1 to 6 and the other one-key shortcuts work |
+| Down on a tab bar | go into the tab |
 | F5 to F9 | the result tabs: reverberation, level vs distance, receivers, before/after, plan |
 | Enter or click on a cell | edit it (a material cell opens the material chooser) |
 | Enter / Escape in the editor line | apply / cancel |
@@ -25,7 +27,7 @@ Escape closes it.
 | c | copy (duplicate) the highlighted row |
 | Delete or x | delete the highlighted row |
 | Ctrl+Up / Ctrl+Down (or K / J) | move the row up / down |
-| m | choose a material for the highlighted surface or object |
+| m | choose a material for the highlighted surface, object or treatment (the chooser names the row it changes) |
 | p | pin the room as it is now as "before"; the before/after tab compares with it |
 | b | change the reverberant model: diffuse field (4/R) or Barron & Lee |
 | r / Space (in the plan tab) | make the plan / tick a treatment in or out |
@@ -58,7 +60,7 @@ kept from before").
   parts shown; dB(A) with IEC 61672-1 weights.
 - **Schroeder f_S**: `2000 sqrt(T / V)`; below it room modes dominate and these figures are rough.
 - **NRC, SAA~, alpha_w**: single-number ratings of a material (ASTM C423, ISO 11654).
-- **Plan** (F9): the cheapest (or smallest) set of treatments from tab 6 that brings RT60 per
+- **Plan** (F9): the cheapest (or smallest) set of treatments from the Treatments tab (key 6) that brings RT60 per
   band into the target window (a criterion such as DIN 18041 or ANSI S12.60, or the room file's
   own limits) and levels at receivers under their limits, by linear programming (whole units and
   panels by mixed-integer programming). "Apply to the room" makes it one undoable edit. The plan

@@ -162,7 +162,19 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
         self.stop_plan(None, notify=False)    # closing: the planner stops at its next step
 
     def _layout_for(self, width: int) -> None:
-        _toggle(self, width < 110, "narrow")
+        narrow = width < 110
+        _toggle(self, narrow, "narrow")
+        # The room's six tabs with their digits need about 70 columns: side by side, a
+        # narrower left half shows the titles alone (1-6 still switch; the help says so), so
+        # that the sixth, Treatments, is not hidden off the edge.
+        digits = narrow or width * 0.45 >= 70
+        if digits != getattr(self, "_tab_digits", None) and self._opt("#edit") is not None:
+            self._tab_digits = digits
+            edit = self.query_one("#edit", TabbedContent)
+            edit.set_class(not digits, "short-tabs")
+            for n, coll in enumerate(EDIT_TABS, 1):
+                title = TAB_TITLES.get(coll, coll.capitalize())
+                edit.get_tab(coll).label = f"{n} {title}" if digits else title
 
 
     # ------------------------------------------------------------------ tables and title

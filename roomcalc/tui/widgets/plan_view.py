@@ -123,11 +123,15 @@ class PlanView(VerticalScroll, can_focus=False):
         for key, label, just in (("use", "use", "left"), ("name", "candidate", "left"),
                                  ("where", "where", "left"), ("max", "up to", "right"),
                                  ("cost", "cost", "right")):
-            g.add_column(label, key=key, justify=just)
+            g.add_column(label, key=key, justify=just,
+                         shrink_to=10 if key in ("name", "where") else None)
+        g.keep_in_view = len(g.columns)        # names are cut so that the cost shows
         items = self.query_one("#plan-items", CellGrid)
         for key, label, just in (("what", "plan", "left"), ("where", "where", "left"),
                                  ("amount", "how much", "right"), ("cost", "cost", "right")):
-            items.add_column(label, key=key, justify=just)
+            items.add_column(label, key=key, justify=just,
+                             shrink_to=10 if key in ("what", "where") else None)
+        items.keep_in_view = len(items.columns)
         items.display = False
         self.query_one("#plan-rt").display = False
         self.query_one("#plan-stop").display = False     # shown while a plan is being made
@@ -173,7 +177,7 @@ class PlanView(VerticalScroll, can_focus=False):
         levels = ", ".join(f"{k} <= {v:g} dB(A)" for k, v in (t.max_level_dba if t else {}).items())
         self.query_one("#plan-head", Static).update(
             "What the room must reach, and the cheapest treatment to get there. The "
-            "treatments are edited in tab 6; Space ticks one in or out, r plans, "
+            "treatments are edited in the Treatments tab (key 6); Space ticks one in or out, r plans, "
             "Escape stops a plan being made."
             + (f"\nLevel goals: {levels}" if levels else ""))
         rows, self._names = [], []
