@@ -145,3 +145,29 @@ async def test_after_f9_a_digit_switches_tabs_and_types_nothing(room_file, catal
         await _settle(pilot)
         assert type(screen.focused).__name__ == "ContentTabs"
         assert screen.query_one("#view", TabbedContent).active == "v-plan"
+
+
+async def test_the_plan_is_applied_with_the_key_a(room_file, catalog):
+    """Apply could only be reached by clicking or many Tabs; a applies a plan that is shown,
+    and does nothing before there is one (the key line offers it only then)."""
+    app = _app(room_file("workshop.toml"), catalog)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await _settle(pilot, 20)
+        screen = app.screen
+        doc = screen.document
+        await pilot.press("f9")
+        await _settle(pilot)
+        await pilot.press("a")                 # no plan yet: nothing happens
+        await _settle(pilot)
+        assert not doc.undo_stack
+        assert "Apply the plan" not in str(screen.query_one("#keys").content)
+        await pilot.press("r")
+        for _ in range(200):
+            await pilot.pause()
+            if not screen.query_one("#plan-apply").disabled:
+                break
+        await _settle(pilot)
+        assert "Apply the plan" in str(screen.query_one("#keys").content)
+        await pilot.press("a")
+        await _settle(pilot)
+        assert [s.label for s in doc.undo_stack] == ["apply the treatment plan"]

@@ -63,6 +63,7 @@ class PlanView(VerticalScroll, can_focus=False):
         Binding("space", "toggle", "Use or not", id="plan.toggle"),
         Binding("r", "run", "Plan", id="plan.run"),
         Binding("escape", "stop", "Stop the plan", id="plan.stop"),
+        Binding("a", "apply", "Apply the plan", id="plan.apply"),
     ]
 
     class Run(Message):
@@ -108,7 +109,7 @@ class PlanView(VerticalScroll, can_focus=False):
                          id="plan-objective", allow_blank=False)
             yield Button("Plan (r)", id="plan-run", variant="primary")
             yield Button("Stop (Esc)", id="plan-stop", variant="warning", disabled=True)
-            yield Button("Apply", id="plan-apply", disabled=True)
+            yield Button("Apply (a)", id="plan-apply", disabled=True)
         yield CellGrid(cursor_type="row", zebra_stripes=True, show_row_labels=False,
                        id="plan-candidates")
         yield Static("", id="plan-result", markup=False)
@@ -227,7 +228,7 @@ class PlanView(VerticalScroll, can_focus=False):
         lines = [f"{name}: {b:.1f} -> {a:.1f} dB(A)" for name, b, a in plan_levels(run)]
         lines += [f"! {r}" for r in p.reasons]
         self.query_one("#plan-reasons", Static).update("\n".join(lines))
-        self.query_one("#plan-apply", Button).disabled = not p.items
+        self._can_apply(bool(p.items))
         self.call_after_refresh(self.query_one("#plan-result").scroll_visible, animate=False)
 
     def show_message(self, text: str) -> None:
@@ -235,7 +236,7 @@ class PlanView(VerticalScroll, can_focus=False):
         self.query_one("#plan-items").display = False
         self.query_one("#plan-rt").display = False
         self.query_one("#plan-reasons", Static).update("")
-        self.query_one("#plan-apply", Button).disabled = True
+        self._can_apply(False)
 
     def showing(self, text: str) -> bool:
         """The result line says ``text`` now."""
@@ -266,7 +267,7 @@ class PlanView(VerticalScroll, can_focus=False):
         text = str(res.content)
         if text and not text.startswith("(The room changed"):
             res.update("(The room changed since this plan: press r to plan again.)\n" + text)
-            self.query_one("#plan-apply", Button).disabled = True
+            self._can_apply(False)
 
     # ------------------------------------------------------------------ upward
     def action_toggle(self) -> None:
@@ -285,10 +286,21 @@ class PlanView(VerticalScroll, can_focus=False):
         g.set_rows(rows, keys=self._names)
 
     def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
+        if action == "apply":           # a applies a plan that is shown and can be applied
+            apply = self.query("#plan-apply")
+            return bool(apply) and not apply.first().disabled
         if action == "stop":            # Escape stops a plan; with none running it is left free
             stop = self.query("#plan-stop")
             return (bool(stop) and stop.first().display) or None
         return True
+
+    def _can_apply(self, can: bool) -> None:
+        """Enable Apply (its button and the key a) or not."""
+        self.query_one("#plan-apply", Button).disabled = not can
+        self.refresh_bindings()
+
+    def action_apply(self) -> None:
+        self.post_message(self.Apply())
 
     def action_stop(self) -> None:
         self.post_message(self.Stop())
