@@ -8,7 +8,6 @@ from textual.widgets import TabbedContent
 
 from roomcalc.tui.app import AppConfig, make_app
 from roomcalc.tui.document import Document
-from roomcalc.tui.widgets.grid import PAD
 
 
 def _app(path, catalog):
@@ -25,7 +24,7 @@ def _right_edge_of_column(grid, key: str) -> int:
     """Where a column ends, in the grid's own columns (0 = its left edge)."""
     x = grid._label_width if hasattr(grid, "_label_width") else 0
     for k, col in grid.columns.items():
-        x += col.content_width + 2 * PAD
+        x += col.outer_width
         if k == key:
             return x
     raise KeyError(key)
@@ -86,3 +85,28 @@ async def test_the_key_line_keeps_help_and_quit_at_80x24(room_file, catalog):
             text = str(strip.content)
             assert "Help" in text and "Quit" in text, (keys, text)
             assert len(text) <= strip.size.width, (keys, text)
+
+
+async def test_before_after_shows_every_band_and_dba_at_120x40(room_file, catalog):
+    app = _app(room_file("workshop.toml"), catalog)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await _settle(pilot, 20)
+        await pilot.press("p", "f9")
+        await _settle(pilot)
+        await pilot.press("r")
+        for _ in range(200):
+            await pilot.pause()
+            if not app.screen.query_one("#plan-apply").disabled:
+                break
+        await pilot.press("a")
+        await _settle(pilot)
+        await pilot.press("f8")
+        await _settle(pilot)
+        table = app.screen.query_one("#compare-table")
+        assert table.row_count > 5
+        assert _right_edge_of_column(table, "extra") <= table.size.width
+        # Headings run on over the empty cells: the receivers' names are whole.
+        first = str(app.screen.document.spec.receivers[0].name)
+        line = "".join(seg.text for seg in table.render_line(
+            [str(r[0]).strip() for r in table._rows].index(f"{first} [dB]") + 1))
+        assert f"{first} [dB]" in line

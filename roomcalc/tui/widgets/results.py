@@ -20,6 +20,7 @@ class BandTable(CellGrid):
 
     def __init__(self, *, extra: str | None = None, id: str | None = None) -> None:
         super().__init__(cursor_type="row", zebra_stripes=True, show_row_labels=False, id=id)
+        self.headings = True
         self.extra = extra
         self._bands: tuple = ()
 
@@ -29,12 +30,15 @@ class BandTable(CellGrid):
         if bands == self._bands and self.columns:
             return
         self.clear(columns=True)
-        self.add_column(first, key="label")
+        # The labels may be cut (with an ellipsis) so that every band fits the pane; the
+        # numbers are packed one blank apart.
+        self.add_column(first, key="label", shrink_to=12)
         for b in bands:
             self.add_column(f"{b:g}" if b < 1000 else f"{b / 1000:g}k", key=str(b),
-                            justify="right")
+                            justify="right", pad=(1, 0))
         if self.extra:
-            self.add_column(self.extra, key="extra", justify="right")
+            self.add_column(self.extra, key="extra", justify="right", pad=(2, 1))
+        self.keep_in_view = len(self.columns)
         self._bands = bands
 
     def _row(self, label, values, nd=2, extra=None, style: str = "") -> None:
@@ -43,6 +47,12 @@ class BandTable(CellGrid):
             cells.append("" if extra is None else fmt(extra, 1))
         self._pending.append(cells)
         self._pending_styles.append(style)
+
+    def _heading(self, label: str) -> None:
+        """A row with a label and no numbers, heading the rows under it (its label runs on
+        over the empty cells when it is longer than the label column)."""
+        self._pending.append([label] + [""] * (len(self.columns) - 1))
+        self._pending_styles.append("bold")
 
     def _flush(self) -> None:
         """Show the rows collected since _columns; only rows that differ are drawn again."""
@@ -94,16 +104,21 @@ class CompareTable(BandTable):
     def show(self, cmp: Comparison, method: str) -> None:
         b, a = cmp.before, cmp.after
         self._columns(b.bands_hz, "before / after")
-        self._row(f"RT60 {METHOD_TITLES[method]} before [s]", b.rt60_s[method])
-        self._row("  after [s]", a.rt60_s[method], style="bold")
-        self._row("  change [s]", a.rt60_s[method] - b.rt60_s[method])
+        # Short labels under a heading row each (the method is named in the line above the
+        # table), so that every band and dB(A) fit a half-screen pane.
+        self._heading(f"RT60 {METHOD_TITLES[method]} [s]")
+        self._row("  before", b.rt60_s[method])
+        self._row("  after", a.rt60_s[method], style="bold")
+        self._row("  change", a.rt60_s[method] - b.rt60_s[method])
         # A change like the rows around it (negative = quieter), not the reduction (+0.0 so
         # that no change shows as 0.0, not -0.0).
-        self._row("Reverberant field change [dB]", -cmp.reverberant_reduction_db + 0.0, 1)
+        self._heading("Reverberant level [dB]")
+        self._row("  change", -cmp.reverberant_reduction_db + 0.0, 1)
         before = {r.name: r for r in b.receivers}
         after = {r.name: r for r in a.receivers}
         for c in cmp.receivers:
-            self._row(f"{c.name} before", before[c.name].level_db, 1, before[c.name].level_dba)
+            self._heading(f"{c.name} [dB]")
+            self._row("  before", before[c.name].level_db, 1, before[c.name].level_dba)
             self._row("  after", after[c.name].level_db, 1, after[c.name].level_dba,
                       style="bold")
             self._row("  change", c.level_change_db, 1, c.level_change_dba)
