@@ -121,7 +121,7 @@ async def test_material_change_through_chooser(room_file, catalog, engine, scree
         await pilot_keys.type_words(pilot, words)
         expected = [m.id for m in catalog.search(words, None, "surface")]
         lst = app.screen.query_one("#list", screen_tables.CellGrid)
-        assert [str(lst.get_row_at(i)[0]) for i in range(lst.row_count)] == expected
+        assert [lst.row_key(i) for i in range(lst.row_count)] == expected
         assert len(expected) > 1
         await pilot.press("enter")
         await pilot.pause()

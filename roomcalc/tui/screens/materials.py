@@ -50,7 +50,7 @@ class MaterialChooser(ModalScreen[tuple | None]):
     MaterialChooser #list { width: 3fr; }
     MaterialChooser #details { width: 2fr; padding: 0 1; border-left: solid $primary; }
     MaterialChooser #own-row { height: auto; }
-    MaterialChooser #own-row Static { width: auto; padding: 1 0 0 0; }
+    MaterialChooser #own-label { height: auto; padding: 1 0 0 0; }
     MaterialChooser #own { width: 1fr; }
     MaterialChooser #own-error { color: $error; height: auto; }
     """
@@ -85,8 +85,11 @@ class MaterialChooser(ModalScreen[tuple | None]):
                                id="list")
                 yield Static("", id="details", markup=False)
             unit = "alpha per band" if self.kind == "surface" else "m^2 per unit per band"
+            # The words on a line of their own, so that the field and its button keep their
+            # room on a narrow screen.
+            yield Static(f"Or your own {unit} ({', '.join(map(str, self.bands))} Hz):",
+                         id="own-label")
             with Horizontal(id="own-row"):
-                yield Static(f"Or your own {unit} ({', '.join(map(str, self.bands))} Hz): ")
                 yield Input(" ".join(f"{x:g}" for x in (self.current_values or [])),
                             placeholder="0.10 0.25 0.60 0.85 0.90 0.90", id="own")
                 yield Button("Use these", id="use-own")
@@ -94,13 +97,15 @@ class MaterialChooser(ModalScreen[tuple | None]):
 
     def on_mount(self) -> None:
         table = self.query_one("#list", CellGrid)
-        table.add_column("id", key="id")
-        table.add_column("name", key="name")
+        # The name first, cut to fit before the ratings are (the id is in the details).
+        table.add_column("name", key="name", shrink_to=16)
         if self.kind == "surface":
             table.add_column("NRC", key="nrc", justify="right")
             table.add_column("alpha_w", key="aw")
         else:
             table.add_column("500 Hz m^2", key="v500", justify="right")
+        table.add_column("id", key="id")
+        table.keep_in_view = len(table.columns) - 1
         self._fill()
         self.query_one("#words", Input).focus()
 
@@ -122,9 +127,9 @@ class MaterialChooser(ModalScreen[tuple | None]):
         if row is None:
             if self.kind == "surface":
                 nrc, _saa, aw = m.ratings()
-                row = [m.id, m.name, f"{nrc:.2f}", f"{aw.label()} {aw.absorption_class}"]
+                row = [m.name, f"{nrc:.2f}", f"{aw.label()} {aw.absorption_class}", m.id]
             else:
-                row = [m.id, m.name, f"{m.values.get(500, 0):.2f}"]
+                row = [m.name, f"{m.values.get(500, 0):.2f}", m.id]
             self._rows[m.id] = row
         return row
 
