@@ -163,13 +163,14 @@ class RecordTable(Vertical):
         self._add_columns(table)
 
     def _add_columns(self, table: CellGrid) -> None:
-        """The grid's columns; the leading ones up to the first per-band list stay in view,
-        names and materials cut to make room (numbers never are)."""
+        """The grid's columns; the leading ones (up to the material, else the name and the
+        next) stay in view, names and materials cut to make room (numbers never are)."""
         for col in self.columns:
             table.add_column(col.label, key=col.key, width=col.width,
                              shrink_to=SHRINK_TO.get(col.kind))
-        lists = [i for i, col in enumerate(self.columns) if col.kind == "numbers"]
-        table.keep_in_view = lists[0] if lists else len(self.columns)
+        kinds = [col.kind for col in self.columns]
+        table.keep_in_view = kinds.index("material") + 1 if "material" in kinds \
+            else min(2, len(kinds))
 
     # ---------------------------------------------------------------- downward
     def set_columns(self, columns: list[Column]) -> None:
