@@ -51,7 +51,9 @@ class PlanView(VerticalScroll, can_focus=False):
     PlanView #plan-controls-2 Select { width: 1fr; }
     PlanView #plan-controls-2 Button { width: auto; min-width: 8; margin: 0 1; }
     PlanView #plan-head, PlanView #plan-result { height: auto; padding: 0 1; }
-    PlanView #plan-own { margin: 0 1; }
+    PlanView #plan-own-row { height: 1; margin: 0 1; }
+    PlanView #plan-own-label { width: auto; color: $text-muted; }
+    PlanView #plan-own { width: 1fr; background: $boost; }
     PlanView #plan-own-error { height: auto; color: $error; padding: 0 1; display: none; }
     PlanView #plan-check { height: auto; max-height: 12; padding: 0 1; color: $text-muted; }
     PlanView #plan-candidates { height: auto; max-height: 8; }
@@ -97,8 +99,11 @@ class PlanView(VerticalScroll, can_focus=False):
         yield Static("", id="plan-head", markup=False)
         with Horizontal(id="plan-controls"):
             yield Select([("No RT target", NONE)], id="plan-criterion", allow_blank=False)
-        yield Input(placeholder="or your own RT60 limit [s]: one value, or one per band",
-                    id="plan-own", compact=True)
+        # A field that looks like one (a compact field alone read as a line of text).
+        with Horizontal(id="plan-own-row"):
+            yield Static("or your own RT60 limit [s] ", id="plan-own-label", markup=False)
+            yield Input(placeholder="one value, or one per band; Enter", id="plan-own",
+                        compact=True)
         yield Static("", id="plan-own-error", markup=False)
         with Horizontal(id="plan-controls-2"):
             yield Select([("recommended formula", RECOMMENDED)] +
