@@ -110,3 +110,21 @@ async def test_before_after_shows_every_band_and_dba_at_120x40(room_file, catalo
         line = "".join(seg.text for seg in table.render_line(
             [str(r[0]).strip() for r in table._rows].index(f"{first} [dB]") + 1))
         assert f"{first} [dB]" in line
+
+
+async def test_at_80x24_the_half_being_used_gets_more_height(room_file, catalog):
+    """One column at 80x24: the Plan tab's controls and list did not fit a quarter of the
+    screen, and the surface table showed one row while a cell was edited."""
+    app = _app(room_file("classroom.toml"), catalog)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await _settle(pilot, 20)
+        screen = app.screen
+        left, right = screen.query_one("#left"), screen.query_one("#right")
+        await pilot.press("enter")                 # edit a cell of the surfaces
+        await _settle(pilot)
+        assert left.size.height > right.size.height
+        assert screen.query_one("#t-surfaces #table").size.height >= 4
+        await pilot.press("escape", "f9")
+        await _settle(pilot)
+        assert right.size.height > left.size.height
+        assert screen.query_one("#plan-candidates").region.height >= 2

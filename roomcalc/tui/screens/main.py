@@ -158,6 +158,14 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
     def on_resize(self, event) -> None:
         self._layout_for(event.size.width)
 
+    def on_descendant_focus(self, event) -> None:
+        # On a small screen (one column) the half the user works in gets more of the height:
+        # the Plan tab's controls and list do not fit a quarter of 80x24.
+        right = self._opt("#right")
+        if right is not None:
+            _toggle(self.query_one("#body"), right in event.widget.ancestors_with_self,
+                    "right-focus")
+
     def on_unmount(self) -> None:
         self.stop_plan(None, notify=False)    # closing: the planner stops at its next step
 
