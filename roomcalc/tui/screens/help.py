@@ -34,6 +34,7 @@ Escape closes it.
 | Ctrl+S / F2 | save / save as |
 | Ctrl+O / Ctrl+N | open / new room |
 | Ctrl+P | the command palette: every action by name |
+| Ctrl+E (or a click on the strip at the bottom) | show every error, warning and caution in full, or fold them again |
 | F1 or ? | this help |
 | Ctrl+Q | quit (asks first when there are unsaved changes) |
 

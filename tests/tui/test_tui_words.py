@@ -1,0 +1,80 @@
+"""Words a non-expert understands, in the interface: the strip of findings at 80 x 24 (errors
+before warnings before cautions, each kind counted and visible)."""
+
+from __future__ import annotations
+
+from roomcalc.tui.app import AppConfig, make_app
+from roomcalc.tui.document import Document
+from roomcalc.tui.widgets.results import FindingsStrip
+
+SMALL = (80, 24)
+
+
+def _app(path, catalog):
+    return make_app(Document.open(path), catalog,
+                    AppConfig(offer_recovery=False, theme="textual-dark"))
+
+
+async def _ready(pilot):
+    for _ in range(100):
+        await pilot.pause()
+        if getattr(pilot.app.screen, "result", None) is not None:
+            return
+    raise AssertionError("no result on screen")
+
+
+def _visible(strip: FindingsStrip) -> list[str]:
+    """The strip's lines that the terminal shows (it is scrolled to the top)."""
+    lines = strip.render().plain.splitlines() if hasattr(strip.render(), "plain") else \
+        str(strip.render()).splitlines()
+    assert strip.scroll_y == 0
+    return lines[:strip.size.height]
+
+
+async def test_findings_strip_counts_and_shows_every_kind_at_80x24(room_file, catalog):
+    """The workshop is loud (a hearing caution for each worker) and has warnings; a negative
+    area adds errors. Folded, the strip shows the counts and a line of each kind, errors
+    first; unfolded (Ctrl+E) it holds every item in full."""
+    app = _app(room_file("workshop.toml"), catalog)
+    async with app.run_test(size=SMALL) as pilot:
+        await _ready(pilot)
+        screen = app.screen
+        strip = screen.query_one(FindingsStrip)
+        res = screen.result
+        loud = [c for c in res.cautions if c.startswith("'")]
+        assert loud and res.warnings                      # the room as shipped has both
+
+        def bad(spec):
+            spec.surfaces[0].area = -5.0
+            spec.surfaces[1].area = -6.0
+        screen.apply(bad, "two bad areas")
+        await pilot.pause()
+        await pilot.pause()
+        assert len(screen.problems) >= 2
+        counts = strip.counts()
+        assert counts == {"error": len(screen.problems), "warning": len(res.warnings),
+                          "caution": len(loud)}
+        shown = _visible(strip)
+        want = (f"{len(screen.problems)} errors, "
+                f"{len(res.warnings)} warning{'s' if len(res.warnings) != 1 else ''}, "
+                f"{len(loud)} caution{'s' if len(loud) != 1 else ''}")
+        assert shown[0].startswith(want), shown
+        first = {k: next((i for i, line in enumerate(shown) if line.startswith(k)), None)
+                 for k in ("Error:", "Warning:", "CAUTION")}
+        assert None not in first.values(), shown          # one line of each kind is visible
+        assert first["Error:"] < first["Warning:"] < first["CAUTION"], shown
+        assert strip.region.bottom <= SMALL[1] and strip.size.height == len(shown)
+        assert "show all" in shown[0]
+
+        await pilot.press("ctrl+e")
+        await pilot.pause()
+        full = " ".join(str(strip.render()).split())
+        for p in screen.problems:
+            assert " ".join(p.split()) in full
+        for w in res.warnings:
+            assert " ".join(w.message.split()) in full
+        assert "hearing protection" in full
+        assert strip.size.height > len(shown)
+        await pilot.press("ctrl+e")
+        await pilot.pause()
+        assert _visible(strip) == shown
