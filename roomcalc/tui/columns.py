@@ -17,6 +17,7 @@ from roomcalc.engine.model import FACES
 from roomcalc.engine.spectra import SPECTRUM_SHAPES
 from roomcalc.io.catalog import Catalog
 from roomcalc.io.roomfile import RoomSpec
+from roomcalc.present.glossary import named
 from roomcalc.tui.widgets.record_table import Column
 
 
@@ -58,11 +59,12 @@ class RecordColumns:
                            show=self.show_absorption)]
         if coll == "sources":
             return [Column("name", "Name", optional=False),
-                    Column("sound_power", "Lw per band [dB]", "numbers", length=nb),
-                    Column("sound_power_dba", "LwA [dB(A)]", "number"),
+                    Column("sound_power", f"{named('Lw')} per band [dB]", "numbers", length=nb),
+                    Column("sound_power_dba", f"{named('LwA')} [dB(A)]", "number"),
                     Column("spectrum", "Spectrum", "choice", choices=tuple(SPECTRUM_SHAPES),
                            hint=", ".join(SPECTRUM_SHAPES)),
-                    Column("directivity", "Q", "number", show=self.show_q),
+                    Column("directivity", named("Q"), "number", show=self.show_q,
+                           hint="1 free, 2 on a surface, 4 at an edge, 8 in a corner"),
                     Column("placement", "Placement", "choice", choices=tuple(PLACEMENT_Q),
                            hint="free, surface, edge, corner"),
                     Column("position", "Position x y z", "position")]
@@ -171,7 +173,8 @@ class RecordColumns:
         if coll == "sources":
             lw = " ".join(f"{x:g}" for x in rec.sound_power) if rec.sound_power else \
                 f"{rec.sound_power_dba} dB(A), {rec.spectrum} spectrum"
-            return f"{rec.name}: Lw {lw}; Q {self.show_q(rec).strip('()')}"
+            return (f"{rec.name}: {named('Lw')} {lw}; "
+                    f"{named('Q')} {self.show_q(rec).strip('()')}")
         res = self.result
         if res is not None:
             r = next((x for x in res.receivers if x.name == rec.name), None)

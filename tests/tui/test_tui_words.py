@@ -78,3 +78,65 @@ async def test_findings_strip_counts_and_shows_every_kind_at_80x24(room_file, ca
         await pilot.press("ctrl+e")
         await pilot.pause()
         assert _visible(strip) == shown
+
+
+def _on_screen(widget, size) -> bool:
+    r = widget.region
+    return widget.display and r.height > 0 and r.bottom <= size[1] and r.right <= size[0]
+
+
+async def _symbols_named(room_file, catalog, size):
+    from roomcalc.present.glossary import SYMBOLS
+    from roomcalc.tui.widgets.grid import CellGrid
+
+    app = _app(room_file("garage-studio.toml"), catalog)
+    async with app.run_test(size=size) as pilot:
+        await _ready(pilot)
+        screen = app.screen
+        table = screen.query_one("#reverb-table", CellGrid)
+        labels = [str(table.get_row_at(i)[0]).removeprefix("> ").strip()
+                  for i in range(table.row_count)]
+        # Every row label that begins with a symbol: the symbol is named in words on the tab.
+        legend = screen.query_one("#reverb-legend")
+        assert _on_screen(legend, size), legend.region
+        shown = " ".join(str(legend.render()).split())
+        found = set()
+        for label in labels:
+            for sym in SYMBOLS:
+                if label == sym or label.startswith(sym + " "):
+                    found.add(sym)
+                    assert f"{sym} {SYMBOLS[sym]}" in shown, (label, shown)
+        assert {"R", "mean alpha", "r_c", "f_S", "air"} <= found
+        assert "critical distance" in shown and "room constant" in shown
+
+        await pilot.press("f7")                          # receivers: Lp and dB(A)
+        await pilot.pause()
+        legend = screen.query_one("#receiver-legend")
+        assert _on_screen(legend, size), legend.region
+        shown = str(legend.render())
+        assert "Lp sound level" in shown and "dB(A) A-weighted level" in shown
+
+        await pilot.press("4")                           # sources: Lw, LwA, Q in their heads
+        await pilot.pause()
+        heads = [str(c.label) for c in
+                 screen.query_one("#t-sources #table", CellGrid).columns.values()]
+        assert any(h.startswith("sound power Lw ") for h in heads), heads
+        assert any(h.startswith("A-weighted sound power LwA") for h in heads), heads
+        assert "directivity Q" in heads, heads
+
+
+async def test_symbols_named_in_words_120x40(room_file, catalog):
+    await _symbols_named(room_file, catalog, (120, 40))
+
+
+async def test_symbols_named_in_words_80x24(room_file, catalog):
+    await _symbols_named(room_file, catalog, SMALL)
+
+
+def test_help_explains_the_numbers():
+    from roomcalc.tui.screens.help import HELP
+
+    numbers = HELP.split("## The numbers", 1)[1]
+    for words in ("room constant", "critical distance", "Schroeder", "directivity",
+                  "sound power", "mean absorption"):
+        assert words in numbers, words
