@@ -6,7 +6,8 @@ told, if anything. The rules:
 
 - :func:`set_item_fields` -- set a field of a surface, object, source, receiver or candidate,
   clearing the keys that exclude it (typing alpha drops the material; a sound power per band
-  drops the dB(A) figure and its spectrum; a directivity drops the placement);
+  drops the dB(A) figures and their spectrum; one dB(A) figure, the sound power or the level
+  at 1 m, drops the other; a directivity drops the placement);
 - :func:`rename_item` -- rename an item and carry the new name to everything that names it
   (receivers' distances and ``source_hours``, candidates' ``surface``, the target's level
   limits);
@@ -24,11 +25,11 @@ from __future__ import annotations
 import math
 
 from roomcalc.engine.bands import DEFAULT_BANDS_HZ
-from roomcalc.engine.spectra import SPECTRUM_SHAPES, band_power_from_dba
 from roomcalc.io.catalog import Catalog
 from roomcalc.io.limits import RANGES
 from roomcalc.io.planning import convert_candidate_units
 from roomcalc.io.roomfile import RoomSpec, TargetSpec
+from roomcalc.io.sources import source_band_power, spectrum_names, spectrum_shape
 from roomcalc.io.units import UNITS
 from roomcalc.study.typed import parse_numbers
 
@@ -44,8 +45,9 @@ _EXCLUDES = {
     "surfaces": {"alpha": ("material",)},
     "objects": {"absorption": ("material",)},
     "candidates": {"alpha": ("material",), "absorption": ("material",)},
-    "sources": {"sound_power": ("sound_power_dba", "spectrum"),
-                "sound_power_dba": ("sound_power",),
+    "sources": {"sound_power": ("sound_power_dba", "level_dba_1m", "spectrum"),
+                "sound_power_dba": ("sound_power", "level_dba_1m"),
+                "level_dba_1m": ("sound_power", "sound_power_dba"),
                 "directivity": ("placement",),
                 "placement": ("directivity",)},
 }
@@ -71,7 +73,8 @@ def set_item_fields(spec: RoomSpec, collection: str, index: int, values: dict) -
         for other in _EXCLUDES.get(collection, {}).get(key, ()):
             if other not in values:
                 clear[other] = None
-    if collection == "sources" and values.get("sound_power_dba") is not None \
+    if collection == "sources" and (values.get("sound_power_dba") is not None
+                                    or values.get("level_dba_1m") is not None) \
             and item.spectrum is None and "spectrum" not in values:
         clear["spectrum"] = DEFAULT_SPECTRUM
     for key, value in {**clear, **values}.items():
@@ -230,14 +233,16 @@ def _spectrum_to_own(source, old, new, added) -> str | None:
     band powers as its own (the shape's, at the old bands; the nearest band repeated).
     Returns the shape's name when it did."""
     shape = source.spectrum
-    if source.sound_power_dba is None or not shape or not added:
+    if (source.sound_power_dba is None and source.level_dba_1m is None) or not shape \
+            or not added or shape not in spectrum_names():
         return None
-    table = SPECTRUM_SHAPES.get(shape, {})
+    table = spectrum_shape(shape)
     if all(b in table for b in added):
         return None
-    lw = band_power_from_dba(source.sound_power_dba, shape, old)
+    lw = source_band_power(None, source.sound_power_dba, source.level_dba_1m, shape,
+                           source.q, old)
     source.sound_power = nearest_band_fill([round(float(x), 1) for x in lw], old, new)
-    source.sound_power_dba = source.spectrum = None
+    source.sound_power_dba = source.level_dba_1m = source.spectrum = None
     return shape
 
 
