@@ -116,3 +116,25 @@ def test_typical_sources_file_checked(tmp_path):
     assert "sources[0].name: is empty" in text
     assert "sources[0].levels_1m.250: 300 is outside 0 to 200 dB" in text
     assert "missing bands 500, 1000, 2000, 4000 Hz" in text
+
+
+def test_cli_lists_the_typical_sources(capsys):
+    import json
+
+    from roomcalc.cli import main
+
+    assert main(["sources"]) == 0
+    out = capsys.readouterr().out
+    assert max(len(line) for line in out.splitlines()) <= 80
+    for t in typical_sources().values():
+        assert t.id in out and t.name in out
+    assert "59.5 dB(A) at 1 m" in out and "ANSI S3.5-1997, Table 3" in out
+    assert "from memory" in out and "our own demo scenario" in out
+    assert main(["sources", "--format", "json"]) == 0
+    data = {d["id"]: d for d in json.loads(capsys.readouterr().out)}
+    assert data["voice-raised"]["level_dba_1m"] == pytest.approx(66.5, abs=0.1)
+    assert data["planer"]["levels_1m_db"]["2000"] == 98.0
+    assert main(["sources", "--format", "csv"]) == 0
+    assert capsys.readouterr().out.startswith("id,name,level_dba_1m,")
+    assert main(["sources", "--format", "markdown"]) == 0
+    assert "| voice-normal |" in capsys.readouterr().out

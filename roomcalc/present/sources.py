@@ -1,0 +1,72 @@
+"""The typical sources listing (``roomcalc sources``) as text, markdown, JSON or CSV, and the
+lines the interface's source chooser shows of one of them."""
+
+from __future__ import annotations
+
+import csv
+import io
+
+from roomcalc.engine.bands import DEFAULT_BANDS_HZ
+from roomcalc.engine.field import PLACEMENT_Q
+from roomcalc.io.sources import TypicalSource
+from roomcalc.present.numbers import WIDTH, band_label, json_text, wrap
+
+__all__ = ["source_dict", "source_details", "sources_text", "SOURCES_NOTE"]
+
+_OCTAVES = (63, 125, 250, 500, 1000, 2000, 4000, 8000)
+
+#: What every listing of typical sources ends with.
+SOURCES_NOTE = ("Typical values for planning, not a measurement of your source: a measurement "
+                "of it supersedes them. Levels of 80 dB(A) or more can damage hearing; the "
+                "local regulations and a competent person's measurement govern.")
+
+
+def source_dict(t: TypicalSource) -> dict:
+    return {"id": t.id, "name": t.name, "level_dba_1m": t.level_dba_1m(),
+            "levels_1m_db": {str(k): v for k, v in sorted(t.levels_1m.items())},
+            "placement": t.placement, "directivity": PLACEMENT_Q[t.placement],
+            "provenance": t.provenance, "notes": t.notes}
+
+
+def source_details(t: TypicalSource, bands=DEFAULT_BANDS_HZ, width: int | None = None) -> str:
+    """What is shown of one typical source: its level in dB(A) at 1 m over ``bands``, its
+    octave levels at 1 m, where it usually stands, and where the numbers come from."""
+    b = sorted(t.levels_1m)
+    lines = [t.name, f"id {t.id}   {t.level_dba_1m(bands):.1f} dB(A) at 1 m "
+                     f"({band_label(bands[0])}-{band_label(bands[-1])} Hz), "
+                     f"{t.placement} (directivity Q {PLACEMENT_Q[t.placement]:g})",
+             "  ".join(f"{band_label(x):>5}" for x in b) + "  Hz",
+             "  ".join(f"{t.levels_1m[x]:>5.1f}" for x in b) + "  dB at 1 m",
+             wrap(f"numbers: {t.provenance}", "", "  ", width=width)]
+    if t.notes:
+        lines.append(wrap(t.notes, "", "  ", width=width))
+    return "\n".join(lines)
+
+
+def sources_text(items: list[TypicalSource], form: str = "text") -> str:
+    if form == "json":
+        return json_text([source_dict(t) for t in items])
+    if form == "csv":
+        buf = io.StringIO()
+        w = csv.writer(buf, lineterminator="\n")
+        w.writerow(["id", "name", "level_dba_1m", "placement", "directivity"] +
+                   [f"{b}_hz_db_1m" for b in _OCTAVES] + ["provenance", "notes"])
+        for t in items:
+            w.writerow([t.id, t.name, t.level_dba_1m(), t.placement, PLACEMENT_Q[t.placement]]
+                       + [t.levels_1m.get(b, "") for b in _OCTAVES] + [t.provenance, t.notes])
+        return buf.getvalue()
+    if form == "markdown":
+        lines = ["| id | name | dB(A) at 1 m | placement | octave levels at 1 m [dB] | "
+                 "where the numbers come from |", "|---|---|---|---|---|---|"]
+        for t in items:
+            levels = " ".join(f"{b}: {t.levels_1m[b]:g}" for b in sorted(t.levels_1m))
+            lines.append(f"| {t.id} | {t.name} | {t.level_dba_1m():.1f} | {t.placement} | "
+                         f"{levels} | {t.provenance} |")
+        return "\n".join(lines + ["", SOURCES_NOTE]) + "\n"
+    lines = []
+    for t in items:
+        lines += [f"{t.id}", "    " + source_details(t, width=WIDTH - 4).replace("\n", "\n    "),
+                  ""]
+    lines.append(wrap(f"{len(items)} typical source(s); in a room file: level_dba_1m = the dB(A) "
+                      "at 1 m, spectrum = the id. " + SOURCES_NOTE, "", ""))
+    return "\n".join(lines) + "\n"
