@@ -32,8 +32,8 @@ def source_details(t: TypicalSource, bands=DEFAULT_BANDS_HZ, width: int | None =
     """What is shown of one typical source: its level in dB(A) at 1 m over ``bands``, its
     octave levels at 1 m, where it usually stands, and where the numbers come from."""
     b = sorted(t.levels_1m)
-    lines = [t.name, f"id {t.id}   {t.level_dba_1m(bands):.1f} dB(A) at 1 m "
-                     f"({band_label(bands[0])}-{band_label(bands[-1])} Hz), "
+    lines = [t.name, f"{t.level_dba_1m(bands):.1f} dB(A) at 1 m "
+                     f"({band_label(bands[0])}-{band_label(bands[-1])} Hz), stands "
                      f"{t.placement} (directivity Q {PLACEMENT_Q[t.placement]:g})",
              "  ".join(f"{band_label(x):>5}" for x in b) + "  Hz",
              "  ".join(f"{t.levels_1m[x]:>5.1f}" for x in b) + "  dB at 1 m",
