@@ -138,3 +138,29 @@ def test_cli_lists_the_typical_sources(capsys):
     assert capsys.readouterr().out.startswith("id,name,level_dba_1m,")
     assert main(["sources", "--format", "markdown"]) == 0
     assert "| voice-normal |" in capsys.readouterr().out
+
+
+def test_use_typical_source_sets_level_spectrum_placement(catalog):
+    from roomcalc.study.edits import use_typical_source
+
+    spec = parse_spec(CLASSROOM)
+    spec.sources[0].placement, spec.sources[0].directivity = None, 3.0
+    t = typical_sources()["voice-raised"]
+    use_typical_source(spec, 0, t)
+    s = spec.sources[0]
+    assert (s.level_dba_1m, s.spectrum, s.placement, s.directivity, s.sound_power_dba) == \
+        (66.5, "voice-raised", "free", None, None)
+    # The room then has the typical source's own octave levels at 1 m, within the 0.1 dB the
+    # level is rounded to: Lp(1 m) = Lw - 10 lg(4 pi) for Q = 1 (hand computation).
+    lw = check_room(spec, catalog).sources[0].sound_power_db
+    lp1 = lw - 10 * math.log10(4 * math.pi)
+    assert np.allclose(lp1, [t.levels_1m[b] for b in SIX], atol=0.06)
+    # A room with 63 Hz: the voice has none there, so the source gets band powers of its own.
+    spec = parse_spec(CLASSROOM)
+    change_bands(spec, [63] + SIX, catalog)
+    use_typical_source(spec, 0, t)
+    s = spec.sources[0]
+    assert s.level_dba_1m is None and s.spectrum is None and len(s.sound_power) == 7
+    assert s.sound_power[0] == s.sound_power[1]
+    assert np.allclose(np.array(s.sound_power[1:]) - 10 * math.log10(4 * math.pi),
+                       [t.levels_1m[b] for b in SIX], atol=0.06)

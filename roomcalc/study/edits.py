@@ -8,6 +8,8 @@ told, if anything. The rules:
   clearing the keys that exclude it (typing alpha drops the material; a sound power per band
   drops the dB(A) figures and their spectrum; one dB(A) figure, the sound power or the level
   at 1 m, drops the other; a directivity drops the placement);
+- :func:`use_typical_source` -- give a source the level at 1 m, spectrum and placement of a
+  typical source (its own band powers where the typical source lacks a band of the room);
 - :func:`rename_item` -- rename an item and carry the new name to everything that names it
   (receivers' distances and ``source_hours``, candidates' ``surface``, the target's level
   limits);
@@ -25,17 +27,19 @@ from __future__ import annotations
 import math
 
 from roomcalc.engine.bands import DEFAULT_BANDS_HZ
+from roomcalc.engine.field import PLACEMENT_Q
 from roomcalc.io.catalog import Catalog
 from roomcalc.io.limits import RANGES
 from roomcalc.io.planning import convert_candidate_units
 from roomcalc.io.roomfile import RoomSpec, TargetSpec
-from roomcalc.io.sources import source_band_power, spectrum_names, spectrum_shape
+from roomcalc.io.sources import (TypicalSource, source_band_power, spectrum_names,
+                                 spectrum_shape)
 from roomcalc.io.units import UNITS
 from roomcalc.study.typed import parse_numbers
 
 __all__ = ["COLLECTIONS", "set_item_fields", "rename_item", "change_bands", "convert_units",
            "nearest_band_fill", "set_method", "set_criterion", "set_objective",
-           "set_own_rt60_limit", "parse_rt60_limit"]
+           "set_own_rt60_limit", "parse_rt60_limit", "use_typical_source"]
 
 #: The spec's lists of items, in the order the interface shows them.
 COLLECTIONS = ("surfaces", "objects", "sources", "receivers", "candidates")
@@ -82,6 +86,27 @@ def set_item_fields(spec: RoomSpec, collection: str, index: int, values: dict) -
     if new_name is not None and new_name != item.name:
         rename_item(spec, collection, index, new_name)
     return label
+
+
+def use_typical_source(spec: RoomSpec, index: int, typical: TypicalSource) -> str:
+    """Make source ``index`` a typical source: its A-weighted level at 1 m over the room's
+    bands (``level_dba_1m``), its shape (``spectrum`` = its id) and where it usually stands
+    (``placement``, which drops an own directivity). Where the typical source has no value at
+    a band of the room, the source gets its band powers as its own instead (the nearest band
+    repeated there, as :func:`change_bands` does). Returns an undo label."""
+    bands = spec.bands
+    if all(b in typical.levels_1m for b in bands):
+        values = {"level_dba_1m": typical.level_dba_1m(bands), "spectrum": typical.id,
+                  "placement": typical.placement}
+    else:
+        have = [b for b in bands if b in typical.levels_1m]
+        lw = source_band_power(None, None, typical.level_dba_1m(have), typical.id,
+                               PLACEMENT_Q[typical.placement], have)
+        values = {"sound_power": nearest_band_fill([round(float(x), 1) for x in lw], have,
+                                                   bands),
+                  "placement": typical.placement}
+    set_item_fields(spec, "sources", index, values)
+    return f"source '{spec.sources[index].name}': {typical.name}"
 
 
 def rename_item(spec: RoomSpec, collection: str, index: int, new: str) -> str:

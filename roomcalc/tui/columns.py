@@ -63,7 +63,7 @@ class RecordColumns:
                     Column("sound_power_dba", f"{named('LwA')} [dB(A)]", "number"),
                     Column("level_dba_1m", "level at 1 m [dB(A)]", "number",
                            hint="A-weighted level of the direct sound 1 m in front, where it "
-                           "stands (its Q counts); s: a typical source"),
+                           "stands (its Q counts); m: a typical source"),
                     Column("spectrum", "Spectrum", "choice", choices=spectrum_names(),
                            hint=", ".join(spectrum_names())),
                     Column("directivity", named("Q"), "number", show=self.show_q,

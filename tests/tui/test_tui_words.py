@@ -140,3 +140,43 @@ def test_help_explains_the_numbers():
     for words in ("room constant", "critical distance", "Schroeder", "directivity",
                   "sound power", "mean absorption"):
         assert words in numbers, words
+
+
+async def test_typical_source_chosen_on_the_sources_tab(room_file, catalog, engine):
+    """m on the Sources tab opens the typical sources for the highlighted row; Enter on one
+    gives the row its level at 1 m, spectrum and placement, and the results follow (checked
+    against the engine run on the room written as a file)."""
+    from roomcalc.io.sources import typical_sources
+    from roomcalc.tui.screens.sources import SourceChooser
+
+    app = _app(room_file("classroom.toml"), catalog)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await _ready(pilot)
+        screen = app.screen
+        await pilot.press("4")
+        await pilot.pause()
+        await pilot.press("m")
+        await pilot.pause()
+        chooser = app.screen
+        assert isinstance(chooser, SourceChooser)
+        title = str(chooser.query_one("#title").render())
+        assert 'Sources row 1 "Teacher\'s voice"' in title
+        details = str(chooser.query_one("#details").render())
+        first = list(typical_sources().values())[0]
+        assert first.name in details and "from memory" in details
+        await pilot.press("down")                       # the raised voice
+        await pilot.pause()
+        assert "raised" in str(chooser.query_one("#details").render())
+        await pilot.press("enter")
+        await pilot.pause()
+        assert app.screen is screen
+        s = screen.document.spec.sources[0]
+        assert (s.level_dba_1m, s.spectrum, s.placement) == (66.5, "voice-raised", "free")
+        res = engine.result(screen.document.spec)
+        assert [r.level_dba for r in screen.result.receivers] == \
+            [r.level_dba for r in res.receivers]
+        detail = str(screen.query_one("#t-sources #row-detail").render())
+        assert "66.5 dB(A) at 1 m, voice-raised spectrum" in detail
+        await pilot.press("ctrl+z")                     # one undoable edit
+        await pilot.pause()
+        assert screen.document.spec.sources[0].level_dba_1m is None

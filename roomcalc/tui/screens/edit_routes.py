@@ -89,10 +89,30 @@ class EditRoutes:
 
     def action_material(self) -> None:
         tab = self.query_one("#edit", TabbedContent).active
-        if tab in ("surfaces", "objects"):
+        if tab in ("surfaces", "objects", "sources"):
             i = self.query_one(f"#t-{tab}", RecordTable).current_row
-            if i is not None:
+            if i is not None and tab == "sources":
+                self._choose_source(i)
+            elif i is not None:
                 self._choose_material(tab, i)
+
+    def _choose_source(self, i: int) -> None:
+        """The typical sources, for row ``i`` of the Sources table."""
+        from roomcalc.io.sources import typical_sources
+        from roomcalc.present.places import place_on_screen
+        from roomcalc.study.edits import use_typical_source
+        from roomcalc.tui.screens.sources import SourceChooser
+
+        known = typical_sources()
+        rec = self.document.items("sources")[i]
+
+        def done(choice) -> None:
+            if choice is not None:
+                self.apply(lambda spec: use_typical_source(spec, i, known[choice]),
+                           f"source '{rec.name}': {known[choice].name}")
+        self.app.push_screen(SourceChooser(list(known.values()), self.document.spec.bands,
+                                           place_on_screen(f"sources[{i}]",
+                                                           self.document.spec)), done)
 
     def _choose_material(self, coll: str, i: int) -> None:
         from roomcalc.tui.screens.materials import MaterialChooser

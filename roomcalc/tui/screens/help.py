@@ -25,7 +25,7 @@ Escape closes it.
 | c | copy (duplicate) the highlighted row |
 | Delete or x | delete the highlighted row |
 | Ctrl+Up / Ctrl+Down (or K / J) | move the row up / down |
-| m | choose a material for the highlighted surface or object |
+| m | choose a material for the highlighted surface or object; on the Sources tab, a typical source (a voice, a machine, an amplifier) with its level at 1 m and spectrum |
 | p | pin the room as it is now as "before"; the before/after tab compares with it |
 | b | change the reverberant model: diffuse field (4/R) or Barron & Lee |
 | r / Space (in the plan tab) | make the plan / tick a treatment in or out |
