@@ -164,3 +164,32 @@ def test_use_typical_source_sets_level_spectrum_placement(catalog):
     assert s.sound_power[0] == s.sound_power[1]
     assert np.allclose(np.array(s.sound_power[1:]) - 10 * math.log10(4 * math.pi),
                        [t.levels_1m[b] for b in SIX], atol=0.06)
+
+
+def test_every_report_format_says_how_a_source_is_given(tmp_path, capsys):
+    import csv
+    import io
+    import json
+
+    from roomcalc.cli import main
+
+    f = tmp_path / "room.toml"
+    f.write_text(AT_1M.replace('spectrum = "speech-male"', 'spectrum = "voice-raised"'),
+                 encoding="utf-8")
+    lwa = 66.0 + 10 * math.log10(4 * math.pi)      # Q 1 (free): hand computation, 76.99
+    assert main(["report", str(f)]) == 0
+    text = " ".join(capsys.readouterr().out.split())
+    assert "Teacher's voice: 66 dB(A) at 1 m where it stands, the spectrum of a typical " \
+           "source, Teacher's voice, raised effort (from memory of ANSI S3.5-1997" in text
+    assert f"sound power LwA {lwa:.1f} dB(A), directivity Q 1" in text
+    assert main(["report", str(f), "--format", "markdown"]) == 0
+    assert "## Sources" in capsys.readouterr().out
+    assert main(["report", str(f), "--format", "json"]) == 0
+    src = json.loads(capsys.readouterr().out)["sources"][0]
+    assert (src["given_as"], src["level_dba_1m"], src["spectrum"]) == \
+        ("level_dba_1m", 66.0, "voice-raised")
+    assert "ANSI S3.5-1997" in src["spectrum_provenance"]
+    assert main(["report", str(f), "--format", "csv"]) == 0
+    rows = [r for r in csv.reader(io.StringIO(capsys.readouterr().out))
+            if r[0] == "sound_power"]
+    assert float(rows[0][-1]) == pytest.approx(lwa, abs=1e-4)   # written to 6 digits

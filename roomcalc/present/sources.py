@@ -8,10 +8,11 @@ import io
 
 from roomcalc.engine.bands import DEFAULT_BANDS_HZ
 from roomcalc.engine.field import PLACEMENT_Q
-from roomcalc.io.sources import TypicalSource
+from roomcalc.io.sources import TypicalSource, spectrum_description, typical_sources
 from roomcalc.present.numbers import WIDTH, band_label, json_text, wrap
 
-__all__ = ["source_dict", "source_details", "sources_text", "SOURCES_NOTE"]
+__all__ = ["source_dict", "source_details", "sources_text", "SOURCES_NOTE", "source_given",
+           "source_given_dict"]
 
 _OCTAVES = (63, 125, 250, 500, 1000, 2000, 4000, 8000)
 
@@ -70,3 +71,35 @@ def sources_text(items: list[TypicalSource], form: str = "text") -> str:
     lines.append(wrap(f"{len(items)} typical source(s); in a room file: level_dba_1m = the dB(A) "
                       "at 1 m, spectrum = the id. " + SOURCES_NOTE, "", ""))
     return "\n".join(lines) + "\n"
+
+
+def _spectrum_words(name: str) -> str:
+    known = typical_sources()
+    if name in known:
+        return f"the spectrum of a typical source, {known[name].name} ({known[name].provenance})"
+    return f"{name} spectrum ({spectrum_description(name)})"
+
+
+def source_given(s) -> str:
+    """How a room file's source (a ``SourceSpec``) gives its power, in words: its sound power
+    per band, its A-weighted sound power, or its A-weighted level at 1 m; with its spectrum."""
+    if s.sound_power is not None:
+        return "sound power Lw per band, as given"
+    if s.level_dba_1m is not None:
+        lead = f"{s.level_dba_1m:g} dB(A) at 1 m where it stands"
+    else:
+        lead = f"A-weighted sound power LwA {s.sound_power_dba:g} dB(A)"
+    return f"{lead}, {_spectrum_words(s.spectrum)}" if s.spectrum else lead
+
+
+def source_given_dict(s) -> dict:
+    """The same, for JSON: which key gives the power, its value, the spectrum and, for a
+    typical source's spectrum, where its numbers come from."""
+    key = next((k for k in ("sound_power", "sound_power_dba", "level_dba_1m")
+                if getattr(s, k) is not None), None)
+    d = {"given_as": key, "sound_power_dba": s.sound_power_dba, "level_dba_1m": s.level_dba_1m,
+         "spectrum": s.spectrum}
+    known = typical_sources()
+    if s.spectrum in known:
+        d["spectrum_provenance"] = known[s.spectrum].provenance
+    return d
