@@ -13,7 +13,7 @@ SYMBOLS: dict[str, str] = {
     "RT60": "reverberation time", "T": "reverberation time", "R": "room constant",
     "mean alpha": "mean absorption", "alpha": "absorption", "r_c": "critical distance",
     "f_S": "Schroeder frequency", "air": "air absorption", "Lp": "sound level",
-    "Lw": "sound power", "LwA": "A-weighted sound power", "Q": "directivity",
+    "Lw": "sound power", "LwA": "sound power", "Q": "directivity",
     "dB(A)": "A-weighted level"}
 
 

@@ -36,8 +36,8 @@ def source_details(t: TypicalSource, bands=DEFAULT_BANDS_HZ, width: int | None =
     lines = [t.name, f"{t.level_dba_1m(bands):.1f} dB(A) at 1 m "
                      f"({band_label(bands[0])}-{band_label(bands[-1])} Hz), stands "
                      f"{t.placement} (directivity Q {PLACEMENT_Q[t.placement]:g})",
-             "  ".join(f"{band_label(x):>5}" for x in b) + "  Hz",
-             "  ".join(f"{t.levels_1m[x]:>5.1f}" for x in b) + "  dB at 1 m",
+             wrap("octave levels at 1 m [dB]: " + ", ".join(
+                 f"{x:g} Hz {t.levels_1m[x]:.1f}" for x in b), "", "  ", width=width),
              wrap(f"numbers: {t.provenance}", "", "  ", width=width)]
     if t.notes:
         lines.append(wrap(t.notes, "", "  ", width=width))

@@ -24,11 +24,13 @@ async def _ready(pilot):
 
 
 def _visible(strip: FindingsStrip) -> list[str]:
-    """The strip's lines that the terminal shows (it is scrolled to the top)."""
-    lines = strip.render().plain.splitlines() if hasattr(strip.render(), "plain") else \
-        str(strip.render()).splitlines()
+    """The strip's lines as the terminal shows them (drawn, past its border and padding)."""
+    from textual.geometry import Region
+
     assert strip.scroll_y == 0
-    return lines[:strip.size.height]
+    drawn = strip.render_lines(Region(0, 0, strip.outer_size.width, strip.outer_size.height))
+    lines = ["".join(seg.text for seg in line).strip() for line in drawn]
+    return [line for line in lines[1:] if line.strip("━─ ")]      # past the top border
 
 
 async def test_findings_strip_counts_and_shows_every_kind_at_80x24(room_file, catalog):
@@ -43,6 +45,10 @@ async def test_findings_strip_counts_and_shows_every_kind_at_80x24(room_file, ca
         res = screen.result
         loud = [c for c in res.cautions if c.startswith("'")]
         assert loud and res.warnings                      # the room as shipped has both
+        shown = _visible(strip)                          # no errors: warnings, cautions
+        assert shown[0].startswith(f"{len(res.warnings)} warning"), shown
+        assert any(line.startswith("Warning:") for line in shown), shown
+        assert any(line.startswith("CAUTION") for line in shown), shown
 
         def bad(spec):
             spec.surfaces[0].area = -5.0
@@ -121,7 +127,7 @@ async def _symbols_named(room_file, catalog, size):
         heads = [str(c.label) for c in
                  screen.query_one("#t-sources #table", CellGrid).columns.values()]
         assert any(h.startswith("sound power Lw ") for h in heads), heads
-        assert any(h.startswith("A-weighted sound power LwA") for h in heads), heads
+        assert any(h.startswith("sound power LwA [dB(A)]") for h in heads), heads
         assert "directivity Q" in heads, heads
 
 

@@ -24,7 +24,8 @@ class SourceChooser(ModalScreen[str | None]):
                                background: $surface; padding: 0 1; }
     SourceChooser #body { height: 1fr; }
     SourceChooser #list { width: 1fr; }
-    SourceChooser #details { width: 1fr; padding: 0 1; border-left: solid $primary; }
+    SourceChooser #details { width: 1fr; padding: 0 1; border-left: solid $primary;
+                             overflow-y: auto; }
     SourceChooser #note { color: $text-muted; height: auto; }
     """
     BINDINGS = [Binding("escape", "dismiss_none", "Cancel", id="sources.cancel")]
@@ -46,9 +47,9 @@ class SourceChooser(ModalScreen[str | None]):
 
     def on_mount(self) -> None:
         table = self.query_one("#list", CellGrid)
+        table.add_column("dB(A) 1 m", key="level", justify="right")
         table.add_column("name", key="name")
-        table.add_column("dB(A) at 1 m", key="level", justify="right")
-        table.set_rows([[t.name, f"{t.level_dba_1m(self.bands):.1f}"] for t in self.sources],
+        table.set_rows([[f"{t.level_dba_1m(self.bands):.1f}", t.name] for t in self.sources],
                        keys=[t.id for t in self.sources])
         table.move_cursor(row=0)
         table.focus()

@@ -224,12 +224,15 @@ class FindingsStrip(Static):
                         break
                     take = min(len(lines), room)
                     spare -= take - (1 if n == 0 else 0)
-                    shown = Text("\n").join(lines[:take])
+                    kept = list(lines[:take])
                     if take < len(lines):
                         hidden = True
-                        shown.truncate(max(1, len(shown) - 3))
-                        shown.append("...")
-                    body.append(shown)
+                        last = kept[-1].copy()
+                        last.rstrip()
+                        last.truncate(max(1, min(len(last), width - 4)))
+                        last.append(" ...")
+                        kept[-1] = last
+                    body.append(Text("\n").join(kept))
         else:
             body = [Text(item, style=style) for _, items in kinds for item, style in items]
         text = Text()
