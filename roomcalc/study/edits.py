@@ -264,8 +264,12 @@ def _spectrum_to_own(source, old, new, added) -> str | None:
     table = spectrum_shape(shape)
     if all(b in table for b in added):
         return None
-    lw = source_band_power(None, source.sound_power_dba, source.level_dba_1m, shape,
-                           source.q, old)
+    if source.directivity is None and source.placement not in (None, *PLACEMENT_Q):
+        return None             # a placement the room check refuses: left for the user to fix
+    q = source.q
+    if source.level_dba_1m is not None and not (isinstance(q, float) and q > 0):
+        return None
+    lw = source_band_power(None, source.sound_power_dba, source.level_dba_1m, shape, q, old)
     source.sound_power = nearest_band_fill([round(float(x), 1) for x in lw], old, new)
     source.sound_power_dba = source.level_dba_1m = source.spectrum = None
     return shape
