@@ -162,9 +162,8 @@ class CompareView(ResultView):
         table.show(cmp, cmp.method)
         self.query_one("#compare-head", Static).update(
             f"Before: pinned room   After: the room now{'  (stale)' if stale else ''}   "
-            f"negative = shorter or quieter   RT60 (reverberation time) by "
-            f"{METHOD_TITLES[cmp.method]} "
-            f"(in force before)")
+            f"negative = shorter or quieter   RT60 by {METHOD_TITLES[cmp.method]} "
+            f"(in force before); RT60 = reverberation time")
         self.query_one("#compare-notes", Static).update("\n".join(f"- {n}" for n in cmp.notes))
 
     def show_message(self, text: str = NO_PIN) -> None:
