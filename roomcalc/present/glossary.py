@@ -26,10 +26,10 @@ def named(symbol: str) -> str:
     return f"{SYMBOLS[symbol]} {symbol}"
 
 
-def legend(symbols, sep: str = "  ") -> str:
+def legend(symbols, sep: str = "; ") -> str:
     """One legend line: each symbol with what it stands for.
 
-    >>> legend(["R", "f_S"], sep="; ")
-    'R room constant; f_S Schroeder frequency'
+    >>> legend(["R", "f_S"])
+    'R: room constant; f_S: Schroeder frequency'
     """
-    return sep.join(f"{s} {SYMBOLS[s]}" for s in symbols)
+    return sep.join(f"{s}: {SYMBOLS[s]}" for s in symbols)

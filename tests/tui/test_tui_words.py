@@ -111,7 +111,7 @@ async def _symbols_named(room_file, catalog, size):
             for sym in SYMBOLS:
                 if label == sym or label.startswith(sym + " "):
                     found.add(sym)
-                    assert f"{sym} {SYMBOLS[sym]}" in shown, (label, shown)
+                    assert f"{sym}: {SYMBOLS[sym]}" in shown, (label, shown)
         assert {"R", "mean alpha", "r_c", "f_S", "air"} <= found
         assert "critical distance" in shown and "room constant" in shown
 
@@ -120,7 +120,7 @@ async def _symbols_named(room_file, catalog, size):
         legend = screen.query_one("#receiver-legend")
         assert _on_screen(legend, size), legend.region
         shown = str(legend.render())
-        assert "Lp sound level" in shown and "dB(A) A-weighted level" in shown
+        assert "Lp: sound level" in shown and "dB(A): A-weighted level" in shown
 
         await pilot.press("4")                           # sources: Lw, LwA, Q in their heads
         await pilot.pause()

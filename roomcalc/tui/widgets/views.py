@@ -20,8 +20,8 @@ from roomcalc.tui.widgets.results import CompareTable, ReceiverTable, ReverbTabl
 
 NO_RECEIVERS = "No receivers with sources yet: add them in the Sources and Receivers tabs."
 #: What the symbols of each view stand for, shown under its table (F1 says more).
-REVERB_LEGEND = legend(["RT60", "R", "mean alpha", "r_c", "f_S", "air"]) + "  (F1: more)"
-RECEIVERS_LEGEND = (legend(["Lp", "dB(A)"]) + "  direct: straight from the sources  "
+REVERB_LEGEND = legend(["RT60", "R", "mean alpha", "r_c", "f_S", "air"]) + " (F1: more)"
+RECEIVERS_LEGEND = (legend(["Lp", "dB(A)"]) + "; direct: straight from the sources; "
                     "reverberant: from the room's reflections")
 NO_PIN = ("Press p to pin the room as it is now as \"before\"; then edit it and compare "
           "here.")
