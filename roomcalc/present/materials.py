@@ -85,7 +85,7 @@ def materials_text(mats: list[Material], form: str = "text") -> str:
         return buf.getvalue()
     md = form == "markdown"
     if md:
-        lines = ["| id | name | kind | 125-4000 Hz | NRC | alpha_w (class) | source |",
+        lines = ["| id | name | kind | 125-4000 Hz | NRC | alpha_w (class) | where the values come from |",
                  "|---|---|---|---|---|---|---|"]
     else:
         lines = []
