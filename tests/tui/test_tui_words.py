@@ -3,6 +3,8 @@ before warnings before cautions, each kind counted and visible)."""
 
 from __future__ import annotations
 
+import pytest
+
 from roomcalc.tui.app import AppConfig, make_app
 from roomcalc.tui.document import Document
 from roomcalc.tui.widgets.results import FindingsStrip
@@ -186,3 +188,31 @@ async def test_typical_source_chosen_on_the_sources_tab(room_file, catalog, engi
         await pilot.press("ctrl+z")                     # one undoable edit
         await pilot.pause()
         assert screen.document.spec.sources[0].level_dba_1m is None
+
+
+async def test_level_at_1m_typed_in_the_sources_table(room_file, catalog, engine, pilot_keys):
+    """The Sources table's "level at 1 m" cell takes a dB(A) figure (a decimal comma too); it
+    replaces the sound power in dB(A), keeps the spectrum, and the results are the engine's
+    for the room written as a file."""
+    import math
+
+    app = _app(room_file("classroom.toml"), catalog)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await _ready(pilot)
+        screen = app.screen
+        await pilot.press("4")
+        await pilot.pause()
+        table = screen.query_one("#t-sources")
+        col = [str(c.label) for c in table.query_one("#table").columns.values()] \
+            .index("level at 1 m [dB(A)]")
+        await pilot_keys.edit_cell(pilot, table, 0, col, "62,5")
+        s = screen.document.spec.sources[0]
+        assert (s.level_dba_1m, s.sound_power_dba, s.spectrum) == (62.5, None, "speech-male")
+        res = engine.result(screen.document.spec)
+        assert [r.level_dba for r in screen.result.receivers] == \
+            [r.level_dba for r in res.receivers]
+        # placement "free" (Q 1): LwA = 62.5 + 10 lg(4 pi) = 73.49 dB(A), hand computation.
+        from roomcalc.engine.bands import a_weighted_total
+        lw = screen.result.sources[0].sound_power_db
+        assert float(a_weighted_total(lw, screen.result.bands_hz)) == \
+            pytest.approx(62.5 + 10 * math.log10(4 * math.pi), abs=1e-9)
