@@ -81,6 +81,9 @@ def _parser() -> argparse.ArgumentParser:
     m.add_argument("words", nargs="*", help="words that must all appear (id, name, notes)")
     m.add_argument("--category", help="only this category (part of its name is enough)")
     m.add_argument("--kind", choices=("surface", "object"), help="only this kind")
+    sub.add_parser("sources", parents=[fmt],
+                   help="list the typical sound sources: their dB(A) at 1 m, octave levels "
+                        "and where the numbers come from")
     return p
 
 
@@ -124,6 +127,13 @@ def _main(args) -> int:
 
 def _run(args) -> int:
     from roomcalc.io.catalog import load_catalog
+
+    if args.command == "sources":
+        from roomcalc.io.sources import typical_sources
+        from roomcalc.present.sources import sources_text
+
+        sys.stdout.write(sources_text(list(typical_sources().values()), args.format))
+        return EXIT_OK
 
     catalog = load_catalog(getattr(args, "catalog", []))
 

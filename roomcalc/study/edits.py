@@ -6,7 +6,10 @@ told, if anything. The rules:
 
 - :func:`set_item_fields` -- set a field of a surface, object, source, receiver or candidate,
   clearing the keys that exclude it (typing alpha drops the material; a sound power per band
-  drops the dB(A) figure and its spectrum; a directivity drops the placement);
+  drops the dB(A) figures and their spectrum; one dB(A) figure, the sound power or the level
+  at 1 m, drops the other; a directivity drops the placement);
+- :func:`use_typical_source` -- give a source the level at 1 m, spectrum and placement of a
+  typical source (its own band powers where the typical source lacks a band of the room);
 - :func:`rename_item` -- rename an item and carry the new name to everything that names it
   (receivers' distances and ``source_hours``, candidates' ``surface``, the target's level
   limits);
@@ -24,17 +27,19 @@ from __future__ import annotations
 import math
 
 from roomcalc.engine.bands import DEFAULT_BANDS_HZ
-from roomcalc.engine.spectra import SPECTRUM_SHAPES, band_power_from_dba
+from roomcalc.engine.field import PLACEMENT_Q
 from roomcalc.io.catalog import Catalog
 from roomcalc.io.limits import RANGES
 from roomcalc.io.planning import convert_candidate_units
 from roomcalc.io.roomfile import RoomSpec, TargetSpec
+from roomcalc.io.sources import (TypicalSource, source_band_power, spectrum_names,
+                                 spectrum_shape)
 from roomcalc.io.units import UNITS
 from roomcalc.study.typed import parse_numbers
 
 __all__ = ["COLLECTIONS", "set_item_fields", "rename_item", "change_bands", "convert_units",
            "nearest_band_fill", "set_method", "set_criterion", "set_objective",
-           "set_own_rt60_limit", "parse_rt60_limit"]
+           "set_own_rt60_limit", "parse_rt60_limit", "use_typical_source"]
 
 #: The spec's lists of items, in the order the interface shows them.
 COLLECTIONS = ("surfaces", "objects", "sources", "receivers", "candidates")
@@ -44,8 +49,9 @@ _EXCLUDES = {
     "surfaces": {"alpha": ("material",)},
     "objects": {"absorption": ("material",)},
     "candidates": {"alpha": ("material",), "absorption": ("material",)},
-    "sources": {"sound_power": ("sound_power_dba", "spectrum"),
-                "sound_power_dba": ("sound_power",),
+    "sources": {"sound_power": ("sound_power_dba", "level_dba_1m", "spectrum"),
+                "sound_power_dba": ("sound_power", "level_dba_1m"),
+                "level_dba_1m": ("sound_power", "sound_power_dba"),
                 "directivity": ("placement",),
                 "placement": ("directivity",)},
 }
@@ -71,7 +77,8 @@ def set_item_fields(spec: RoomSpec, collection: str, index: int, values: dict) -
         for other in _EXCLUDES.get(collection, {}).get(key, ()):
             if other not in values:
                 clear[other] = None
-    if collection == "sources" and values.get("sound_power_dba") is not None \
+    if collection == "sources" and (values.get("sound_power_dba") is not None
+                                    or values.get("level_dba_1m") is not None) \
             and item.spectrum is None and "spectrum" not in values:
         clear["spectrum"] = DEFAULT_SPECTRUM
     for key, value in {**clear, **values}.items():
@@ -79,6 +86,27 @@ def set_item_fields(spec: RoomSpec, collection: str, index: int, values: dict) -
     if new_name is not None and new_name != item.name:
         rename_item(spec, collection, index, new_name)
     return label
+
+
+def use_typical_source(spec: RoomSpec, index: int, typical: TypicalSource) -> str:
+    """Make source ``index`` a typical source: its A-weighted level at 1 m over the room's
+    bands (``level_dba_1m``), its shape (``spectrum`` = its id) and where it usually stands
+    (``placement``, which drops an own directivity). Where the typical source has no value at
+    a band of the room, the source gets its band powers as its own instead (the nearest band
+    repeated there, as :func:`change_bands` does). Returns an undo label."""
+    bands = spec.bands
+    if all(b in typical.levels_1m for b in bands):
+        values = {"level_dba_1m": typical.level_dba_1m(bands), "spectrum": typical.id,
+                  "placement": typical.placement}
+    else:
+        have = [b for b in bands if b in typical.levels_1m]
+        lw = source_band_power(None, None, typical.level_dba_1m(have), typical.id,
+                               PLACEMENT_Q[typical.placement], have)
+        values = {"sound_power": nearest_band_fill([round(float(x), 1) for x in lw], have,
+                                                   bands),
+                  "placement": typical.placement}
+    set_item_fields(spec, "sources", index, values)
+    return f"source '{spec.sources[index].name}': {typical.name}"
 
 
 def rename_item(spec: RoomSpec, collection: str, index: int, new: str) -> str:
@@ -230,14 +258,20 @@ def _spectrum_to_own(source, old, new, added) -> str | None:
     band powers as its own (the shape's, at the old bands; the nearest band repeated).
     Returns the shape's name when it did."""
     shape = source.spectrum
-    if source.sound_power_dba is None or not shape or not added:
+    if (source.sound_power_dba is None and source.level_dba_1m is None) or not shape \
+            or not added or shape not in spectrum_names():
         return None
-    table = SPECTRUM_SHAPES.get(shape, {})
+    table = spectrum_shape(shape)
     if all(b in table for b in added):
         return None
-    lw = band_power_from_dba(source.sound_power_dba, shape, old)
+    if source.directivity is None and source.placement not in (None, *PLACEMENT_Q):
+        return None             # a placement the room check refuses: left for the user to fix
+    q = source.q
+    if source.level_dba_1m is not None and not (isinstance(q, float) and q > 0):
+        return None
+    lw = source_band_power(None, source.sound_power_dba, source.level_dba_1m, shape, q, old)
     source.sound_power = nearest_band_fill([round(float(x), 1) for x in lw], old, new)
-    source.sound_power_dba = source.spectrum = None
+    source.sound_power_dba = source.level_dba_1m = source.spectrum = None
     return shape
 
 

@@ -14,9 +14,10 @@ from typing import Callable
 from roomcalc.engine.analysis import RoomResult
 from roomcalc.engine.field import PLACEMENT_Q
 from roomcalc.engine.model import FACES
-from roomcalc.engine.spectra import SPECTRUM_SHAPES
 from roomcalc.io.catalog import Catalog
 from roomcalc.io.roomfile import RoomSpec
+from roomcalc.io.sources import spectrum_names
+from roomcalc.present.glossary import named
 from roomcalc.tui.widgets.record_table import Column
 
 
@@ -58,11 +59,15 @@ class RecordColumns:
                            show=self.show_absorption)]
         if coll == "sources":
             return [Column("name", "Name", optional=False),
-                    Column("sound_power", "Lw per band [dB]", "numbers", length=nb),
-                    Column("sound_power_dba", "LwA [dB(A)]", "number"),
-                    Column("spectrum", "Spectrum", "choice", choices=tuple(SPECTRUM_SHAPES),
-                           hint=", ".join(SPECTRUM_SHAPES)),
-                    Column("directivity", "Q", "number", show=self.show_q),
+                    Column("sound_power", f"{named('Lw')} per band [dB]", "numbers", length=nb),
+                    Column("sound_power_dba", f"{named('LwA')} [dB(A)]", "number"),
+                    Column("level_dba_1m", "level at 1 m [dB(A)]", "number",
+                           hint="A-weighted level of the direct sound 1 m in front, where it "
+                           "stands (its Q counts); m: a typical source"),
+                    Column("spectrum", "Spectrum", "choice", choices=spectrum_names(),
+                           hint=", ".join(spectrum_names())),
+                    Column("directivity", named("Q"), "number", show=self.show_q,
+                           hint="1 free, 2 on a surface, 4 at an edge, 8 in a corner"),
                     Column("placement", "Placement", "choice", choices=tuple(PLACEMENT_Q),
                            hint="free, surface, edge, corner"),
                     Column("position", "Position x y z", "position")]
@@ -169,9 +174,14 @@ class RecordColumns:
                 values = f"{u.area_label} per unit {self.values_of(rec, rec.absorption)}"
             return f"{rec.name}: {what}; {values}"
         if coll == "sources":
-            lw = " ".join(f"{x:g}" for x in rec.sound_power) if rec.sound_power else \
-                f"{rec.sound_power_dba} dB(A), {rec.spectrum} spectrum"
-            return f"{rec.name}: Lw {lw}; Q {self.show_q(rec).strip('()')}"
+            if rec.sound_power:
+                lw = named("Lw") + " " + " ".join(f"{x:g}" for x in rec.sound_power)
+            elif rec.level_dba_1m is not None:
+                lw = f"{rec.level_dba_1m:g} dB(A) at 1 m, {rec.spectrum} spectrum"
+            else:
+                lw = f"{named('LwA')} {rec.sound_power_dba} dB(A), {rec.spectrum} spectrum"
+            return (f"{rec.name}: {lw}; "
+                    f"{named('Q')} {self.show_q(rec).strip('()')}")
         res = self.result
         if res is not None:
             r = next((x for x in res.receivers if x.name == rec.name), None)

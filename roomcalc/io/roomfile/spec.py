@@ -23,8 +23,8 @@ AIR_KEYS = ("temperature", "relative_humidity", "pressure_kpa")
 SHAPE_KEYS = ("length", "width", "height", "volume")
 SURFACE_KEYS = ("name", "area", "count", "face", "material", "alpha")
 OBJECT_KEYS = ("name", "count", "material", "absorption", "occupant")
-SOURCE_KEYS = ("name", "sound_power", "sound_power_dba", "spectrum", "directivity", "placement",
-               "position")
+SOURCE_KEYS = ("name", "sound_power", "sound_power_dba", "level_dba_1m", "spectrum",
+               "directivity", "placement", "position")
 RECEIVER_KEYS = ("name", "position", "distances", "hours", "source_hours")
 TARGET_KEYS = ("method", "objective", "currency", "criterion", "rt60_max", "rt60_min",
                "max_level_dba", "max_level_db")
@@ -93,6 +93,7 @@ class SourceSpec:
     sound_power: list[float] | None = None
     sound_power_dba: float | None = None
     spectrum: str | None = None
+    level_dba_1m: float | None = None       # A-weighted level at 1 m (with spectrum)
     directivity: float | None = None
     placement: str | None = None
     position: list[float] | None = None

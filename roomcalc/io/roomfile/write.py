@@ -38,7 +38,8 @@ def spec_to_dict(spec: RoomSpec) -> dict:
                         for o in spec.objects]
     if spec.sources:
         d["sources"] = [_clean({"name": s.name, "sound_power": s.sound_power,
-                                "sound_power_dba": s.sound_power_dba, "spectrum": s.spectrum,
+                                "sound_power_dba": s.sound_power_dba,
+                                "level_dba_1m": s.level_dba_1m, "spectrum": s.spectrum,
                                 "directivity": s.directivity, "placement": s.placement,
                                 "position": s.position}) for s in spec.sources]
     if spec.receivers:

@@ -94,17 +94,44 @@ class EditRoutes:
 
     def action_material(self) -> None:
         """``m``: choose the material of the highlighted row of the table shown on the left
-        (Surfaces, Objects or Treatments); the chooser names the row it will change."""
+        (Surfaces, Objects or Treatments), or a typical source (Sources); the chooser names
+        the row it will change."""
         tab = self.query_one("#edit", TabbedContent).active
+        if tab == "sources":
+            i = self.query_one("#t-sources", RecordTable).current_row
+            if i is None:
+                self.notify("Sources has no rows yet: a adds one.", timeout=6)
+            else:
+                self._choose_source(i)
+            return
         if tab not in MATERIAL_TABLES:
-            self.notify("m chooses the material of a row of Surfaces, Objects or Treatments: "
-                        "show one of those tables (2, 3 or 6) first.", timeout=6)
+            self.notify("m chooses the material of a row of Surfaces, Objects or Treatments, "
+                        "or a typical source on Sources: show one of those tables first.",
+                        timeout=6)
             return
         i = self.query_one(f"#t-{tab}", RecordTable).current_row
         if i is None:
             self.notify(f"{TABLE_TITLES[tab]} has no rows yet: a adds one.", timeout=6)
             return
         self._choose_material(tab, i)
+
+    def _choose_source(self, i: int) -> None:
+        """The typical sources, for row ``i`` of the Sources table."""
+        from roomcalc.io.sources import typical_sources
+        from roomcalc.present.places import place_on_screen
+        from roomcalc.study.edits import use_typical_source
+        from roomcalc.tui.screens.sources import SourceChooser
+
+        known = typical_sources()
+        rec = self.document.items("sources")[i]
+
+        def done(choice) -> None:
+            if choice is not None:
+                self.apply(lambda spec: use_typical_source(spec, i, known[choice]),
+                           f"source '{rec.name}': {known[choice].name}")
+        self.app.push_screen(SourceChooser(list(known.values()), self.document.spec.bands,
+                                           place_on_screen(f"sources[{i}]",
+                                                           self.document.spec)), done)
 
     def _choose_material(self, coll: str, i: int) -> None:
         from roomcalc.tui.screens.materials import MaterialChooser

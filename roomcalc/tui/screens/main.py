@@ -65,6 +65,7 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
         Binding("m", "material", "Material", show=False, id="main.material"),
         Binding("b", "toggle_model", "Reverb model", show=False, id="main.model"),
         Binding("f1,question_mark", "app.help", "Help", id="main.help"),
+        Binding("ctrl+e", "findings", "All findings", show=False, id="main.findings"),
         Binding("1", "edit_tab('room')", "Room", show=False, id="main.tab.room"),
         Binding("2", "edit_tab('surfaces')", "Surfaces", show=False, id="main.tab.surfaces"),
         Binding("3", "edit_tab('objects')", "Objects", show=False, id="main.tab.objects"),
@@ -281,6 +282,10 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
         if self.answer is None or self.answer.result is not self.result:
             self.answer = self._study.answer(result=self.result)
         return self.answer
+
+    def action_findings(self) -> None:
+        """Unfold the strip of errors, warnings and cautions (every item in full), or fold it."""
+        self.query_one(FindingsStrip).toggle()
 
     def watch_result(self, result: RoomResult | None) -> None:
         self._show(result)

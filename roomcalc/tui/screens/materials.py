@@ -9,7 +9,7 @@ from textual.screen import ModalScreen
 from textual.widgets import Button, Input, Select, Static
 
 from roomcalc.io.catalog import Catalog, Material
-from roomcalc.present.materials import no_match_text
+from roomcalc.present.materials import no_match_text, source_sentence
 from roomcalc.study.typed import parse_numbers
 from roomcalc.tui.widgets.grid import CellGrid
 
@@ -27,7 +27,7 @@ def material_details(m: Material, bands) -> str:
     if r:
         lines += ["", f"NRC {r[0]:.2f}   SAA~ {r[1]:.2f} (octave estimate)   "
                       f"alpha_w {r[2].label()}  class {r[2].absorption_class}"]
-    lines += ["", f"source: {m.source}"]
+    lines += ["", f"values: {source_sentence(m)}"]
     if m.notes:
         lines.append(f"notes: {m.notes}")
     return "\n".join(lines)
