@@ -12,7 +12,7 @@ from roomcalc.engine.analysis import METHOD_TITLES
 from roomcalc.engine.model import Room
 from roomcalc.engine.planner.build import build_model, with_rt_limits
 from roomcalc.engine.planner.explain import evaluate_plan, explain, violations
-from roomcalc.engine.planner.goals import Candidate, Goals, Plan, PlanItem
+from roomcalc.engine.planner.goals import Candidate, Goals, Plan, PlanItem, cover_surfaces
 from roomcalc.engine.planner.model import (MAX_CUT_ROUNDS, MAX_SURROGATE_ROUNDS,
                                            SURROGATE_MARGIN, Miss, PlanModel, RtKey)
 from roomcalc.engine.progress import PlanWatch
@@ -119,7 +119,8 @@ def _items(model: PlanModel, x) -> tuple[list, float, float, float]:
         if x[j] <= 0:
             continue
         cost = float(x[j] * cd.cost)
-        sname = model.room.surfaces[cd.surface].name if cd.kind == "cover" else None
+        sname = (", ".join(model.room.surfaces[i].name for i in cover_surfaces(cd))
+                 if cd.kind == "cover" else None)
         items.append(PlanItem(cd.name, cd.kind, sname, float(x[j]), cost))
         cost_sum += cost
         if cd.kind == "cover":
