@@ -14,7 +14,8 @@ from textual.message import Message
 from textual.widgets import Button, Input, Select, Static
 
 from roomcalc.engine.analysis import METHOD_TITLES, METHODS
-from roomcalc.present.sections import plan_levels
+from roomcalc.io.units import METRIC
+from roomcalc.present.sections import amount_text, applied_text, plan_levels
 from roomcalc.tui.widgets.grid import CellGrid
 from roomcalc.tui.widgets.results import BandTable
 from roomcalc.tui.widgets.room_form import RECOMMENDED
@@ -178,25 +179,26 @@ class PlanView(VerticalScroll):
         cur = f" {t.currency}" if t is not None and t.currency else ""
         for c in spec.candidates:
             self._names.append(c.name)
-            if c.surface:
-                where = c.surface
+            if c.covers:
+                where = "every wall" if c.walls else ", ".join(c.surface_names(spec))
                 most = "whole surface" if c.max_area is None else f"{c.max_area:g} {area_label}"
                 cost = "-" if c.area_cost is None else f"{c.area_cost:g}{cur}/{area_label}"
             else:
                 where = "added units"
                 most = "any number" if c.max_count is None else f"{c.max_count:g}"
                 cost = "-" if c.cost_each is None else f"{c.cost_each:g}{cur} each"
-            rows.append(["[ ]" if c.name in self.disabled_names else "[x]", c.name, where, most,
-                         cost])
+            use = ("applied" if c.applied else
+                   "[ ]" if c.name in self.disabled_names else "[x]")
+            rows.append([use, c.name, where, most, cost])
         self.query_one("#plan-candidates", CellGrid).set_rows(rows, keys=self._names)
 
     def show_check(self, text: str) -> None:
         """The room as it is now against its target (the report's target section)."""
         self.query_one("#plan-check", Static).update(text.rstrip())
 
-    def show_run(self, run, totals: str, area, area_label: str) -> None:
+    def show_run(self, run, totals: str, area, area_label: str, units=METRIC) -> None:
         """A plan (a PlanRun of roomcalc.study) with its totals in words ("48.62 m^2 and 40
-        units")."""
+        units"); ``units``: the room file's (amounts and panel sizes are shown in them)."""
         p = run.plan
         cur = f" {run.currency}" if run.currency else ""
         head = ("The plan meets the target." if p.feasible
@@ -210,9 +212,8 @@ class PlanView(VerticalScroll):
                     else "No candidate helps.")
         self.query_one("#plan-result", Static).update(head)
         items = self.query_one("#plan-items", CellGrid)
-        items.set_rows([[it.candidate, it.surface or "added",
-                         f"{it.amount / area:.2f} {area_label}" if it.kind == "cover"
-                         else f"{it.amount:g} units", f"{it.cost:.2f}"] for it in p.items])
+        items.set_rows([[it.candidate, it.surface or "added", amount_text(run, it, units),
+                         f"{it.cost:.2f}"] for it in p.items])
         items.display = bool(p.items)
         rt = self.query_one("#plan-rt", PlanRtTable)
         lo, hi = run.goals.rt60_min, run.goals.rt60_max
@@ -220,6 +221,8 @@ class PlanView(VerticalScroll):
         rt.display = True
         lines = [f"{name}: {b:.1f} -> {a:.1f} dB(A)" for name, b, a in plan_levels(run)]
         lines += [f"! {r}" for r in p.reasons]
+        if run.applied:
+            lines.append(applied_text(run))
         self.query_one("#plan-reasons", Static).update("\n".join(lines))
         self.query_one("#plan-apply", Button).disabled = not p.items
         self.call_after_refresh(self.query_one("#plan-result").scroll_visible, animate=False)
