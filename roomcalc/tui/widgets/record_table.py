@@ -42,6 +42,8 @@ class Column:
 
 
 def fmt_value(v, kind: str) -> str:
+    if kind == "flag":
+        return "yes" if v else "no"
     if v is None:
         return ""
     if kind in ("numbers", "position"):
@@ -50,8 +52,6 @@ def fmt_value(v, kind: str) -> str:
         return ", ".join(f"{k}={x:g}" for k, x in v.items())
     if kind == "names" and isinstance(v, list):
         return "; ".join(v)
-    if kind == "flag":
-        return "yes" if v else "no"
     if isinstance(v, float):
         return f"{v:g}"
     return str(v)
