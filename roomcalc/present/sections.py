@@ -285,9 +285,13 @@ def plan_text(run: PlanRun, u: Units = METRIC, width=None) -> str:
         for it in p.items:
             amount = (f"{it.amount / u.area:.2f} {u.area_label}" if it.kind == "cover"
                       else f"{it.amount:g} units")
-            lines.append(f"  {it.candidate[:34]:34} {(it.surface or 'added')[:18]:18} "
-                         f"{amount:>12} {it.cost:>10.2f}")
-            if it.surface and len(it.surface) > 18:
+            where = it.surface or "added"
+            several = it.surface is not None and len(it.surface) > 18
+            if several:
+                where = f"{it.surface.count(', ') + 1} surfaces" if ", " in it.surface \
+                    else it.surface[:17] + "~"
+            lines.append(f"  {it.candidate[:34]:34} {where:18} {amount:>12} {it.cost:>10.2f}")
+            if several:
                 lines.append(wrap(f"on {it.surface}", "    ", "      ", width=width))
             if panels_of(run, it) is not None:
                 lines.append(f"    {amount_text(run, it, u)}")

@@ -181,7 +181,8 @@ class PlanView(VerticalScroll):
             self._names.append(c.name)
             if c.covers:
                 where = "every wall" if c.walls else ", ".join(c.surface_names(spec))
-                most = "whole surface" if c.max_area is None else f"{c.max_area:g} {area_label}"
+                whole = "whole surface" if len(c.surface_names(spec)) == 1 else "all of them"
+                most = whole if c.max_area is None else f"{c.max_area:g} {area_label}"
                 cost = "-" if c.area_cost is None else f"{c.area_cost:g}{cur}/{area_label}"
             else:
                 where = "added units"
