@@ -228,6 +228,18 @@ def test_a_list_of_surfaces(catalog):
     assert panel.surface == (4, 5) and panel.max_amount == pytest.approx(36.0)
 
 
+def test_renaming_a_surface_follows_into_a_list(catalog):
+    from roomcalc.study.edits import rename_item
+
+    text = ROOM.replace('walls = true', 'surface = ["Left", "Right"]  # two walls')
+    spec = parse_spec(text)
+    rename_item(spec, "surfaces", 4, "Left wall")
+    assert spec.candidates[0].surface == ["Left wall", "Right"]
+    out = spec_to_toml_keeping(spec, text)
+    assert 'surface = ["Left wall", "Right"]  # two walls' in out
+    assert parse_spec(out) == spec
+
+
 @pytest.mark.parametrize("change, field, message", [
     ('surface = ["Left", "Rigth"]', "surface", "'Rigth' is not a surface of this room; did "
      "you mean 'Right'?"),
