@@ -374,3 +374,26 @@ def test_the_interface_reads_names_and_yes_no():
     assert fmt_value(True, "flag") == "yes" and fmt_value(None, "flag") == "no"
     with pytest.raises(ValueError, match="yes or no"):
         parse_value("maybe", flag)
+
+
+def test_the_plan_command_counts_panels_in_every_format(tmp_path, capsys):
+    import csv
+    import io
+
+    from roomcalc.cli import main
+
+    path = _write(tmp_path, ROOM.replace("rt60_max = 0.6", "rt60_max = 1.2"))
+    outputs = {}
+    for form in ("text", "markdown", "json", "csv"):
+        main(["plan", str(path), "--format", form])
+        outputs[form] = capsys.readouterr().out
+    d = json.loads(outputs["json"])
+    item = next(i for i in d["items"] if i["candidate"] == "Wall panel")
+    n = item["panels"]["count"]
+    assert n >= 1 and item["area_m2"] == pytest.approx(n * 0.72)
+    words = f"{n} panels of 1.2 x 0.6 m = {item['area_m2']:.2f} m^2"
+    assert words in outputs["text"] and words in outputs["markdown"]
+    rows = list(csv.DictReader(io.StringIO(outputs["csv"])))
+    row = next(r for r in rows if r["candidate"] == "Wall panel")
+    assert (int(row["panels"]), float(row["panel_width_m"]), row["how_much"]) == (n, 1.2, words)
+    assert outputs["markdown"].startswith("# Treatment plan")

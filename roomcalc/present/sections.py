@@ -18,7 +18,7 @@ if TYPE_CHECKING:
 
 __all__ = ["window_text", "occupancy_text", "target_text", "target_dict", "exposure_text",
            "exposure_dict", "plan_levels", "plan_totals_text", "plan_text", "plan_dict", "occupancy_dict",
-           "amount_text", "panels_of", "applied_text"]
+           "amount_text", "panels_of", "applied_text", "plan_markdown", "plan_csv"]
 
 
 def window_text(lo: float, hi: float) -> str:
@@ -316,3 +316,46 @@ def plan_text(run: PlanRun, u: Units = METRIC, width=None) -> str:
     for r in p.reasons:
         lines.append(wrap(r, "  ! ", "    ", width=width))
     return "\n".join(lines) + "\n"
+
+
+def plan_markdown(run: PlanRun, u: Units = METRIC) -> str:
+    """The plan as markdown: a table of what to buy (panels counted), then the text section."""
+    p = run.plan
+    out = ["# Treatment plan", ""]
+    if p.items:
+        cur = f" [{run.currency}]" if run.currency else ""
+        out += [f"| what | where | how much | cost{cur} |", "|---|---|---|---:|"]
+        out += [f"| {it.candidate} | {it.surface or 'added'} | {amount_text(run, it, u)} | "
+                f"{it.cost:.2f} |" for it in p.items]
+        out.append("")
+    if run.applied:
+        out += [applied_text(run), ""]
+    out += ["```", plan_text(run, u).rstrip(), "```"]
+    return "\n".join(out) + "\n"
+
+
+def plan_csv(run: PlanRun, u: Units = METRIC) -> str:
+    """The plan as CSV, one row per item (SI: ``amount`` in m2 or units), with the panels of a
+    stated size counted, then the total, then each candidate left out as applied."""
+    import csv
+    import io
+
+    from roomcalc.present.numbers import csv_number
+
+    buf = io.StringIO()
+    w = csv.writer(buf, lineterminator="\n")
+    w.writerow(["row", "candidate", "where", "amount", "unit", "panels", "panel_area_m2",
+                "panel_width_m", "panel_height_m", "cost", "how_much"])
+    for it in run.plan.items:
+        panels = panels_of(run, it)
+        n, each, size = panels if panels is not None else ("", "", None)
+        w.writerow(["item", it.candidate, it.surface or "added", csv_number(it.amount),
+                    "m2" if it.kind == "cover" else "units", n, csv_number(each),
+                    csv_number(size[0]) if size else "", csv_number(size[1]) if size else "",
+                    csv_number(it.cost), amount_text(run, it, u)])
+    area, units = _totals(run)
+    w.writerow(["total", "", "", csv_number(area), "m2", "", "", "", "",
+                csv_number(run.plan.total_cost), plan_totals_text(run, u)])
+    for name in run.applied:
+        w.writerow(["applied, left out", name, "", "", "", "", "", "", "", "", ""])
+    return buf.getvalue()
