@@ -270,8 +270,24 @@ def test_panel_and_step_must_agree():
     with pytest.raises(RoomFileError, match=r"candidates\[0\].step: 0.5 m\^2 is not the "
                                             r"panel's area \(1.2 x 0.6 = 0.72 m\^2\)"):
         parse_spec(ROOM.replace('panel = [1.2, 0.6]', 'panel = [1.2, 0.6]\nstep = 0.5'))
-    with pytest.raises(RoomFileError, match=r"candidates\[0\].panel"):
+    with pytest.raises(RoomFileError, match=r"candidates\[0\].panel\[1\]: 0.01 is outside "
+                                            r"0.05 to 100 m$"):
         parse_spec(ROOM.replace('panel = [1.2, 0.6]', 'panel = [1.2, 0.01]'))
+    with pytest.raises(RoomFileError, match=r"panel: must be \[width, height\] of one panel "
+                                            r"\(m\), not 1 value$"):
+        parse_spec(ROOM.replace('panel = [1.2, 0.6]', 'panel = [1.2]'))
+    # An imperial file is told its range in ft (0.05 m / 0.3048 = 0.164042 ft).
+    imperial = ROOM.replace("version = 1", 'version = 1\nunits = "imperial"') \
+        .replace("cost_per_m2", "cost_per_ft2").replace("panel = [1.2, 0.6]", "panel = [4, 0.1]")
+    with pytest.raises(RoomFileError, match=r"panel\[1\]: 0.1 is outside 0.164042 to "
+                                            r"328.084 ft"):
+        parse_spec(imperial)
+    # In the interface a panel size and an area per panel replace each other: never at odds.
+    spec = parse_spec(ROOM)
+    set_item_fields(spec, "candidates", 0, {"step": 0.5})
+    assert (spec.candidates[0].step, spec.candidates[0].panel) == (0.5, None)
+    set_item_fields(spec, "candidates", 0, {"panel": [0.6, 0.6]})
+    assert (spec.candidates[0].step, spec.candidates[0].panel) == (None, [0.6, 0.6])
 
 
 def _run(cand, amount):
@@ -312,6 +328,7 @@ def test_a_plan_of_panels_says_how_many_in_every_output(tmp_path, catalog):
                                        "width_m": 1.2, "height_m": 0.6}
     assert d["items"][0]["how_much"] == words
     assert d["items"][0]["surface"] == "Front, Back, Left, Right"
+    assert d["items"][0]["surfaces"] == ["Front", "Back", "Left", "Right"]
 
 
 def test_panel_sizes_follow_a_change_of_units():

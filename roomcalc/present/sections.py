@@ -187,6 +187,17 @@ def panels_of(run: PlanRun, item) -> tuple[int, float, tuple | None] | None:
     return int(round(item.amount / cand.step)), float(cand.step), cand.panel
 
 
+def _surfaces_of(run: PlanRun, item) -> list[str]:
+    """The names of the surfaces a covered item lies on (empty for units)."""
+    from roomcalc.engine.planner import cover_surfaces
+
+    cand = next((c for c in run.candidates if c.name == item.candidate), None)
+    if item.kind != "cover" or cand is None:
+        return []
+    room = run.occupancy.room
+    return [room.surfaces[i].name for i in cover_surfaces(cand)]
+
+
 def amount_text(run: PlanRun, item, u: Units = METRIC) -> str:
     """How much of one item, in the file's units: "4 units", "5.04 m^2", or for panels of a
     stated size "7 panels of 1.2 x 0.6 m = 5.04 m^2" ("7 panels of 0.72 m^2 = 5.04 m^2" where
@@ -227,14 +238,15 @@ def plan_totals_text(run: PlanRun, u: Units = METRIC) -> str:
 
 def plan_dict(run: PlanRun, u: Units = METRIC) -> dict:
     """The plan as JSON (SI): ``feasible``, ``items`` (``candidate``, ``surface`` or null
-    (several: "A, B"), ``area_m2`` or ``count``, ``cost``, ``panels`` for panels of a stated
+    (several: "A, B"), ``surfaces`` (their names, a list; empty for units), ``area_m2`` or ``count``, ``cost``, ``panels`` for panels of a stated
     size (``count``, ``area_each_m2``, ``width_m``, ``height_m``), ``how_much`` in words in
     the file's units), ``applied_left_out`` (candidates applied to the room already), ``total_cost``, ``total_area_m2`` (covers only),
     ``total_units``, ``rt60_after_s`` by ``method`` (the formula in force), and more."""
     p = run.plan
     items = []
     for it in p.items:
-        d = {"candidate": it.candidate, "surface": it.surface}
+        d = {"candidate": it.candidate, "surface": it.surface,
+             "surfaces": _surfaces_of(run, it)}
         d["area_m2" if it.kind == "cover" else "count"] = it.amount
         d["cost"] = it.cost
         panels = panels_of(run, it)

@@ -179,8 +179,7 @@ def _cover(chk: Checker, c: dict, w: str, cp: CandidateSpec, spec: RoomSpec, u: 
                 + bt + ") for the covered part")
     cp.max_area = chk.number(c, "max_area", w, **limit("max_area", u))
     cp.step = chk.number(c, "step", w, **limit("step", u))
-    cp.panel = chk.numbers(c, "panel", w, length=2,
-                           **limit("panel", u, unit=f"{u.length_label}: [width, height]"))
+    cp.panel = _panel(chk, c, w, u)
     if cp.panel is not None and cp.step is not None and not math.isclose(
             cp.panel[0] * cp.panel[1], cp.step, rel_tol=1e-3):
         chk.add(f"{w}.step", f"{cp.step:g} {u.area_label} is not the panel's area "
@@ -194,6 +193,20 @@ def _cover(chk: Checker, c: dict, w: str, cp: CandidateSpec, spec: RoomSpec, u: 
                 f"{u.area_label}: use {cost_key}")
     setattr(cp, cost_key, chk.number(c, cost_key, w,
                                      **limit("cost", unit=f"per {u.area_label}")))
+
+
+def _panel(chk: Checker, c: dict, w: str, u: Units) -> list[float] | None:
+    """``panel = [width, height]``, each in the range of a panel side (in the file's units)."""
+    if "panel" not in c:
+        return None
+    v = c["panel"]
+    if not isinstance(v, list) or len(v) != 2:
+        chk.add(f"{w}.panel", f"must be [width, height] of one panel ({u.length_label}), not "
+                + (f"{len(v)} value{'' if len(v) == 1 else 's'}" if isinstance(v, list)
+                   else kind_of(v)))
+        return None
+    sides = [chk.value(x, f"{w}.panel[{i}]", **limit("panel", u)) for i, x in enumerate(v)]
+    return None if None in sides else [float(x) for x in sides]
 
 
 def _known_surfaces(chk: Checker, w: str, names: list[str], surfaces: list[str]) -> None:
