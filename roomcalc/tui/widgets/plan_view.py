@@ -272,11 +272,16 @@ class PlanView(VerticalScroll):
         if not g.row_count:
             return
         name = self._names[g.cursor_row]
+        row = g.get_row_at(g.cursor_row)
+        if row[0] == "applied":
+            # Built into the room already: the plan leaves it out whatever its tick.
+            self.notify(f"'{name}' is applied to the room already; set Applied to no in "
+                        "tab 6 to plan it again.")
+            return
         if name in self.disabled_names:
             self.disabled_names.discard(name)
         else:
             self.disabled_names.add(name)
-        row = g.get_row_at(g.cursor_row)
         row[0] = "[ ]" if name in self.disabled_names else "[x]"
         rows = [g.get_row_at(i) for i in range(g.row_count)]
         rows[g.cursor_row] = row
