@@ -170,7 +170,11 @@ def plan(room: Room, candidates: Sequence[Candidate], goals: Goals, *,
     Variables: :math:`0 \\le x_j \\le x_{j,max}`, and the covers on each surface add up to at
     most its area. Per band, absorption is affine in x,
     :math:`A_b(x) = A_{0,b} + \\sum_j \\Delta A_{jb} x_j`, with :math:`\\Delta A_{jb}` the
-    change per m^2 covered of surface i, or the absorption per unit. With
+    change per m^2 covered of surface i, or the absorption per unit. A cover over several
+    surfaces puts :math:`w_i x_j` on surface i, :math:`w_i = S_i / \\sum_k S_k`
+    (:func:`~roomcalc.engine.planner.goals.cover_shares`): its :math:`\\Delta A_{jb}` is
+    :math:`\\sum_i w_i \\Delta A_{jb,i}`, and surface i holds
+    :math:`\\sum_j w_{ij} x_j \\le S_i`. With
     :math:`Y_b = K V / T_{max} - 4 m_b V` (air as in the engine, outside A):
 
     - Sabine [1]_: :math:`\\Delta A = \\alpha_j - \\alpha_i` (alpha as given, above 1 too);

@@ -163,8 +163,9 @@ class TargetSpec:
 
 @dataclass
 class CandidateSpec:
-    """One [[candidates]] entry as written (file units). With ``surface`` it covers part of that
-    surface; without, it is added as units."""
+    """One [[candidates]] entry as written (file units). With ``surface`` (one name or a list)
+    or ``walls`` it covers part of those surfaces; without, it is added as units. ``applied``:
+    built into the room already (a plan applied it), so a plan leaves it out."""
 
     name: str
     surface: str | list[str] | None = None  # cover: one surface's name, or a list of names
