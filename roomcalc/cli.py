@@ -72,8 +72,8 @@ def _parser() -> argparse.ArgumentParser:
     pl.add_argument("file", help="room file (.toml) with [target] and [[candidates]]")
     pl.add_argument("--objective", choices=("cost", "area"),
                     help="least cost (default, or the file's [target] objective) or least area")
-    pl.add_argument("--format", choices=("text", "json"), default="text",
-                    help="output format (json is in SI units)")
+    pl.add_argument("--format", choices=("text", "markdown", "json", "csv"), default="text",
+                    help="output format (json and csv are in SI units)")
     pl.add_argument("--write", metavar="TREATED.toml",
                     help="also write the treated room as a new room file")
 
@@ -265,12 +265,17 @@ def _plan(args, catalog) -> int:
         if args.write:
             data["written"] = str(args.write)
         sys.stdout.write(json_text(data))
+    elif args.format == "csv":
+        sys.stdout.write(sections.plan_csv(run, u))
     else:
-        sys.stdout.write(sections.plan_text(run, u))
+        sys.stdout.write(sections.plan_markdown(run, u) if args.format == "markdown"
+                         else sections.plan_text(run, u))
         days = exposures(study.spec, run.described_before)
         if days:
             after = exposures(study.spec, run.described_after)
-            sys.stdout.write(sections.exposure_text(days, after))
+            text = sections.exposure_text(days, after)
+            sys.stdout.write(f"\n## Daily noise exposure\n\n```\n{text}```\n"
+                             if args.format == "markdown" else text)
         if args.write:
             print(f"Treated room written to {args.write}")
     return EXIT_OK if run.plan.feasible else 1

@@ -102,6 +102,7 @@ RANGES: dict[str, Range] = {
     "max_area": Range(0.0, 1e9, "area", why="most area a candidate covers (up to all of a "
                       "surface's count)"),
     "step": Range(0.001, 1e5, "area", why="area of one panel"),
+    "panel": Range(0.05, 100.0, "length", why="width or height of one panel, 5 cm to 100 m"),
     "max_count": Range(0.0, 1e6, unit="units", why="most units of a candidate"),
     "area_each": Range(0.001, 1e5, "area", why="what one unit counts for"),
 }

@@ -4,6 +4,8 @@ Every function changes the spec in place, so that a caller with an undo history 
 interface's ``Document.change``) can snapshot it first, and returns what the user should be
 told, if anything. The rules:
 
+- :func:`new_candidate` -- a new treatment row, valid as it stands (a default material of
+  its kind, a surface of the room to cover);
 - :func:`set_item_fields` -- set a field of a surface, object, source, receiver or candidate,
   clearing the keys that exclude it (typing alpha drops the material; a sound power per band
   drops the dB(A) figures and their spectrum; one dB(A) figure, the sound power or the level
@@ -31,14 +33,14 @@ from roomcalc.engine.field import PLACEMENT_Q
 from roomcalc.io.catalog import Catalog
 from roomcalc.io.limits import RANGES
 from roomcalc.io.planning import convert_candidate_units
-from roomcalc.io.roomfile import RoomSpec, TargetSpec
+from roomcalc.io.roomfile import WALL_FACES, CandidateSpec, RoomSpec, TargetSpec
 from roomcalc.io.sources import (TypicalSource, source_band_power, spectrum_names,
                                  spectrum_shape)
 from roomcalc.io.units import UNITS
 from roomcalc.study.typed import parse_numbers
 
-__all__ = ["COLLECTIONS", "set_item_fields", "rename_item", "change_bands", "convert_units",
-           "nearest_band_fill", "set_method", "set_criterion", "set_objective",
+__all__ = ["COLLECTIONS", "new_candidate", "set_item_fields", "rename_item", "change_bands",
+           "convert_units", "nearest_band_fill", "set_method", "set_criterion", "set_objective",
            "set_own_rt60_limit", "parse_rt60_limit", "use_typical_source"]
 
 #: The spec's lists of items, in the order the interface shows them.
@@ -48,7 +50,9 @@ COLLECTIONS = ("surfaces", "objects", "sources", "receivers", "candidates")
 _EXCLUDES = {
     "surfaces": {"alpha": ("material",)},
     "objects": {"absorption": ("material",)},
-    "candidates": {"alpha": ("material",), "absorption": ("material",)},
+    "candidates": {"alpha": ("material",), "absorption": ("material",),
+                   "surface": ("walls",), "walls": ("surface",),
+                   "panel": ("step",), "step": ("panel",)},
     "sources": {"sound_power": ("sound_power_dba", "level_dba_1m", "spectrum"),
                 "sound_power_dba": ("sound_power", "level_dba_1m"),
                 "level_dba_1m": ("sound_power", "sound_power_dba"),
@@ -58,6 +62,26 @@ _EXCLUDES = {
 
 #: The spectrum a source given in dB(A) takes when it has none yet.
 DEFAULT_SPECTRUM = "pink"
+#: The catalogue material a new treatment starts with: a porous wall panel when it covers a
+#: surface, a bass trap when it is added as units (a material of the wrong kind for the other).
+DEFAULT_COVER_MATERIAL = "glass-fibre-board-50mm-fabric"
+DEFAULT_UNITS_MATERIAL = "corner-trap-porous-floor-to-ceiling"
+#: Most units a new treatment added as units may use (the user changes it).
+DEFAULT_UNITS_MAX = 4
+
+
+def new_candidate(spec: RoomSpec, name: str) -> CandidateSpec:
+    """A new treatment row that is valid as it stands: it covers a surface of the room (the
+    first on a wall face, else the first surface; a name used twice cannot be covered) with
+    the default porous wall panel, or, in a room without such a surface, is added as units
+    (at most :data:`DEFAULT_UNITS_MAX` bass traps). No cost: the user gives it."""
+    names = [s.name for s in spec.surfaces]
+    unique = [s for s in spec.surfaces if names.count(s.name) == 1]
+    wall = next((s for s in unique if s.face in WALL_FACES), None) or next(iter(unique), None)
+    if wall is not None:
+        return CandidateSpec(name=name, surface=wall.name, material=DEFAULT_COVER_MATERIAL)
+    return CandidateSpec(name=name, material=DEFAULT_UNITS_MATERIAL,
+                         max_count=DEFAULT_UNITS_MAX)
 
 
 def set_item_fields(spec: RoomSpec, collection: str, index: int, values: dict) -> str:
@@ -81,8 +105,16 @@ def set_item_fields(spec: RoomSpec, collection: str, index: int, values: dict) -
                                     or values.get("level_dba_1m") is not None) \
             and item.spectrum is None and "spectrum" not in values:
         clear["spectrum"] = DEFAULT_SPECTRUM
+    was_cover = getattr(item, "covers", None)
     for key, value in {**clear, **values}.items():
         setattr(item, key, value)
+    if collection == "candidates" and was_cover != item.covers and "material" not in values:
+        # Made a cover of a units row or the other way: a default material of the old kind
+        # becomes the default of the new one, so the row stays valid.
+        swap = {DEFAULT_UNITS_MATERIAL: DEFAULT_COVER_MATERIAL,
+                DEFAULT_COVER_MATERIAL: DEFAULT_UNITS_MATERIAL}
+        if item.material in swap:
+            item.material = swap[item.material]
     if new_name is not None and new_name != item.name:
         rename_item(spec, collection, index, new_name)
     return label
@@ -126,6 +158,8 @@ def rename_item(spec: RoomSpec, collection: str, index: int, new: str) -> str:
         for c in spec.candidates:
             if c.surface == old:
                 c.surface = new
+            elif isinstance(c.surface, list):
+                c.surface = [new if n == old else n for n in c.surface]
     elif collection == "receivers" and spec.target is not None:
         spec.target.max_level_dba = swap(spec.target.max_level_dba)
         spec.target.max_level_db = swap(spec.target.max_level_db)
@@ -227,7 +261,7 @@ def change_bands(spec: RoomSpec, bands, catalog: Catalog | None = None) -> list[
                     setattr(item, key, fix(getattr(item, key)))
             # The values a material stands for: alpha on a surface or a cover, absorption per
             # unit on an object or a candidate added as units.
-            own = "alpha" if coll == "surfaces" or (coll == "candidates" and item.surface) \
+            own = "alpha" if coll == "surfaces" or (coll == "candidates" and item.covers) \
                 else "absorption"
             mid = _material_to_own(spec, item, own, catalog, new, added)
             if mid:

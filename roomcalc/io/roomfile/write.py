@@ -74,6 +74,7 @@ def _planning(spec: RoomSpec, d: dict) -> None:
 def _candidate_out(c) -> dict:
     d = {k: _limit_out(getattr(c, k)) for k in CANDIDATE_KEYS}
     d["max_count"] = _whole(c.max_count)
+    d["applied"] = True if c.applied else None      # false is the default: left out
     return _clean(d)
 
 

@@ -137,7 +137,7 @@ class EditRoutes:
         from roomcalc.tui.screens.materials import MaterialChooser
 
         rec = self.document.items(coll)[i]
-        surface_like = coll == "surfaces" or (coll == "candidates" and rec.surface)
+        surface_like = coll == "surfaces" or (coll == "candidates" and rec.covers)
         kind = "surface" if surface_like else "object"
         own = rec.alpha if surface_like else rec.absorption
         cat = self.catalog.with_materials(self.document.spec.materials) \

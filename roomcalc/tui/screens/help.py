@@ -72,7 +72,8 @@ kept from before").
 - **Plan** (F9): the cheapest (or smallest) set of treatments from the Treatments tab (key 6) that brings RT60 per
   band into the target window (a criterion such as DIN 18041 or ANSI S12.60, or the room file's
   own limits) and levels at receivers under their limits, by linear programming (whole units and
-  panels by mixed-integer programming). "Apply to the room" makes it one undoable edit. The plan
+  panels by mixed-integer programming). "Apply to the room" makes it one undoable edit; the
+  treatments it used stay in tab 6 marked Applied, and the next plan leaves them out. The plan
   is made in the background: the tab shows the step (building, solving, cutting plane k of at
   most N, checking the treated room) and the time so far; a plan made for a room that has been
   edited since is not shown as the room's and cannot be applied: press r again.

@@ -14,7 +14,8 @@ from textual.message import Message
 from textual.widgets import Button, Input, Select, Static
 
 from roomcalc.engine.analysis import METHOD_TITLES, METHODS
-from roomcalc.present.sections import plan_levels
+from roomcalc.io.units import METRIC
+from roomcalc.present.sections import amount_text, applied_text, plan_levels
 from roomcalc.tui.widgets.grid import CellGrid
 from roomcalc.tui.widgets.results import BandTable
 from roomcalc.tui.widgets.room_form import RECOMMENDED
@@ -190,25 +191,27 @@ class PlanView(VerticalScroll, can_focus=False):
         cur = f" {t.currency}" if t is not None and t.currency else ""
         for c in spec.candidates:
             self._names.append(c.name)
-            if c.surface:
-                where = c.surface
-                most = "whole surface" if c.max_area is None else f"{c.max_area:g} {area_label}"
+            if c.covers:
+                where = "every wall" if c.walls else ", ".join(c.surface_names(spec))
+                whole = "whole surface" if len(c.surface_names(spec)) == 1 else "all of them"
+                most = whole if c.max_area is None else f"{c.max_area:g} {area_label}"
                 cost = "-" if c.area_cost is None else f"{c.area_cost:g}{cur}/{area_label}"
             else:
                 where = "added units"
                 most = "any number" if c.max_count is None else f"{c.max_count:g}"
                 cost = "-" if c.cost_each is None else f"{c.cost_each:g}{cur} each"
-            rows.append(["[ ]" if c.name in self.disabled_names else "[x]", c.name, where, most,
-                         cost])
+            use = ("applied" if c.applied else
+                   "[ ]" if c.name in self.disabled_names else "[x]")
+            rows.append([use, c.name, where, most, cost])
         self.query_one("#plan-candidates", CellGrid).set_rows(rows, keys=self._names)
 
     def show_check(self, text: str) -> None:
         """The room as it is now against its target (the report's target section)."""
         self.query_one("#plan-check", Static).update(text.rstrip())
 
-    def show_run(self, run, totals: str, area, area_label: str) -> None:
+    def show_run(self, run, totals: str, area, area_label: str, units=METRIC) -> None:
         """A plan (a PlanRun of roomcalc.study) with its totals in words ("48.62 m^2 and 40
-        units")."""
+        units"); ``units``: the room file's (amounts and panel sizes are shown in them)."""
         p = run.plan
         cur = f" {run.currency}" if run.currency else ""
         head = ("The plan meets the target." if p.feasible
@@ -222,9 +225,8 @@ class PlanView(VerticalScroll, can_focus=False):
                     else "No candidate helps.")
         self.query_one("#plan-result", Static).update(head)
         items = self.query_one("#plan-items", CellGrid)
-        items.set_rows([[it.candidate, it.surface or "added",
-                         f"{it.amount / area:.2f} {area_label}" if it.kind == "cover"
-                         else f"{it.amount:g} units", f"{it.cost:.2f}"] for it in p.items])
+        items.set_rows([[it.candidate, it.surface or "added", amount_text(run, it, units),
+                         f"{it.cost:.2f}"] for it in p.items])
         items.display = bool(p.items)
         rt = self.query_one("#plan-rt", PlanRtTable)
         lo, hi = run.goals.rt60_min, run.goals.rt60_max
@@ -232,6 +234,8 @@ class PlanView(VerticalScroll, can_focus=False):
         rt.display = True
         lines = [f"{name}: {b:.1f} -> {a:.1f} dB(A)" for name, b, a in plan_levels(run)]
         lines += [f"! {r}" for r in p.reasons]
+        if run.applied:
+            lines.append(applied_text(run))
         self.query_one("#plan-reasons", Static).update("\n".join(lines))
         self._can_apply(bool(p.items))
         self.call_after_refresh(self.query_one("#plan-result").scroll_visible, animate=False)
@@ -280,11 +284,16 @@ class PlanView(VerticalScroll, can_focus=False):
         if not g.row_count:
             return
         name = self._names[g.cursor_row]
+        row = g.get_row_at(g.cursor_row)
+        if row[0] == "applied":
+            # Built into the room already: the plan leaves it out whatever its tick.
+            self.notify(f"'{name}' is applied to the room already; set Applied to no in "
+                        "tab 6 to plan it again.")
+            return
         if name in self.disabled_names:
             self.disabled_names.discard(name)
         else:
             self.disabled_names.add(name)
-        row = g.get_row_at(g.cursor_row)
         row[0] = "[ ]" if name in self.disabled_names else "[x]"
         rows = [g.get_row_at(i) for i in range(g.row_count)]
         rows[g.cursor_row] = row

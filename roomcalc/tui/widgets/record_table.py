@@ -25,7 +25,8 @@ from roomcalc.tui.widgets.grid import CellGrid
 class Column:
     """One column: the record attribute, its heading, and how to show, parse and edit it.
 
-    kind: text, number, int, choice, material, numbers (a list), position, distances.
+    kind: text, number, int, choice, material, numbers (a list), position, distances, names
+    (one name, or several separated by semicolons: a list), flag (yes / no: True or None).
     """
 
     key: str
@@ -46,12 +47,16 @@ SHRINK_TO = {"text": 8, "material": 10, "choice": 6}
 
 
 def fmt_value(v, kind: str) -> str:
+    if kind == "flag":
+        return "yes" if v else "no"
     if v is None:
         return ""
     if kind in ("numbers", "position"):
         return " ".join(f"{x:g}" for x in v)
     if kind == "distances":
         return ", ".join(f"{k}={x:g}" for k, x in v.items())
+    if kind == "names" and isinstance(v, list):
+        return "; ".join(v)
     if isinstance(v, float):
         return f"{v:g}"
     return str(v)
@@ -67,6 +72,18 @@ def parse_value(text: str, col: Column):
         raise ValueError(f"{col.label} cannot be empty")
     if col.kind == "text":
         return t
+    if col.kind == "names":
+        names = [n.strip() for n in t.split(";") if n.strip()]
+        if len(set(names)) < len(names):
+            raise ValueError("a name is given twice; give each once")
+        return names[0] if len(names) == 1 else names
+    if col.kind == "flag":
+        low = t.lower()
+        if low in ("yes", "y", "true", "1"):
+            return True
+        if low in ("no", "n", "false", "0"):
+            return None
+        raise ValueError(f"'{t}': type yes or no")
     if col.kind == "number":
         return parse_number(t)             # "9,5" or "9.5"
     if col.kind == "int":
