@@ -29,6 +29,7 @@ told, if anything. The rules:
 from __future__ import annotations
 
 import math
+import re
 
 from roomcalc.engine.bands import DEFAULT_BANDS_HZ
 from roomcalc.engine.field import PLACEMENT_Q
@@ -200,8 +201,15 @@ def use_typical_source(spec: RoomSpec, index: int, typical: TypicalSource) -> st
         values = {"sound_power": nearest_band_fill([round(float(x), 1) for x in lw], have,
                                                    bands),
                   "placement": typical.placement}
+    old = spec.sources[index].name
     set_item_fields(spec, "sources", index, values)
-    return f"source '{spec.sources[index].name}': {typical.name}"
+    # A row still named as it was added ("Source 2") takes the typical source's name, the
+    # part before a comma ("Table saw"), if no other source has it; references follow.
+    short = typical.name.split(",")[0].strip()
+    if re.fullmatch(rf"{NEW_NAMES['sources']} \d+", old) \
+            and short not in {x.name for x in spec.sources}:
+        rename_item(spec, "sources", index, short)
+    return f"source '{old}': {typical.name}"
 
 
 def rename_item(spec: RoomSpec, collection: str, index: int, new: str) -> str:
