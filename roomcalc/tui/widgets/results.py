@@ -73,7 +73,7 @@ class ReverbTable(BandTable):
         self._row(f"R [{units.area_label}]", res.room_constant_m2 / units.area, 1)
         self._row("mean alpha", res.mean_alpha, 3)
         for s in res.sources:
-            name = s.name if len(s.name) <= 12 else s.name[:11] + "~"
+            name = s.name if len(s.name) <= 12 else s.name[:11] + "\u2026"
             self._row(f"r_c {name} [{units.length_label}]", s.critical_distance_m / units.length)
         self._row("f_S [Hz]", res.schroeder_hz, 0)
         self._row("air [dB/km]", res.air_attenuation_db_per_m * 1000.0, 1)
