@@ -408,10 +408,11 @@ def test_view_keys_after_the_plan_and_a_digit_in_a_field_in_a_real_terminal(tmp_
     try:
         screen = _wait(capture, lambda s: "Sabine" in s)
         assert "Sabine" in screen, screen
-        screen = press("F9", lambda s: "What the room must reach" in s)
-        assert "What the room must reach" in screen, screen
-        screen = press("F5", lambda s: "Sabine" in right(s) and "What the room" not in s)
-        assert "Sabine" in right(screen) and "What the room must reach" not in screen, screen
+        # (the plan view's own keys on the key line tell it is shown, whatever it scrolled to)
+        screen = press("F9", lambda s: "Use or not" in s)
+        assert "Use or not" in screen, screen
+        screen = press("F5", lambda s: "Sabine" in right(s) and "Use or not" not in s)
+        assert "Sabine" in right(screen) and "Use or not" not in screen, screen
         screen = press("1", lambda s: "Temperature" in s or "Title" in s)
         assert "Title" in screen, screen
         screen = press("Down", lambda s: "Leave the field" in s)
