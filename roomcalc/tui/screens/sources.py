@@ -48,7 +48,8 @@ class SourceChooser(ModalScreen[str | None]):
     def on_mount(self) -> None:
         table = self.query_one("#list", CellGrid)
         table.add_column("dB(A) 1 m", key="level", justify="right")
-        table.add_column("name", key="name")
+        table.add_column("name", key="name", shrink_to=12)
+        table.keep_in_view = 2                  # names cut (with an ellipsis) to fit
         table.set_rows([[f"{t.level_dba_1m(self.bands):.1f}", t.name] for t in self.sources],
                        keys=[t.id for t in self.sources])
         table.move_cursor(row=0)
