@@ -236,9 +236,13 @@ def kind_of(v) -> str:
 class Checker:
     """Collects problems for one file."""
 
-    def __init__(self, filename: str):
+    def __init__(self, filename: str, keep: bool = False):
         self.filename = filename
         self.problems: list[Problem] = []
+        #: Keep a number that is outside its range (or not whole where a whole number goes)
+        #: instead of dropping it, as the interface keeps a value typed out of range: a file
+        #: with problems is opened with its numbers as written (roomcalc.io.roomfile.asread).
+        self.keep = keep
 
     def add(self, where: str, message: str) -> None:
         self.problems.append(Problem(self.filename, where, message))
@@ -337,7 +341,7 @@ class Checker:
               integer=False, unit=""):
         if integer and isinstance(v, float) and math.isfinite(v):
             self.add(where, f"must be a whole number, not {v!r}")
-            return default
+            return v if self.keep else default
         if isinstance(v, bool) or not isinstance(v, (int, float)) or \
                 (integer and not isinstance(v, int)):
             want = "a whole number" if integer else "a number"
@@ -354,7 +358,7 @@ class Checker:
             (high is not None and v > high)
         if bad:
             self.add(where, f"{_fmt(v)} is outside {_range(low, high, low_open, unit)}")
-            return default
+            return v if self.keep else default
         return v
 
     def numbers(self, table: dict, key: str, where: str, *, length=None, low=None, high=None,
@@ -371,13 +375,20 @@ class Checker:
         if length is not None and len(v) != length:
             self.add(path, f"has {len(v)} {what}; {length} are needed ({unit})" if unit else
                      f"has {len(v)} {what}; {length} are needed")
-            return None
+            return self._kept(v)
         out, ok = [], True
         for i, x in enumerate(v):
             y = self.value(x, f"{path}[{i}]", low=low, high=high, low_open=low_open)
             ok &= y is not None
             out.append(y)
         return [float(x) for x in out] if ok else None
+
+    def _kept(self, v: list):
+        """A list of numbers of the wrong length, kept in keep mode (else None)."""
+        if self.keep and v and all(isinstance(x, (int, float)) and not isinstance(x, bool)
+                                   and math.isfinite(x) and abs(x) <= 1e300 for x in v):
+            return [float(x) for x in v]
+        return None
 
 
 def _fmt(v) -> str:
