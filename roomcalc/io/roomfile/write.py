@@ -58,8 +58,9 @@ def spec_fields_dict(spec: RoomSpec) -> dict:
                              ("pressure_kpa", spec.air.pressure_kpa)) if v is not None}
     if air:
         d["air"] = air
-    d["shape"] = {k: getattr(spec.shape, k) for k in SHAPE_KEYS
-                  if getattr(spec.shape, k) is not None}
+    shape = {k: getattr(spec.shape, k) for k in SHAPE_KEYS if getattr(spec.shape, k) is not None}
+    if shape:                   # none: a room without a shape yet (its check says so)
+        d["shape"] = shape
     d["surfaces"] = [_clean({"name": s.name, "area": s.area,
                              "count": _whole(s.count) if s.count != 1 else None, "face": s.face,
                              "material": s.material, "alpha": s.alpha}) for s in spec.surfaces]
@@ -132,14 +133,16 @@ def spec_to_toml(spec: RoomSpec) -> str:
     material, each list of numbers on one line.
     ``tomllib.loads(spec_to_toml(s)) == spec_to_dict(s)`` (a test checks it)."""
     d = spec_to_dict(spec)
+
+    def tables(v) -> bool:          # an array of tables ([[...]]), not a list kept as read
+        return isinstance(v, list) and bool(v) and all(isinstance(x, dict) for x in v)
     out = [f"{toml_key(k)} = {toml_value(v)}" for k, v in d.items()
-           if not isinstance(v, (dict, list))
-           or (isinstance(v, list) and not (v and isinstance(v[0], dict)))]
+           if not isinstance(v, dict) and not tables(v)]
     for k, v in d.items():
         if isinstance(v, dict):
             out += ["", f"[{toml_key(k)}]"] + [f"{toml_key(a)} = {toml_value(b)}"
                                                for a, b in v.items()]
-        elif isinstance(v, list) and v and isinstance(v[0], dict):
+        elif tables(v):
             for item in v:
                 out += ["", f"[[{toml_key(k)}]]"] + [f"{toml_key(a)} = {toml_value(b)}"
                                                      for a, b in item.items()]
