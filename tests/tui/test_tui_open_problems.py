@@ -196,3 +196,24 @@ async def test_ctrl_o_opens_a_room_with_problems_and_refuses_only_broken_toml(
         assert len(app.screen.problems) == 3
         assert notes[-1][1] == "warning" and notes[-1][0].startswith(
             "classroom.toml has 3 problems")
+
+
+async def test_restoring_kept_changes_with_problems_restores_them(room_file, catalog, tmp_path):
+    """Changes kept from a session that ended without saving may hold a room with problems
+    (the interface lets a room be invalid while it is edited): they are restored, problems
+    and all, to be fixed."""
+    rec = tmp_path / "kept.toml"
+    rec.write_text(_bad_classroom(room_file).read_text(encoding="utf-8"), encoding="utf-8")
+    good = room_file("workshop.toml")
+    app = make_app(Document.open(good), catalog,
+                   AppConfig(offer_recovery=False, theme="textual-dark"))
+    notes = _notes(app)
+    async with app.run_test(size=SIZE) as pilot:
+        await _settle(pilot)
+        doc = app.screen.document
+        app._restore(doc, rec)
+        await _settle(pilot)
+        assert doc.modified and len(app.screen.problems) == 3
+        assert doc.spec.surfaces[2].area == -2.4
+        assert notes[-1][1] == "warning" and "has 3 problems" in notes[-1][0]
+        assert not rec.exists()          # now this session's own recovery file holds them

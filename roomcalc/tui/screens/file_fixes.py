@@ -61,7 +61,8 @@ def ask_key_fixes(main, skipped: frozenset = frozenset()) -> None:
     value = toml_value(u.value)
     if len(value) > SHOWN_VALUE:
         value = value[:SHOWN_VALUE - 3] + "..."
-    place = place_on_screen(u.table, spec) if u.table else "The room file"
+    place = (place_on_screen(u.table, spec) if "[" in u.table else f"[{u.table}]") \
+        if u.table else "The room file"
     question = f"{place}: '{u.key} = {value}' is a key roomcalc does not know" + (
         f". Did you mean '{u.meant}'?" if u.meant else "; it is kept in the file until you "
         "remove it.")
