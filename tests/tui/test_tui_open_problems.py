@@ -217,3 +217,25 @@ async def test_restoring_kept_changes_with_problems_restores_them(room_file, cat
         assert doc.spec.surfaces[2].area == -2.4
         assert notes[-1][1] == "warning" and "has 3 problems" in notes[-1][0]
         assert not rec.exists()          # now this session's own recovery file holds them
+
+
+async def test_a_value_of_the_wrong_kind_shows_as_written_until_its_cell_is_given_one(
+        room_file, catalog, pilot_keys):
+    path = room_file("classroom.toml")
+    text = path.read_text(encoding="utf-8")
+    path.write_text(text.replace('area = 2.0\nface = "back"', 'area = "two"\nface = "bak"'),
+                    encoding="utf-8")
+    app = make_app(Document.open(path), catalog,
+                   AppConfig(offer_recovery=False, theme="textual-dark"))
+    async with app.run_test(size=SIZE) as pilot:
+        await _settle(pilot)
+        screen, doc = app.screen, app.screen.document
+        door = _row(doc, "Door")
+        grid = screen.query_one("#t-surfaces #table")
+        assert [str(c) for c in grid.get_row_at(door)][1:3] == ['"bak"', '"two"']
+        assert len(screen.problems) == 2
+        await pilot_keys.edit_cell(pilot, screen.query_one("#t-surfaces"), door, 1, "back")
+        await pilot_keys.edit_cell(pilot, screen.query_one("#t-surfaces"), door, AREA_COL,
+                                   "2,0")
+        assert [str(c) for c in grid.get_row_at(door)][1:3] == ["back", "2"]
+        assert screen.problems == [] and screen.result is not None
