@@ -234,6 +234,8 @@ def clone(obj):
     times quicker than ``copy.deepcopy``: every edit keeps one for undo."""
     names = _FIELDS.get(type(obj))
     if names is None and is_dataclass(obj) and not isinstance(obj, type):
+        if obj.__dataclass_params__.frozen:
+            return obj          # never changed (a room's own material): shared, not copied
         names = _FIELDS[type(obj)] = tuple(f.name for f in fields(obj))
     if names is not None:
         new = object.__new__(type(obj))

@@ -239,3 +239,25 @@ async def test_a_value_of_the_wrong_kind_shows_as_written_until_its_cell_is_give
                                    "2,0")
         assert [str(c) for c in grid.get_row_at(door)][1:3] == ["back", "2"]
         assert screen.problems == [] and screen.result is not None
+
+
+async def test_a_room_with_its_own_materials_opens(catalog, tmp_path):
+    """A room that defines its own [[materials]] (docs/room-files.md) opens and edits (copying
+    the room for undo used to fail on the materials, which cannot be changed)."""
+    path = tmp_path / "own.toml"
+    path.write_text('version = 1\n[shape]\nvolume = 50\n[[surfaces]]\nname = "Panel wall"\n'
+                    'area = 20\nmaterial = "my-panel"\n[[materials]]\nid = "my-panel"\n'
+                    'name = "My panel"\nkind = "surface"\nsource = "invented for a test"\n'
+                    'values = { 125 = 0.1, 250 = 0.2, 500 = 0.4, 1000 = 0.5, 2000 = 0.5, '
+                    '4000 = 0.5 }\n', encoding="utf-8")
+    doc = Document.open(path)
+    app = make_app(doc, catalog, AppConfig(offer_recovery=False, theme="textual-dark"))
+    async with app.run_test(size=SIZE) as pilot:
+        await _settle(pilot)
+        assert app.screen.problems == [] and app.screen.result is not None
+        app.screen.apply(lambda s: setattr(s.surfaces[0], "area", 25.0), "area")
+        await _settle(pilot)
+        assert doc.modified and app.screen.result.room.surfaces[0].area == 25.0
+        await pilot.press("ctrl+z")
+        await _settle(pilot)
+        assert not doc.modified

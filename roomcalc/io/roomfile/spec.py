@@ -219,7 +219,7 @@ class RoomSpec(AsRead):
     sources: list[SourceSpec] = field(default_factory=list)
     receivers: list[ReceiverSpec] = field(default_factory=list)
     materials: list[Material] = field(default_factory=list)
-    version: int = FORMAT_VERSION
+    version: int | None = FORMAT_VERSION   # None: a file with problems left it out
     target: TargetSpec | None = None
     candidates: list[CandidateSpec] = field(default_factory=list)
 
