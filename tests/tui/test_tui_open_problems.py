@@ -9,6 +9,7 @@ from __future__ import annotations
 import tempfile
 
 import pytest
+from textual.command import CommandList
 
 from roomcalc.cli import main as cli_main
 from roomcalc.io.errors import RoomFileError
@@ -17,7 +18,7 @@ from roomcalc.present.places import problem_on_screen
 from roomcalc.tui.app import AppConfig, make_app
 from roomcalc.tui.document import Document
 from roomcalc.tui.screens.dialogs import Ask
-from roomcalc.tui.screens.file_fixes import FIX_KEYS_COMMAND, ask_key_fixes
+from roomcalc.tui.screens.file_fixes import FIX_KEYS_COMMAND
 from roomcalc.tui.screens.main import MainScreen
 from roomcalc.tui.screens.materials import MaterialChooser
 from roomcalc.tui.widgets.results import FindingsStrip
@@ -125,8 +126,17 @@ async def test_open_a_room_with_problems_fix_it_in_place_and_save(room_file, cat
         assert isinstance(app.screen, MainScreen)
         assert doc.spec.surfaces[ceiling].material in catalog.ids("surface")
 
-        # 3. The misspelled key: the question reads it as the key it meant.
-        ask_key_fixes(screen)
+        # 3. The misspelled key: Ctrl+P, the command the notice named; its question reads
+        # the key as the key it meant.
+        await pilot.press("ctrl+p")
+        await _settle(pilot)
+        await pilot.press(*FIX_KEYS_COMMAND)
+        for _ in range(50):             # the palette searches in the background
+            await pilot.pause(0.02)
+            found = app.screen.query(CommandList)
+            if found and found.first().option_count:
+                break
+        await pilot.press("enter")
         await _settle(pilot)
         assert isinstance(app.screen, Ask)
         assert "'aera = 2.0'" in app.screen.question and "'area'" in app.screen.question
