@@ -72,8 +72,8 @@ def _parser() -> argparse.ArgumentParser:
     pl.add_argument("file", help="room file (.toml) with [target] and [[candidates]]")
     pl.add_argument("--objective", choices=("cost", "area"),
                     help="least cost (default, or the file's [target] objective) or least area")
-    pl.add_argument("--format", choices=("text", "json"), default="text",
-                    help="output format (json is in SI units)")
+    pl.add_argument("--format", choices=("text", "markdown", "json", "csv"), default="text",
+                    help="output format (json and csv are in SI units)")
     pl.add_argument("--write", metavar="TREATED.toml",
                     help="also write the treated room as a new room file")
 
@@ -81,6 +81,9 @@ def _parser() -> argparse.ArgumentParser:
     m.add_argument("words", nargs="*", help="words that must all appear (id, name, notes)")
     m.add_argument("--category", help="only this category (part of its name is enough)")
     m.add_argument("--kind", choices=("surface", "object"), help="only this kind")
+    sub.add_parser("sources", parents=[fmt],
+                   help="list the typical sound sources: their dB(A) at 1 m, octave levels "
+                        "and where the numbers come from")
     return p
 
 
@@ -124,6 +127,13 @@ def _main(args) -> int:
 
 def _run(args) -> int:
     from roomcalc.io.catalog import load_catalog
+
+    if args.command == "sources":
+        from roomcalc.io.sources import typical_sources
+        from roomcalc.present.sources import sources_text
+
+        sys.stdout.write(sources_text(list(typical_sources().values()), args.format))
+        return EXIT_OK
 
     catalog = load_catalog(getattr(args, "catalog", []))
 
@@ -255,12 +265,17 @@ def _plan(args, catalog) -> int:
         if args.write:
             data["written"] = str(args.write)
         sys.stdout.write(json_text(data))
+    elif args.format == "csv":
+        sys.stdout.write(sections.plan_csv(run, u))
     else:
-        sys.stdout.write(sections.plan_text(run, u))
+        sys.stdout.write(sections.plan_markdown(run, u) if args.format == "markdown"
+                         else sections.plan_text(run, u))
         days = exposures(study.spec, run.described_before)
         if days:
             after = exposures(study.spec, run.described_after)
-            sys.stdout.write(sections.exposure_text(days, after))
+            text = sections.exposure_text(days, after)
+            sys.stdout.write(f"\n## Daily noise exposure\n\n```\n{text}```\n"
+                             if args.format == "markdown" else text)
         if args.write:
             print(f"Treated room written to {args.write}")
     return EXIT_OK if run.plan.feasible else 1

@@ -172,3 +172,22 @@ def test_a_search_with_no_hit_says_so_and_suggests_categories(catalog, capsys):
     assert main(["materials", "woool", "--format", "json"]) == 0
     got = capsys.readouterr()
     assert got.out.strip() == "[]" and "No material matches" in got.err
+
+
+def test_search_puts_materials_named_by_the_words_first(catalog):
+    """Enter in the chooser picks the first row: a search for "wood" gave a rug first (its
+    notes mention a wooden floor). Materials whose name holds every word now come first, then
+    those whose id or category does, then those with the words only in their notes."""
+    def rank(m, words):
+        name = m.name.lower()
+        if all(w in name for w in words.split()):
+            return 0
+        if all(w in f"{m.id} {m.name} {m.category}".lower() for w in words.split()):
+            return 1
+        return 2
+
+    for words in ("wood", "carpet", "panel"):
+        found = catalog.search(words)
+        ranks = [rank(m, words) for m in found]
+        assert ranks == sorted(ranks), words
+        assert ranks[0] == 0, words

@@ -619,3 +619,94 @@ def test_one_band_goal_is_missed_only_when_no_treatment_reaches_it(a1, a2, c1, c
 def test_docstring_examples():
     result = doctest.testmod(planner, optionflags=doctest.NORMALIZE_WHITESPACE)
     assert result.attempted >= 2 and result.failed == 0
+
+
+# ---------------------------------------------------------------------------- several surfaces
+
+FRONT = 2                                                 # surface index in classroom()
+
+
+def _front_harder(alpha_front=0.2):
+    """The classroom with 0.03 everywhere but the front wall (7 x 3 = 21 m^2) at
+    ``alpha_front``: A0 = 0.03 x 221 + 0.2 x 21 = 10.83 m^2 at 1 kHz (hand)."""
+    import dataclasses
+
+    room = classroom(alpha=[0.03] * 6)
+    s = list(room.surfaces)
+    s[FRONT] = dataclasses.replace(s[FRONT], alpha=np.full(6, alpha_front))
+    return dataclasses.replace(room, surfaces=tuple(s))
+
+
+def test_one_cover_over_two_walls_needs_what_the_hand_sabine_bound_needs():
+    # Sabine A = sum S alpha (Sabine 1922; ISO 354:2003, 3.4). A panel of alpha 1.00 at 1 kHz
+    # over the front (21 m^2, alpha 0.2) and left (30 m^2, alpha 0.03) walls, spread in
+    # proportion to their areas (21/51 and 30/51): each m^2 adds
+    #   21/51 x (1.00 - 0.20) + 30/51 x (1.00 - 0.03) = 0.329412 + 0.570588 = 0.9 m^2.
+    # The goal (hand bound above) needs (55.454 - 10.83) / 0.9 = 49.582 m^2 of panel (hand).
+    room = _front_harder()
+    panel = Candidate("Panel", "cover", cost=50.0, surface=(FRONT, LEFT), alpha=PANEL)
+    goals = Goals(method="sabine", rt60_max=[NAN, NAN, NAN, 0.60, NAN, NAN])
+    p = plan(room, [panel], goals)
+    assert p.feasible and len(p.items) == 1
+    assert 49.582 - 0.005 <= p.amounts[0] <= 49.582 + 0.015
+    assert p.items[0].surface == "Front, Left"
+    # Applied: one covered part on each wall, 21/51 and 30/51 of the amount (hand).
+    after = apply_to_room(room, [panel], p.amounts)
+    parts = {s.name: s.area for s in after.surfaces if "(Panel)" in s.name}
+    x = float(p.amounts[0])
+    assert parts == pytest.approx({"Front (Panel)": x * 21 / 51, "Left (Panel)": x * 30 / 51},
+                                  rel=1e-12)
+    rest = {s.name: s.area for s in after.surfaces if s.name in ("Front", "Left")}
+    assert rest == pytest.approx({"Front": 21 - x * 21 / 51, "Left": 30 - x * 30 / 51},
+                                 rel=1e-12)
+    # The engine's verdict on a room built by hand (not by apply_to_room): each wall split
+    # into its rest and its covered share.
+    import dataclasses
+
+    by_hand = []
+    for i, s in enumerate(room.surfaces):
+        if i in (FRONT, LEFT):
+            share = x * s.area / 51
+            by_hand += [dataclasses.replace(s, area=s.area - share),
+                        Surface(s.name + " panel", share, PANEL, face=s.face)]
+        else:
+            by_hand.append(s)
+    hand_room = dataclasses.replace(room, surfaces=tuple(by_hand))
+    a_before = evaluate(room).surface_absorption_m2[3]
+    a_after = evaluate(hand_room).surface_absorption_m2[3]
+    assert a_after - a_before == pytest.approx(0.9 * x, rel=1e-9)
+    np.testing.assert_allclose(evaluate(after).rt60_s["sabine"],
+                               evaluate(hand_room).rt60_s["sabine"], rtol=1e-12)
+    t = evaluate(hand_room).rt60_s["sabine"][3]
+    assert 0.60 - 3e-4 < t <= 0.60
+
+
+def test_a_surface_shared_by_two_candidates_is_never_covered_twice():
+    # A wall panel on the left wall alone and a cheaper fabric over the front and left walls:
+    # with a goal out of reach both go to their limits, and the left wall (30 m^2) holds the
+    # panel plus its share of the fabric, 30/51 of it, and no more.
+    room = _front_harder()
+    own = Candidate("Left panel", "cover", cost=80.0, surface=LEFT, alpha=PANEL)
+    both = Candidate("Fabric", "cover", cost=20.0, surface=(FRONT, LEFT), alpha=TILE)
+    goals = Goals(method="sabine", rt60_max=[NAN, NAN, NAN, 0.10, NAN, NAN])
+    p = plan(room, [own, both], goals)
+    assert not p.feasible
+    on_left = p.amounts[0] + p.amounts[1] * 30 / 51
+    assert on_left <= 30 + 1e-6
+    assert p.amounts[1] * 21 / 51 <= 21 + 1e-6
+    after = apply_to_room(room, [own, both], p.amounts)
+    assert sum(s.total_area for s in after.surfaces) == pytest.approx(room.surface_area,
+                                                                     rel=1e-12)
+
+
+def test_cover_shares_are_in_proportion_to_the_areas():
+    assert planner.cover_shares([21.0, 30.0]).tolist() == pytest.approx([21 / 51, 30 / 51])
+    assert planner.cover_shares([0.0, 0.0]).tolist() == [0.5, 0.5]
+
+
+@pytest.mark.parametrize("surface, match", [((), "needs a surface"), ((2, 2), "given twice"),
+                                            ((2, 9), "out of range"), ((2, 1.5), "whole")])
+def test_bad_surface_lists_raise_naming_the_field(surface, match):
+    c = Candidate("Panel", "cover", surface=surface, alpha=PANEL)
+    with pytest.raises(ValueError, match=match):
+        plan(classroom(), [c], Goals(method="sabine", rt60_max=[1.0] * 6))

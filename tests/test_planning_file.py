@@ -277,7 +277,11 @@ def test_apply_plan_covers_all_of_a_rest_of_face_surface_and_part_of_a_sized_one
     assert (baffle.name, baffle.count, baffle.absorption, baffle.material) == \
         ("Hanging baffles", 6, BAFFLE_SABINS, None)
     assert isinstance(baffle.count, int) and len(treated.objects) == 2     # no bookcase entry
-    assert treated.candidates == [] and treated.target == spec.target
+    # The candidates stay, those the plan used marked applied (not planned twice); the
+    # ceiling's candidate keeps naming the ceiling the plan covered whole.
+    assert [c.name for c in treated.candidates] == [c.name for c in spec.candidates]
+    assert [bool(c.applied) for c in treated.candidates] == [True, True, True, False]
+    assert not any(c.applied for c in spec.candidates) and treated.target == spec.target
     assert work_patterns(treated) == work_patterns(spec)
 
     # Written, read back, evaluated.
@@ -540,7 +544,7 @@ def test_the_file_layer_repeats_the_planner_constants():
     assert set(planner.PLAN_METHODS) <= set(roomfile.METHODS)
     assert roomfile.OBJECTIVES == planner.OBJECTIVES
     assert set(roomfile.CANDIDATE_KEYS) == set(roomfile.COVER_KEYS) | set(roomfile.UNIT_KEYS) \
-        | {"name", "material"}
+        | {"name", "material", "applied"}
 
 
 def test_a_file_without_planning_keys_has_none(catalog):

@@ -510,22 +510,44 @@ def test_face_without_area_in_a_volume_room(tmp_path, catalog):
 
 def test_source_with_both_sound_power_and_dba(tmp_path, catalog):
     got = problems(tmp_path, catalog, edit(('name = "Fan"', 'name = "Fan"\nsound_power_dba = 85.0')))
-    assert got[0] == (f"sources[0]: give either sound_power (dB re 1 pW, {SIX}) or "
-                      "sound_power_dba with spectrum")
+    assert got[0] == (f"sources[0]: give one of sound_power (dB re 1 pW, {SIX}), "
+                      "sound_power_dba with spectrum, or level_dba_1m (dB(A) at 1 m) with "
+                      "spectrum; this source gives sound_power and sound_power_dba")
     assert len(got) == 2 and got[1].startswith("sources[0].spectrum: is required")
 
 
 def test_source_with_neither_sound_power_nor_dba(tmp_path, catalog):
     text = edit(("sound_power = [80.0, 80.0, 80.0, 80.0, 80.0, 80.0]\n", ""))
-    assert only(tmp_path, catalog, text) == (f"sources[0]: give either sound_power (dB re 1 pW, "
-                                             f"{SIX}) or sound_power_dba with spectrum")
+    assert only(tmp_path, catalog, text) == (f"sources[0]: give one of sound_power (dB re 1 pW, "
+                                             f"{SIX}), sound_power_dba with spectrum, or "
+                                             "level_dba_1m (dB(A) at 1 m) with spectrum")
 
 
 def test_sound_power_dba_without_spectrum(tmp_path, catalog):
     text = edit(("sound_power = [80.0, 80.0, 80.0, 80.0, 80.0, 80.0]", "sound_power_dba = 85.0"))
     assert only(tmp_path, catalog, text) == ("sources[0].spectrum: is required with "
                                              "sound_power_dba; one of pink, white, brown, "
-                                             "speech-male")
+                                             "speech-male, voice-normal, voice-raised, "
+                                             "table-saw, planer, guitar-combo, "
+                                             "studio-monitors-mixing")
+
+
+def test_level_at_1m_checked_and_exclusive(tmp_path, catalog):
+    # A level at 1 m needs a spectrum, lies in its range, and goes alone.
+    text = edit(("sound_power = [80.0, 80.0, 80.0, 80.0, 80.0, 80.0]", "level_dba_1m = 66.0"))
+    assert only(tmp_path, catalog, text) == ("sources[0].spectrum: is required with "
+                                             "level_dba_1m; one of pink, white, brown, "
+                                             "speech-male, voice-normal, voice-raised, "
+                                             "table-saw, planer, guitar-combo, "
+                                             "studio-monitors-mixing")
+    text = edit(("sound_power = [80.0, 80.0, 80.0, 80.0, 80.0, 80.0]",
+                 'level_dba_1m = 190.0\nspectrum = "voice-raised"'))
+    assert only(tmp_path, catalog, text) == \
+        "sources[0].level_dba_1m: 190 is outside 0 to 180 dB(A)"
+    text = edit(("sound_power = [80.0, 80.0, 80.0, 80.0, 80.0, 80.0]",
+                 'level_dba_1m = 66.0\nsound_power_dba = 80.0\nspectrum = "pink"'))
+    assert only(tmp_path, catalog, text).endswith(
+        "this source gives sound_power_dba and level_dba_1m")
 
 
 def test_unknown_spectrum(tmp_path, catalog):

@@ -16,7 +16,7 @@ __all__ = ["PLACEMENT_Q", "mean_alpha_with_air", "mean_alpha_with_air_unchecked"
            "critical_distance_unchecked", "direct_term", "direct_term_unchecked",
            "reverberant_term", "reverberant_term_unchecked", "levels",
            "barron_lee_reverberant_term", "barron_lee_reverberant_term_unchecked",
-           "distance_curve"]
+           "distance_curve", "sound_power_from_level"]
 
 #: Directivity factor Q of a source by where it stands (common practice).
 PLACEMENT_Q = {"free": 1.0, "surface": 2.0, "edge": 4.0, "corner": 8.0}
@@ -147,6 +147,47 @@ def direct_term_unchecked(directivity, distance_m):
     .. math:: Q / (4 \\pi r^2)
     """
     return directivity / (4.0 * np.pi * distance_m ** 2)
+
+
+def sound_power_from_level(level_db, directivity, distance_m=1.0) -> np.ndarray:
+    """Sound power level of a source from its free-field level at a distance.
+
+    Parameters
+    ----------
+    level_db : array_like -- sound pressure level of the direct sound at ``distance_m``
+        [dB re 20 uPa], per band or A-weighted (the same offset applies to every band)
+    directivity : array_like -- directivity factor Q of the source where it stands, > 0
+    distance_m : array_like -- the distance of that level [m], > 0 (1 m for a "level at 1 m")
+
+    Returns
+    -------
+    ndarray -- Lw [dB re 1 pW] (LwA for an A-weighted level)
+
+    Notes
+    -----
+    .. math:: L_w = L_p(r) + 10 \\lg \\frac{4 \\pi r^2}{Q}
+
+    the inverse-square law of the direct field (:func:`direct_term`) solved for the power,
+    with no rho-c correction, as in :func:`levels`.
+
+    References
+    ----------
+    .. [1] Common practice: the free-field relation of sound power and pressure, the form used
+       by ISO 3744 (a source over a reflecting plane: Q = 2, the hemisphere 2 pi r^2);
+       Bies, Hansen & Howard, Engineering Noise Control, 5th ed. (2017), ch. 6 (from memory).
+
+    Examples
+    --------
+    A talker of 60 dB(A) at 1 m, standing free (Q = 1): 60 + 10 lg(4 pi) = 70.99 dB(A); on a
+    surface (Q = 2), 3.01 dB less (hand computation):
+
+    >>> round(float(sound_power_from_level(60.0, 1.0)), 2)
+    70.99
+    >>> round(float(sound_power_from_level(60.0, 2.0, 1.0)), 2)
+    67.98
+    """
+    lp = np.asarray(level_db, dtype=float)
+    return lp - db_from_ratio(direct_term(directivity, distance_m))
 
 
 def reverberant_term(room_constant_m2) -> np.ndarray:

@@ -43,7 +43,8 @@ def band_power_from_dba(level_dba, shape, bands_hz) -> np.ndarray:
     Parameters
     ----------
     level_dba : float -- A-weighted sound power level [dB(A) re 1 pW]
-    shape : str -- a key of :data:`SPECTRUM_SHAPES`
+    shape : str or mapping -- a key of :data:`SPECTRUM_SHAPES`, or relative octave levels
+        {band [Hz]: dB} of a shape of the caller's (only their differences count)
     bands_hz : sequence -- nominal octave centres the room works on [Hz]
 
     Returns
@@ -63,9 +64,12 @@ def band_power_from_dba(level_dba, shape, bands_hz) -> np.ndarray:
     >>> round(float(a_weighted_total(lw, [125, 250, 500, 1000, 2000, 4000])), 6)
     90.0
     """
-    if shape not in SPECTRUM_SHAPES:
-        raise ValueError(f"shape: {shape!r} is not one of {sorted(SPECTRUM_SHAPES)}")
-    table = SPECTRUM_SHAPES[shape]
+    if isinstance(shape, str):
+        if shape not in SPECTRUM_SHAPES:
+            raise ValueError(f"shape: {shape!r} is not one of {sorted(SPECTRUM_SHAPES)}")
+        table = SPECTRUM_SHAPES[shape]
+    else:
+        table = {int(k): float(v) for k, v in shape.items()}
     missing = [int(b) for b in bands_hz if int(b) not in table]
     if missing:
         raise ValueError(f"shape: {shape!r} has no value at {', '.join(map(str, missing))} Hz")

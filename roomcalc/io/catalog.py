@@ -115,8 +115,18 @@ class Catalog:
                 continue
             hay = f"{m.id} {m.name} {m.category} {m.notes}".lower()
             if all(any(t in hay for t in alternatives) for alternatives in terms):
-                out.append(m)
-        return sorted(out, key=lambda m: (m.category, m.name))
+                out.append((self._rank(m, terms), m))
+        # Those whose name holds the words first (Enter picks the first row: "wood" should
+        # give a wood material, not a rug whose notes mention a wooden floor).
+        return [m for _r, m in sorted(out, key=lambda rm: (rm[0], rm[1].category, rm[1].name))]
+
+    @staticmethod
+    def _rank(m: Material, terms) -> int:
+        """0: every word in the name; 1: in the name, id or category; 2: only in the notes."""
+        for rank, hay in enumerate((m.name.lower(), f"{m.id} {m.name} {m.category}".lower())):
+            if all(any(t in hay for t in alternatives) for alternatives in terms):
+                return rank
+        return 2
 
     def suggest_categories(self, words: str = "") -> list[str]:
         """Categories to try when a search finds nothing: those of the materials holding a

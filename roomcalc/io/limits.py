@@ -77,6 +77,10 @@ RANGES: dict[str, Range] = {
     "sound_power": Range(0.0, 200.0, unit="dB", why="dB re 1 pW per band: a quiet fan is about "
                          "30 dB, a jet engine about 160 dB (common practice, from memory)"),
     "sound_power_dba": Range(0.0, 200.0, unit="dB(A)", why="as sound_power, A-weighted"),
+    "level_dba_1m": Range(0.0, 180.0, unit="dB(A)", why="A-weighted level of the direct sound "
+                          "at 1 m: a whisper is about 30, a voice about 60, a planer about 100 "
+                          "(common practice, from memory); its sound power stays inside "
+                          "sound_power's range"),
     "directivity": Range(0.1, 100.0, unit="(Q)", why="Q of real sources is about 1 to 20 "
                          "(common practice): 1 in free space, 2 on a surface, 4 at an edge, 8 "
                          "in a corner; a horn on its axis reaches 10 to 50 (from memory); below "
@@ -98,6 +102,7 @@ RANGES: dict[str, Range] = {
     "max_area": Range(0.0, 1e9, "area", why="most area a candidate covers (up to all of a "
                       "surface's count)"),
     "step": Range(0.001, 1e5, "area", why="area of one panel"),
+    "panel": Range(0.05, 100.0, "length", why="width or height of one panel, 5 cm to 100 m"),
     "max_count": Range(0.0, 1e6, unit="units", why="most units of a candidate"),
     "area_each": Range(0.001, 1e5, "area", why="what one unit counts for"),
 }

@@ -19,7 +19,8 @@ import math
 import numpy as np
 
 from roomcalc.engine.criteria import applicability, target_window
-from roomcalc.engine.planner import Candidate, Goals, LevelGoal, Plan
+from roomcalc.engine.planner import (Candidate, Goals, LevelGoal, Plan, cover_shares,
+                                     cover_surfaces)
 from roomcalc.io.catalog import Catalog
 from roomcalc.io.checks import Checker
 from roomcalc.io.criteria import check_criterion_id, shipped_criteria
@@ -146,9 +147,12 @@ def resolve_candidates(spec: RoomSpec, room, catalog: Catalog, *, objective: str
 
     Returns
     -------
-    list of Candidate -- cover: ``surface`` the index into ``room.surfaces``, ``alpha`` per
-    band, ``max_amount`` [m^2] (default: the surface's total area, over its count), ``cost``
-    per m^2, ``step`` [m^2]; units: ``absorption`` [m^2 per unit] per band, ``max_amount``
+    list of Candidate -- the candidates not marked ``applied`` (those are built into the room
+    already, so planning them again would count them twice; :func:`applied_candidates` names
+    them); cover: ``surface`` the index into ``room.surfaces`` (a tuple of them for a
+    candidate over several surfaces or ``walls``), ``alpha`` per band, ``max_amount`` [m^2]
+    (default: the total area of its surfaces, over their counts), ``cost`` per m^2, ``step``
+    [m^2] (``step``, else ``panel`` width x height), ``panel`` (width, height) [m]; units: ``absorption`` [m^2 per unit] per band, ``max_amount``
     units (default: no limit), ``cost`` per unit, ``integer`` (default True), ``area_each``
     [m^2]. A cost not given (allowed when the objective is area) is 0.
 
@@ -175,6 +179,8 @@ def resolve_candidates(spec: RoomSpec, room, catalog: Catalog, *, objective: str
     cost_key = AREA_COST_KEY[u.name]
     out = []
     for i, c in enumerate(spec.candidates):
+        if c.applied:
+            continue            # built into the room already: planning it again would double it
         w = f"candidates[{i}]"
         if objective == "cost" and c.covers and c.area_cost is None:
             chk.add(f"{w}.{cost_key}", f"is required to plan for the least cost: the cost of "
@@ -189,14 +195,16 @@ def resolve_candidates(spec: RoomSpec, room, catalog: Catalog, *, objective: str
         if c.material and values is None:
             continue
         if c.covers:
-            j = index[c.surface]
+            js = [index[n] for n in c.surface_names(spec)]
             alpha = values if values is not None else c.alpha
+            step = c.panel_area
             out.append(Candidate(
                 name=c.name, kind="cover", cost=(c.area_cost or 0.0) / u.area,
                 max_amount=c.max_area * u.area if c.max_area is not None
-                else room.surfaces[j].total_area,
-                surface=j, alpha=alpha, step=c.step * u.area if c.step is not None else None,
-                material=c.material))
+                else sum(room.surfaces[j].total_area for j in js),
+                surface=js[0] if len(js) == 1 else tuple(js), alpha=alpha,
+                step=step * u.area if step is not None else None, material=c.material,
+                panel=tuple(x * u.length for x in c.panel) if c.panel else None))
         else:
             absorption = values if values is not None else [x * u.area for x in c.absorption]
             extra = {"area_each": c.area_each * u.area} if c.area_each is not None else {}
@@ -225,12 +233,15 @@ def apply_plan(spec: RoomSpec, plan: Plan, candidates: list[Candidate]) -> RoomS
     Returns
     -------
     RoomSpec -- each covered part a new surface "<surface> - <candidate>" right after its
-    surface, with the candidate's material or alpha, the surface's face and count, and the
+    surface (a candidate over several surfaces makes one on each, its area spread in
+    proportion to their total areas, as the planner spreads it), with the candidate's material or alpha, the surface's face and count, and the
     covered area per copy; the surface keeps the rest (a surface without area, the rest of its
     face, keeps no area and so shrinks by itself; a surface covered whole is removed). Each
     candidate added as units becomes an [[objects]] entry with its count. ``[target]``, the
-    working patterns and [[materials]] are kept; ``[[candidates]]`` are dropped (to plan
-    again, plan the original file). A plan that is not feasible is applied as it stands.
+    working patterns and [[materials]] are kept, and so are the ``[[candidates]]``: each one
+    the plan uses (an amount above 0) is marked ``applied = true``, so that a plan made on the
+    treated room leaves it out rather than counting it twice (un-marking it makes it a
+    candidate again). A plan that is not feasible is applied as it stands.
 
     Raises
     ------
@@ -246,12 +257,13 @@ def apply_plan(spec: RoomSpec, plan: Plan, candidates: list[Candidate]) -> RoomS
     u = spec.unit_system
     by_name = {cs.name: cs for cs in spec.candidates}
     new = copy.deepcopy(spec)
-    new.candidates = []
+    new_by_name = {cs.name: cs for cs in new.candidates}
     covers: dict[int, list[tuple[CandidateSpec, float]]] = {}
     for c, a in zip(candidates, amounts.tolist()):
         cs = by_name.get(c.name)
         if cs is None or cs.covers != (c.kind == "cover") or (
-                c.kind == "cover" and spec.surfaces[c.surface].name != cs.surface):
+                c.kind == "cover" and [spec.surfaces[i].name for i in cover_surfaces(c)]
+                != cs.surface_names(spec)):
             raise ValueError(f"candidates: '{c.name}' ({c.kind}) is not a candidate of spec; "
                              "pass resolve_candidates(spec, ...) or some of them")
         tol = AMOUNT_RTOL * max(1.0, abs(c.max_amount) if math.isfinite(c.max_amount) else 1.0)
@@ -262,8 +274,13 @@ def apply_plan(spec: RoomSpec, plan: Plan, candidates: list[Candidate]) -> RoomS
                              f"{c.max_amount:g}")
         if a <= tol:
             continue
+        new_by_name[c.name].applied = True
         if c.kind == "cover":
-            covers.setdefault(c.surface, []).append((cs, a))
+            # Spread over its surfaces as the planner spread it (in proportion to their areas).
+            sis = list(cover_surfaces(c))
+            shares = cover_shares([_total_area_m2(spec, i) for i in sis])
+            for i, wi in zip(sis, shares.tolist()):
+                covers.setdefault(i, []).append((cs, a * wi))
             continue
         if c.integer:
             if abs(a - round(a)) > 1e-6:
@@ -303,6 +320,12 @@ def apply_plan(spec: RoomSpec, plan: Plan, candidates: list[Candidate]) -> RoomS
         surfaces.extend(parts)
     new.surfaces = surfaces
     return new
+
+
+def applied_candidates(spec: RoomSpec) -> list[str]:
+    """The names of the candidates marked ``applied`` (built into the room already), in file
+    order: a plan leaves them out and says so."""
+    return [c.name for c in spec.candidates if c.applied]
 
 
 def _total_area_m2(spec: RoomSpec, i: int) -> float:
@@ -349,7 +372,7 @@ def work_patterns(spec: RoomSpec) -> dict[str, tuple[float, dict[str, float]]]:
 
 def convert_candidate_units(spec: RoomSpec, to: str) -> None:
     """Re-express the candidates of a spec in other units, in place: ``max_area``, ``step``,
-    ``area_each`` and ``absorption`` per unit in m^2 or ft^2, and the cover cost under the
+    ``panel`` (lengths), ``area_each`` and ``absorption`` per unit in m^2 or ft^2, and the cover cost under the
     key of the new units (``cost_per_m2`` or ``cost_per_ft2``, the same money per the new
     unit of area). Rounded to 4 decimals, as the interface rounds areas when it converts a
     room. ``spec.units`` is left to the caller, who converts the rest of the room.
@@ -364,6 +387,8 @@ def convert_candidate_units(spec: RoomSpec, to: str) -> None:
 
     for c in spec.candidates:
         c.max_area, c.step, c.area_each = area(c.max_area), area(c.step), area(c.area_each)
+        if c.panel is not None:
+            c.panel = [round(x * src.length / dst.length, 4) for x in c.panel]
         if c.absorption is not None:
             c.absorption = [area(x) for x in c.absorption]
         cost = c.area_cost

@@ -5,16 +5,60 @@ from __future__ import annotations
 import csv
 import io
 
+from pathlib import Path
+
+from roomcalc.io import paths
 from roomcalc.io.catalog import Material
 from roomcalc.present.numbers import fmt, json_text, wrap
 
-__all__ = ["material_dict", "materials_text", "no_match_text"]
+__all__ = ["MEMORY_SOURCE", "material_dict", "materials_text", "no_match_text",
+           "source_sentence"]
+
+#: The ``source`` of a catalogue entry whose values are remembered typical values, not taken
+#: from a publication (materials/README.md, "Sources").
+MEMORY_SOURCE = ("typical value, from memory; verify against a test report to ISO 354 / "
+                 "ASTM C423")
+#: What every catalogue value is not, and what to check it against.
+_NOT_A_TEST = ("a typical value, not a test of this product; check a test report to ISO 354 "
+               "or ASTM C423")
+
+
+def source_sentence(m: Material) -> str:
+    """Where a material's values come from, as a plain sentence (the one wording, for the
+    chooser, ``roomcalc materials`` and the reports).
+
+    A remembered value says so; a handbook value names the book, edition and table; a value
+    from the user's own catalogue or room file is quoted as they gave it.
+
+    >>> m = Material("x", "X", "user", "surface", {}, MEMORY_SOURCE)
+    >>> source_sentence(m).startswith("typical value from handbooks, remembered")
+    True
+    """
+    src = m.source.strip()
+    if src == MEMORY_SOURCE:
+        return ("typical value from handbooks, remembered (from memory, not checked against a "
+                "copy), not a test of this product; check a test report to ISO 354 or ASTM "
+                "C423")
+    if not _built_in(m):
+        return f"your own value, from: {src}"
+    src = src.replace("(secondary quotation)", "(quoted at second hand)")
+    return f"from {src}, {_NOT_A_TEST}"
+
+
+def _built_in(m: Material) -> bool:
+    """The entry is from the shipped catalogue (not the user's files or a room's own)."""
+    if not m.file:
+        return True
+    try:
+        return Path(m.file).resolve().parent == paths.materials_dir().resolve()
+    except OSError:
+        return False
 
 
 def material_dict(m: Material) -> dict:
     d = {"id": m.id, "name": m.name, "category": m.category, "kind": m.kind,
          "values": {str(k): v for k, v in sorted(m.values.items())}, "source": m.source,
-         "notes": m.notes}
+         "source_sentence": source_sentence(m), "notes": m.notes}
     r = m.ratings()
     if r:
         d.update({"nrc": r[0], "saa_octave_estimate": r[1], "alpha_w": r[2].alpha_w,
@@ -30,17 +74,18 @@ def materials_text(mats: list[Material], form: str = "text") -> str:
         w = csv.writer(buf, lineterminator="\n")
         bands = [63, 125, 250, 500, 1000, 2000, 4000, 8000]
         w.writerow(["id", "name", "category", "kind"] + [str(b) for b in bands] +
-                   ["nrc", "saa_octave_estimate", "alpha_w", "absorption_class", "source"])
+                   ["nrc", "saa_octave_estimate", "alpha_w", "absorption_class", "source",
+                    "source_sentence"])
         for m in mats:
             r = m.ratings()
             w.writerow([m.id, m.name, m.category, m.kind] +
                        [m.values.get(b, "") for b in bands] +
                        ([r[0], r[1], r[2].label(), r[2].absorption_class] if r else
-                        ["", "", "", ""]) + [m.source])
+                        ["", "", "", ""]) + [m.source, source_sentence(m)])
         return buf.getvalue()
     md = form == "markdown"
     if md:
-        lines = ["| id | name | kind | 125-4000 Hz | NRC | alpha_w (class) | source |",
+        lines = ["| id | name | kind | 125-4000 Hz | NRC | alpha_w (class) | where the values come from |",
                  "|---|---|---|---|---|---|---|"]
     else:
         lines = []
@@ -53,11 +98,11 @@ def materials_text(mats: list[Material], form: str = "text") -> str:
             lines.append(f"| {m.id} | {m.name} | {m.kind} | {vals} | "
                          f"{fmt(r[0]) if r else ''} | "
                          f"{f'{r[2].label()} ({r[2].absorption_class})' if r else ''} | "
-                         f"{m.source} |")
+                         f"{source_sentence(m)} |")
         else:
             lines += [f"{m.id}  [{m.category}]", f"    {m.name}",
                       f"    {m.bands_text}: {vals}", f"    {rating}",
-                      wrap(f"source: {m.source}", "    ", "      "), ""]
+                      wrap(f"values: {source_sentence(m)}", "    ", "      "), ""]
     if not md:
         lines.append(f"{len(mats)} material(s). SAA~ is an estimate from octave data; a "
                      "product's test report\nto ISO 354 / ASTM C423 supersedes these values.")

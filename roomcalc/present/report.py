@@ -14,8 +14,9 @@ import csv
 import io
 
 from roomcalc.engine.analysis import METHOD_TITLES, METHODS, RoomResult
+from roomcalc.engine.bands import a_weighted_total
 from roomcalc.io.units import METRIC, Units
-from roomcalc.present.numbers import NO_VALUE, csv_number, floats, json_text, plural, wrap
+from roomcalc.present.numbers import NO_VALUE, csv_number, floats, fmt, json_text, plural, wrap
 from roomcalc.present.sections import (exposure_dict, exposure_text, target_dict,
                                        target_text)
 from roomcalc.present.tables import BandRows
@@ -108,12 +109,30 @@ def report_text(ans: Answer, source_name: str, u: Units = METRIC) -> str:
         out += ["", rc.text()]
     if lv:
         out += ["", lv.text(), wrap(_levels_note(res), "  ", "  ")]
+    out += _sources_lines(ans, wrap)
     out += _extras_text(ans)
     if res.warnings:
         out += ["", "Warnings"] + [wrap(w.message) for w in res.warnings]
     if res.cautions:
         out += ["", "CAUTION: HEARING"] + [wrap(c, "  ! ", "    ") for c in res.cautions]
     return "\n".join(out) + "\n"
+
+
+def _sources_lines(ans: Answer, line) -> list[str]:
+    """How each source's power is given and what sound power that is (text: ``line`` wraps;
+    markdown: a list item)."""
+    from roomcalc.present.sources import source_given
+
+    given = {s.name: s for s in ans.spec.sources}
+    out = []
+    for s in ans.result.sources:
+        spec = given.get(s.name)
+        if spec is None:
+            continue
+        lwa = float(a_weighted_total(s.sound_power_db, ans.result.bands_hz))
+        out.append(line(f"{s.name}: {source_given(spec)}; sound power LwA {fmt(lwa, 1)} "
+                        f"dB(A), directivity Q {s.directivity:g}"))
+    return (["", "Sources"] + out) if out else []
 
 
 def _levels_note(res: RoomResult) -> str:
@@ -138,6 +157,9 @@ def report_markdown(ans: Answer, source_name: str, u: Units = METRIC) -> str:
         out += ["", "## Critical distance", "", rc.markdown()]
     if lv:
         out += ["", "## Levels at receivers", "", lv.markdown(), "", _levels_note(res)]
+    src = _sources_lines(ans, lambda t: f"- {t}")
+    if src:
+        out += ["", "## Sources", ""] + src[2:]
     if ans.target is not None:
         out += ["", "## Target", "", "```", target_text(ans.target, described=res).rstrip(),
                 "```"]
@@ -186,7 +208,13 @@ def result_dict(res: RoomResult) -> dict:
 def answer_dict(ans: Answer) -> dict:
     """The JSON document of a room's answer: the result, with ``target`` and ``exposure``
     when the file asks for them."""
+    from roomcalc.present.sources import source_given_dict
+
     data = result_dict(ans.result)
+    given = {s.name: s for s in ans.spec.sources}
+    for d in data["sources"]:
+        if d["name"] in given:
+            d.update(source_given_dict(given[d["name"]]))
     if ans.target is not None:
         data["target"] = target_dict(ans.target)
     if ans.exposures:
@@ -219,6 +247,9 @@ def report_csv(ans: Answer, source_name: str = "", u: Units = METRIC) -> str:
     row("schroeder_frequency", "room", "Hz", res.schroeder_hz)
     for s in res.sources:
         row("critical_distance", s.name, "m", s.critical_distance_m)
+    for s in res.sources:
+        row("sound_power", s.name, "dB", s.sound_power_db,
+            float(a_weighted_total(s.sound_power_db, res.bands_hz)))
     for r in res.receivers:
         row("level", r.name, "dB", r.level_db, r.level_dba)
         row("direct", r.name, "dB", r.direct_db, r.direct_dba)

@@ -17,7 +17,8 @@ if TYPE_CHECKING:
     from roomcalc.engine.exposure import ExposureSummary
 
 __all__ = ["window_text", "occupancy_text", "target_text", "target_dict", "exposure_text",
-           "exposure_dict", "plan_levels", "plan_totals_text", "plan_text", "plan_dict", "occupancy_dict"]
+           "exposure_dict", "plan_levels", "plan_totals_text", "plan_text", "plan_dict", "occupancy_dict",
+           "amount_text", "panels_of", "applied_text", "plan_markdown", "plan_csv"]
 
 
 def window_text(lo: float, hi: float) -> str:
@@ -175,6 +176,55 @@ def _totals(run: PlanRun) -> tuple[float, float]:
     return float(area), float(units)
 
 
+def panels_of(run: PlanRun, item) -> tuple[int, float, tuple | None] | None:
+    """A covered item bought as panels of a stated size: (count, area of one [m^2], (width,
+    height) [m] or None); None for an item that is not (units, or a cover of any area)."""
+    if item.kind != "cover":
+        return None
+    cand = next((c for c in run.candidates if c.name == item.candidate), None)
+    if cand is None or cand.step is None:
+        return None
+    return int(round(item.amount / cand.step)), float(cand.step), cand.panel
+
+
+def _surfaces_of(run: PlanRun, item) -> list[str]:
+    """The names of the surfaces a covered item lies on (empty for units)."""
+    from roomcalc.engine.planner import cover_surfaces
+
+    cand = next((c for c in run.candidates if c.name == item.candidate), None)
+    if item.kind != "cover" or cand is None:
+        return []
+    room = run.occupancy.room
+    return [room.surfaces[i].name for i in cover_surfaces(cand)]
+
+
+def amount_text(run: PlanRun, item, u: Units = METRIC) -> str:
+    """How much of one item, in the file's units: "4 units", "5.04 m^2", or for panels of a
+    stated size "7 panels of 1.2 x 0.6 m = 5.04 m^2" ("7 panels of 0.72 m^2 = 5.04 m^2" where
+    only their area is known)."""
+    if item.kind != "cover":
+        return f"{item.amount:g} unit{'s' if item.amount != 1 else ''}"
+    area = f"{item.amount / u.area:.2f} {u.area_label}"
+    panels = panels_of(run, item)
+    if panels is None:
+        return area
+    n, each, size = panels
+    of = (f"{size[0] / u.length:g} x {size[1] / u.length:g} {u.length_label}" if size
+          else f"{each / u.area:.4g} {u.area_label}")
+    return f"{n} panel{'s' if n != 1 else ''} of {of} = {area}"
+
+
+def applied_text(run: PlanRun) -> str:
+    """The candidates the plan left out because they are applied to the room already, in a
+    sentence ("" when there are none)."""
+    if not run.applied:
+        return ""
+    names = ", ".join(f"'{n}'" for n in run.applied)
+    one = len(run.applied) == 1
+    return (f"Left out, already applied to the room: {names} (the room has {'it' if one else 'them'}"
+            f" built in; un-mark applied to plan {'it' if one else 'them'} again).")
+
+
 def plan_totals_text(run: PlanRun, u: Units = METRIC) -> str:
     """"48.62 m^2 and 40 units" (only the parts there are)."""
     area, units = _totals(run)
@@ -187,15 +237,25 @@ def plan_totals_text(run: PlanRun, u: Units = METRIC) -> str:
 
 
 def plan_dict(run: PlanRun, u: Units = METRIC) -> dict:
-    """The plan as JSON (SI): ``feasible``, ``items`` (``candidate``, ``surface`` or null,
-    ``area_m2`` or ``count``, ``cost``), ``total_cost``, ``total_area_m2`` (covers only),
+    """The plan as JSON (SI): ``feasible``, ``items`` (``candidate``, ``surface`` or null
+    (several: "A, B"), ``surfaces`` (their names, a list; empty for units), ``area_m2`` or ``count``, ``cost``, ``panels`` for panels of a stated
+    size (``count``, ``area_each_m2``, ``width_m``, ``height_m``), ``how_much`` in words in
+    the file's units), ``applied_left_out`` (candidates applied to the room already), ``total_cost``, ``total_area_m2`` (covers only),
     ``total_units``, ``rt60_after_s`` by ``method`` (the formula in force), and more."""
     p = run.plan
     items = []
     for it in p.items:
-        d = {"candidate": it.candidate, "surface": it.surface}
+        d = {"candidate": it.candidate, "surface": it.surface,
+             "surfaces": _surfaces_of(run, it)}
         d["area_m2" if it.kind == "cover" else "count"] = it.amount
         d["cost"] = it.cost
+        panels = panels_of(run, it)
+        if panels is not None:
+            n, each, size = panels
+            d["panels"] = {"count": n, "area_each_m2": each,
+                           "width_m": size[0] if size else None,
+                           "height_m": size[1] if size else None}
+        d["how_much"] = amount_text(run, it, u)
         items.append(d)
     area, units = _totals(run)
     lo, hi = run.goals.rt60_min, run.goals.rt60_max
@@ -211,7 +271,8 @@ def plan_dict(run: PlanRun, u: Units = METRIC) -> dict:
             "rt60_min_s": None if lo is None else finite_or_none(lo),
             "levels_before_dba": {n: b for n, b, _ in plan_levels(run)},
             "levels_after_dba": {n: a for n, _, a in plan_levels(run)},
-            "reasons": list(p.reasons), "solver": p.solver}
+            "reasons": list(p.reasons), "solver": p.solver,
+            "applied_left_out": list(run.applied)}
 
 
 def plan_levels(run: PlanRun) -> list[tuple[str, float, float]]:
@@ -236,12 +297,22 @@ def plan_text(run: PlanRun, u: Units = METRIC, width=None) -> str:
         for it in p.items:
             amount = (f"{it.amount / u.area:.2f} {u.area_label}" if it.kind == "cover"
                       else f"{it.amount:g} units")
-            lines.append(f"  {it.candidate[:34]:34} {(it.surface or 'added')[:18]:18} "
-                         f"{amount:>12} {it.cost:>10.2f}")
+            where = it.surface or "added"
+            several = it.surface is not None and len(it.surface) > 18
+            if several:
+                where = f"{it.surface.count(', ') + 1} surfaces" if ", " in it.surface \
+                    else it.surface[:17] + "~"
+            lines.append(f"  {it.candidate[:34]:34} {where:18} {amount:>12} {it.cost:>10.2f}")
+            if several:
+                lines.append(wrap(f"on {it.surface}", "    ", "      ", width=width))
+            if panels_of(run, it) is not None:
+                lines.append(f"    {amount_text(run, it, u)}")
         lines.append(f"  {'total: ' + plan_totals_text(run, u):53} {p.total_cost:>10.2f}")
     else:
         lines.append("  nothing to add: the room already meets its target" if p.feasible
                      else "  no candidate helps")
+    if run.applied:
+        lines.append(wrap(applied_text(run), "  ", "    ", width=width))
     bands = run.before.bands_hz
     lines.append("  " + f"{'RT60 [s]':16}" + "".join(f"{band_label(b):>7}" for b in bands))
     lines.append("  " + f"{'before':16}" + "".join(f"{fmt(x):>7}" for x in p.rt60_before))
@@ -257,3 +328,46 @@ def plan_text(run: PlanRun, u: Units = METRIC, width=None) -> str:
     for r in p.reasons:
         lines.append(wrap(r, "  ! ", "    ", width=width))
     return "\n".join(lines) + "\n"
+
+
+def plan_markdown(run: PlanRun, u: Units = METRIC) -> str:
+    """The plan as markdown: a table of what to buy (panels counted), then the text section."""
+    p = run.plan
+    out = ["# Treatment plan", ""]
+    if p.items:
+        cur = f" [{run.currency}]" if run.currency else ""
+        out += [f"| what | where | how much | cost{cur} |", "|---|---|---|---:|"]
+        out += [f"| {it.candidate} | {it.surface or 'added'} | {amount_text(run, it, u)} | "
+                f"{it.cost:.2f} |" for it in p.items]
+        out.append("")
+    if run.applied:
+        out += [applied_text(run), ""]
+    out += ["```", plan_text(run, u).rstrip(), "```"]
+    return "\n".join(out) + "\n"
+
+
+def plan_csv(run: PlanRun, u: Units = METRIC) -> str:
+    """The plan as CSV, one row per item (SI: ``amount`` in m2 or units), with the panels of a
+    stated size counted, then the total, then each candidate left out as applied."""
+    import csv
+    import io
+
+    from roomcalc.present.numbers import csv_number
+
+    buf = io.StringIO()
+    w = csv.writer(buf, lineterminator="\n")
+    w.writerow(["row", "candidate", "where", "amount", "unit", "panels", "panel_area_m2",
+                "panel_width_m", "panel_height_m", "cost", "how_much"])
+    for it in run.plan.items:
+        panels = panels_of(run, it)
+        n, each, size = panels if panels is not None else ("", "", None)
+        w.writerow(["item", it.candidate, it.surface or "added", csv_number(it.amount),
+                    "m2" if it.kind == "cover" else "units", n, csv_number(each),
+                    csv_number(size[0]) if size else "", csv_number(size[1]) if size else "",
+                    csv_number(it.cost), amount_text(run, it, u)])
+    area, units = _totals(run)
+    w.writerow(["total", "", "", csv_number(area), "m2", "", "", "", "",
+                csv_number(run.plan.total_cost), plan_totals_text(run, u)])
+    for name in run.applied:
+        w.writerow(["applied, left out", name, "", "", "", "", "", "", "", "", ""])
+    return buf.getvalue()

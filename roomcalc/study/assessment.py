@@ -100,6 +100,8 @@ class PlanRun:
     occupancy: Occupancy
     described_before: RoomResult      # the room as described (all its people), by the method
     described_after: RoomResult       # the same with the plan's treatment
+    #: Candidates left out because they are marked ``applied`` (built into the room already).
+    applied: tuple[str, ...] = ()
 
 
 def criterion_of(spec: RoomSpec, criteria: dict) -> Criterion | None:
@@ -192,7 +194,8 @@ def make_plan(spec: RoomSpec, room: Room, result: RoomResult, catalog, criteria:
               cancel=None) -> PlanRun:
     """Run the planner on the room's ``[target]`` and ``[[candidates]]`` by the formula in
     force (``result.method``), for the room at the criterion's occupancy (``enabled``: the
-    names of the candidates to use, None = all). Raises RoomFileError when the target or a
+    names of the candidates to use, None = all; candidates marked ``applied`` are built into
+    the room already and always left out, named in ``PlanRun.applied``). Raises RoomFileError when the target or a
     candidate cannot be resolved, ValueError when there is nothing to plan with.
 
     ``progress`` (called with each PlanProgress, steps counting up) and ``cancel`` (a callable
@@ -201,7 +204,7 @@ def make_plan(spec: RoomSpec, room: Room, result: RoomResult, catalog, criteria:
     described. Stopped: PlanCancelled is raised, and nothing (spec, room, catalogue) has been
     changed."""
     from roomcalc.engine.planner import PlanWatch, apply_to_room, plan
-    from roomcalc.io.planning import resolve_candidates, resolve_goals
+    from roomcalc.io.planning import applied_candidates, resolve_candidates, resolve_goals
 
     method = result.method
     goals = resolve_goals(spec, room, criteria, method=method, filename=filename)
@@ -211,7 +214,13 @@ def make_plan(spec: RoomSpec, room: Room, result: RoomResult, catalog, criteria:
                                filename=filename)
     if enabled is not None:
         cands = [c for c in cands if c.name in enabled]
+    applied = tuple(applied_candidates(spec))
     if not cands:
+        if applied:
+            raise ValueError(f"there are no candidates to plan with: {_names(applied)} "
+                             f"{'is' if len(applied) == 1 else 'are'} applied to the room "
+                             "already (un-mark applied to plan again), and no other is "
+                             "ticked or given")
         raise ValueError("there are no candidates to plan with: add [[candidates]] to the room "
                          "file (or tick some)")
     watch = PlanWatch(progress, cancel)
@@ -226,4 +235,10 @@ def make_plan(spec: RoomSpec, room: Room, result: RoomResult, catalog, criteria:
         described_after = evaluate(apply_to_room(room, cands, p.amounts),
                                    reverberant_model=result.reverberant_model, method=method)
     return PlanRun(p, tuple(cands), spec.target.currency or "", before, treated, goals, occ,
-                   result, described_after)
+                   result, described_after, applied)
+
+
+def _names(names) -> str:
+    """'A', 'B' and 'C'."""
+    q = [f"'{n}'" for n in names]
+    return q[0] if len(q) == 1 else ", ".join(q[:-1]) + " and " + q[-1]

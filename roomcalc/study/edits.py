@@ -4,9 +4,14 @@ Every function changes the spec in place, so that a caller with an undo history 
 interface's ``Document.change``) can snapshot it first, and returns what the user should be
 told, if anything. The rules:
 
+- :func:`new_candidate` -- a new treatment row, valid as it stands (a default material of
+  its kind, a surface of the room to cover);
 - :func:`set_item_fields` -- set a field of a surface, object, source, receiver or candidate,
   clearing the keys that exclude it (typing alpha drops the material; a sound power per band
-  drops the dB(A) figure and its spectrum; a directivity drops the placement);
+  drops the dB(A) figures and their spectrum; one dB(A) figure, the sound power or the level
+  at 1 m, drops the other; a directivity drops the placement);
+- :func:`use_typical_source` -- give a source the level at 1 m, spectrum and placement of a
+  typical source (its own band powers where the typical source lacks a band of the room);
 - :func:`rename_item` -- rename an item and carry the new name to everything that names it
   (receivers' distances and ``source_hours``, candidates' ``surface``, the target's level
   limits);
@@ -24,17 +29,19 @@ from __future__ import annotations
 import math
 
 from roomcalc.engine.bands import DEFAULT_BANDS_HZ
-from roomcalc.engine.spectra import SPECTRUM_SHAPES, band_power_from_dba
+from roomcalc.engine.field import PLACEMENT_Q
 from roomcalc.io.catalog import Catalog
 from roomcalc.io.limits import RANGES
 from roomcalc.io.planning import convert_candidate_units
-from roomcalc.io.roomfile import RoomSpec, TargetSpec
+from roomcalc.io.roomfile import WALL_FACES, CandidateSpec, RoomSpec, TargetSpec
+from roomcalc.io.sources import (TypicalSource, source_band_power, spectrum_names,
+                                 spectrum_shape)
 from roomcalc.io.units import UNITS
 from roomcalc.study.typed import parse_numbers
 
-__all__ = ["COLLECTIONS", "set_item_fields", "rename_item", "change_bands", "convert_units",
-           "nearest_band_fill", "set_method", "set_criterion", "set_objective",
-           "set_own_rt60_limit", "parse_rt60_limit"]
+__all__ = ["COLLECTIONS", "new_candidate", "set_item_fields", "rename_item", "change_bands",
+           "convert_units", "nearest_band_fill", "set_method", "set_criterion", "set_objective",
+           "set_own_rt60_limit", "parse_rt60_limit", "use_typical_source"]
 
 #: The spec's lists of items, in the order the interface shows them.
 COLLECTIONS = ("surfaces", "objects", "sources", "receivers", "candidates")
@@ -43,15 +50,38 @@ COLLECTIONS = ("surfaces", "objects", "sources", "receivers", "candidates")
 _EXCLUDES = {
     "surfaces": {"alpha": ("material",)},
     "objects": {"absorption": ("material",)},
-    "candidates": {"alpha": ("material",), "absorption": ("material",)},
-    "sources": {"sound_power": ("sound_power_dba", "spectrum"),
-                "sound_power_dba": ("sound_power",),
+    "candidates": {"alpha": ("material",), "absorption": ("material",),
+                   "surface": ("walls",), "walls": ("surface",),
+                   "panel": ("step",), "step": ("panel",)},
+    "sources": {"sound_power": ("sound_power_dba", "level_dba_1m", "spectrum"),
+                "sound_power_dba": ("sound_power", "level_dba_1m"),
+                "level_dba_1m": ("sound_power", "sound_power_dba"),
                 "directivity": ("placement",),
                 "placement": ("directivity",)},
 }
 
 #: The spectrum a source given in dB(A) takes when it has none yet.
 DEFAULT_SPECTRUM = "pink"
+#: The catalogue material a new treatment starts with: a porous wall panel when it covers a
+#: surface, a bass trap when it is added as units (a material of the wrong kind for the other).
+DEFAULT_COVER_MATERIAL = "glass-fibre-board-50mm-fabric"
+DEFAULT_UNITS_MATERIAL = "corner-trap-porous-floor-to-ceiling"
+#: Most units a new treatment added as units may use (the user changes it).
+DEFAULT_UNITS_MAX = 4
+
+
+def new_candidate(spec: RoomSpec, name: str) -> CandidateSpec:
+    """A new treatment row that is valid as it stands: it covers a surface of the room (the
+    first on a wall face, else the first surface; a name used twice cannot be covered) with
+    the default porous wall panel, or, in a room without such a surface, is added as units
+    (at most :data:`DEFAULT_UNITS_MAX` bass traps). No cost: the user gives it."""
+    names = [s.name for s in spec.surfaces]
+    unique = [s for s in spec.surfaces if names.count(s.name) == 1]
+    wall = next((s for s in unique if s.face in WALL_FACES), None) or next(iter(unique), None)
+    if wall is not None:
+        return CandidateSpec(name=name, surface=wall.name, material=DEFAULT_COVER_MATERIAL)
+    return CandidateSpec(name=name, material=DEFAULT_UNITS_MATERIAL,
+                         max_count=DEFAULT_UNITS_MAX)
 
 
 def set_item_fields(spec: RoomSpec, collection: str, index: int, values: dict) -> str:
@@ -71,14 +101,44 @@ def set_item_fields(spec: RoomSpec, collection: str, index: int, values: dict) -
         for other in _EXCLUDES.get(collection, {}).get(key, ()):
             if other not in values:
                 clear[other] = None
-    if collection == "sources" and values.get("sound_power_dba") is not None \
+    if collection == "sources" and (values.get("sound_power_dba") is not None
+                                    or values.get("level_dba_1m") is not None) \
             and item.spectrum is None and "spectrum" not in values:
         clear["spectrum"] = DEFAULT_SPECTRUM
+    was_cover = getattr(item, "covers", None)
     for key, value in {**clear, **values}.items():
         setattr(item, key, value)
+    if collection == "candidates" and was_cover != item.covers and "material" not in values:
+        # Made a cover of a units row or the other way: a default material of the old kind
+        # becomes the default of the new one, so the row stays valid.
+        swap = {DEFAULT_UNITS_MATERIAL: DEFAULT_COVER_MATERIAL,
+                DEFAULT_COVER_MATERIAL: DEFAULT_UNITS_MATERIAL}
+        if item.material in swap:
+            item.material = swap[item.material]
     if new_name is not None and new_name != item.name:
         rename_item(spec, collection, index, new_name)
     return label
+
+
+def use_typical_source(spec: RoomSpec, index: int, typical: TypicalSource) -> str:
+    """Make source ``index`` a typical source: its A-weighted level at 1 m over the room's
+    bands (``level_dba_1m``), its shape (``spectrum`` = its id) and where it usually stands
+    (``placement``, which drops an own directivity). Where the typical source has no value at
+    a band of the room, the source gets its band powers as its own instead (the nearest band
+    repeated there, as :func:`change_bands` does). Returns an undo label."""
+    bands = spec.bands
+    if all(b in typical.levels_1m for b in bands):
+        values = {"level_dba_1m": typical.level_dba_1m(bands), "spectrum": typical.id,
+                  "placement": typical.placement}
+    else:
+        have = [b for b in bands if b in typical.levels_1m]
+        lw = source_band_power(None, None, typical.level_dba_1m(have), typical.id,
+                               PLACEMENT_Q[typical.placement], have)
+        values = {"sound_power": nearest_band_fill([round(float(x), 1) for x in lw], have,
+                                                   bands),
+                  "placement": typical.placement}
+    set_item_fields(spec, "sources", index, values)
+    return f"source '{spec.sources[index].name}': {typical.name}"
 
 
 def rename_item(spec: RoomSpec, collection: str, index: int, new: str) -> str:
@@ -98,6 +158,8 @@ def rename_item(spec: RoomSpec, collection: str, index: int, new: str) -> str:
         for c in spec.candidates:
             if c.surface == old:
                 c.surface = new
+            elif isinstance(c.surface, list):
+                c.surface = [new if n == old else n for n in c.surface]
     elif collection == "receivers" and spec.target is not None:
         spec.target.max_level_dba = swap(spec.target.max_level_dba)
         spec.target.max_level_db = swap(spec.target.max_level_db)
@@ -199,7 +261,7 @@ def change_bands(spec: RoomSpec, bands, catalog: Catalog | None = None) -> list[
                     setattr(item, key, fix(getattr(item, key)))
             # The values a material stands for: alpha on a surface or a cover, absorption per
             # unit on an object or a candidate added as units.
-            own = "alpha" if coll == "surfaces" or (coll == "candidates" and item.surface) \
+            own = "alpha" if coll == "surfaces" or (coll == "candidates" and item.covers) \
                 else "absorption"
             mid = _material_to_own(spec, item, own, catalog, new, added)
             if mid:
@@ -230,14 +292,20 @@ def _spectrum_to_own(source, old, new, added) -> str | None:
     band powers as its own (the shape's, at the old bands; the nearest band repeated).
     Returns the shape's name when it did."""
     shape = source.spectrum
-    if source.sound_power_dba is None or not shape or not added:
+    if (source.sound_power_dba is None and source.level_dba_1m is None) or not shape \
+            or not added or shape not in spectrum_names():
         return None
-    table = SPECTRUM_SHAPES.get(shape, {})
+    table = spectrum_shape(shape)
     if all(b in table for b in added):
         return None
-    lw = band_power_from_dba(source.sound_power_dba, shape, old)
+    if source.directivity is None and source.placement not in (None, *PLACEMENT_Q):
+        return None             # a placement the room check refuses: left for the user to fix
+    q = source.q
+    if source.level_dba_1m is not None and not (isinstance(q, float) and q > 0):
+        return None
+    lw = source_band_power(None, source.sound_power_dba, source.level_dba_1m, shape, q, old)
     source.sound_power = nearest_band_fill([round(float(x), 1) for x in lw], old, new)
-    source.sound_power_dba = source.spectrum = None
+    source.sound_power_dba = source.level_dba_1m = source.spectrum = None
     return shape
 
 

@@ -14,9 +14,10 @@ from typing import Callable
 from roomcalc.engine.analysis import RoomResult
 from roomcalc.engine.field import PLACEMENT_Q
 from roomcalc.engine.model import FACES
-from roomcalc.engine.spectra import SPECTRUM_SHAPES
 from roomcalc.io.catalog import Catalog
 from roomcalc.io.roomfile import RoomSpec
+from roomcalc.io.sources import spectrum_names
+from roomcalc.present.glossary import named
 from roomcalc.tui.widgets.record_table import Column
 
 
@@ -58,11 +59,15 @@ class RecordColumns:
                            show=self.show_absorption)]
         if coll == "sources":
             return [Column("name", "Name", optional=False),
-                    Column("sound_power", "Lw per band [dB]", "numbers", length=nb),
-                    Column("sound_power_dba", "LwA [dB(A)]", "number"),
-                    Column("spectrum", "Spectrum", "choice", choices=tuple(SPECTRUM_SHAPES),
-                           hint=", ".join(SPECTRUM_SHAPES)),
-                    Column("directivity", "Q", "number", show=self.show_q),
+                    Column("sound_power", f"{named('Lw')} per band [dB]", "numbers", length=nb),
+                    Column("sound_power_dba", f"{named('LwA')} [dB(A)]", "number"),
+                    Column("level_dba_1m", "level at 1 m [dB(A)]", "number",
+                           hint="A-weighted level of the direct sound 1 m in front, where it "
+                           "stands (its Q counts); m: a typical source"),
+                    Column("spectrum", "Spectrum", "choice", choices=spectrum_names(),
+                           hint=", ".join(spectrum_names())),
+                    Column("directivity", named("Q"), "number", show=self.show_q,
+                           hint="1 free, 2 on a surface, 4 at an edge, 8 in a corner"),
                     Column("placement", "Placement", "choice", choices=tuple(PLACEMENT_Q),
                            hint="free, surface, edge, corner"),
                     Column("position", "Position x y z", "position")]
@@ -78,25 +83,34 @@ class RecordColumns:
                        hint="hours each source runs meanwhile: Saw=2, Planer=1")]
 
     def _candidates(self, spec: RoomSpec, nb: int) -> list[Column]:
-        area = spec.unit_system.area_label
+        u = spec.unit_system
+        area = u.area_label
         return [Column("name", "Name", optional=False),
-                Column("surface", "Covers surface", "text",
-                       hint="a surface's name; empty: added as units"),
+                Column("applied", "Applied", "flag",
+                       hint="yes: built into the room already, the plan leaves it out; "
+                       "no: plan it again"),
+                Column("surface", "Covers surface", "names",
+                       hint="a surface's name, or several separated by ;  empty: added as "
+                       "units"),
+                Column("walls", "All walls", "flag",
+                       hint="yes: covers every surface on a wall face (instead of a surface)"),
                 Column("material", "Material", "material", show=self.show_material),
                 Column("alpha", "alpha (cover)", "numbers", length=nb,
-                       show=lambda r: self.show_alpha(r) if r.surface else "",
+                       show=lambda r: self.show_alpha(r) if r.covers else "",
                        hint="one per band; typing here drops the material"),
                 Column("absorption", f"{area} per unit", "numbers", length=nb,
-                       show=lambda r: "" if r.surface else self.show_absorption(r),
+                       show=lambda r: "" if r.covers else self.show_absorption(r),
                        hint="units: absorption area per unit"),
                 Column("max_area", f"Up to [{area}]", "number",
-                       hint="cover: empty = the whole surface"),
+                       hint="cover: empty = the whole surface (all of them)"),
                 Column("max_count", "Up to [units]", "number", hint="units"),
                 Column("cost_per_m2" if spec.units == "metric" else "cost_per_ft2",
                        f"Cost per {area}", "number"),
                 Column("cost_each", "Cost each", "number"),
                 Column("step", f"Panel [{area}]", "number",
-                       hint="cover: whole panels of this area, e.g. 0.72")]
+                       hint="cover: whole panels of this area, e.g. 0.72"),
+                Column("panel", f"Panel w h [{u.length_label}]", "numbers", length=2,
+                       hint="cover: one panel's width and height, e.g. 1.2 0.6")]
 
     # ------------------------------------------------------------------ cells
     def show_material(self, rec) -> str:
@@ -159,19 +173,31 @@ class RecordColumns:
                 return f"{rec.name}: {name}; {what} {self.values_of(rec, own)}"
             return f"{rec.name}: own values; {what} {self.values_of(rec, own)}"
         if coll == "candidates":
-            if rec.surface:
-                what = (f"covers up to {rec.max_area:g} {u.area_label} of '{rec.surface}'"
-                        if rec.max_area is not None else f"may cover all of '{rec.surface}'")
+            if rec.covers:
+                names = rec.surface_names(self.spec())
+                where = ("every wall" if rec.walls else
+                         ", ".join(f"'{n}'" for n in names))
+                what = (f"covers up to {rec.max_area:g} {u.area_label} of {where}"
+                        if rec.max_area is not None else f"may cover all of {where}")
+                if len(names) > 1:
+                    what += " (spread in proportion to their areas)"
                 values = f"alpha {self.values_of(rec, rec.alpha)}"
             else:
                 what = ("added as units" + (f", up to {rec.max_count:g}"
                                             if rec.max_count is not None else ""))
                 values = f"{u.area_label} per unit {self.values_of(rec, rec.absorption)}"
-            return f"{rec.name}: {what}; {values}"
+            applied = "; applied to the room already (the plan leaves it out)" \
+                if rec.applied else ""
+            return f"{rec.name}: {what}; {values}{applied}"
         if coll == "sources":
-            lw = " ".join(f"{x:g}" for x in rec.sound_power) if rec.sound_power else \
-                f"{rec.sound_power_dba} dB(A), {rec.spectrum} spectrum"
-            return f"{rec.name}: Lw {lw}; Q {self.show_q(rec).strip('()')}"
+            if rec.sound_power:
+                lw = named("Lw") + " " + " ".join(f"{x:g}" for x in rec.sound_power)
+            elif rec.level_dba_1m is not None:
+                lw = f"{rec.level_dba_1m:g} dB(A) at 1 m, {rec.spectrum} spectrum"
+            else:
+                lw = f"{named('LwA')} {rec.sound_power_dba} dB(A), {rec.spectrum} spectrum"
+            return (f"{rec.name}: {lw}; "
+                    f"{named('Q')} {self.show_q(rec).strip('()')}")
         res = self.result
         if res is not None:
             r = next((x for x in res.receivers if x.name == rec.name), None)

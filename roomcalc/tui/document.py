@@ -16,6 +16,7 @@ from roomcalc.io.checks import read_text_file
 from roomcalc.io.roomfile import (CandidateSpec, ObjectSpec, ReceiverSpec, RoomSpec, ShapeSpec,
                                   SourceSpec, SurfaceSpec, comments_lost, parse_spec_as_read,
                                   settle_as_read, spec_to_toml_keeping)
+from roomcalc.study.edits import new_candidate
 from roomcalc.tui.recovery import discard_recovery, write_recovery
 
 COLLECTIONS = ("surfaces", "objects", "sources", "receivers", "candidates")
@@ -26,11 +27,9 @@ NEW_ITEM = {
     "sources": lambda n: SourceSpec(name=f"Source {n}", sound_power_dba=80.0, spectrum="pink",
                                     placement="surface"),
     "receivers": lambda n: ReceiverSpec(name=f"Receiver {n}"),
-    # A treatment the planner may use: units by default (no surface); give it a surface to
-    # make it cover part of that surface instead.
-    "candidates": lambda n: CandidateSpec(name=f"Treatment {n}",
-                                          material="corner-trap-porous-floor-to-ceiling",
-                                          max_count=4),        # cost: the user gives it
+    # A treatment the planner may use (its default is the core's, valid for the room:
+    # roomcalc.study.edits.new_candidate); here only its name.
+    "candidates": lambda n: CandidateSpec(name=f"Treatment {n}"),
 }
 HISTORY_LIMIT = 500
 
@@ -137,6 +136,8 @@ class Document:
         while item.name in names:
             n += 1
             item.name = NEW_ITEM[collection](n).name
+        if collection == "candidates":
+            item = new_candidate(self.spec, item.name)
         at = len(items) if index is None else min(index + 1, len(items))
         self.change(lambda spec: getattr(spec, collection).insert(at, item),
                     f"add {collection[:-1]}")

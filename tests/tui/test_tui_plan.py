@@ -130,6 +130,20 @@ async def test_plan_view_plans_applies_and_undoes(tmp_path, catalog):
             spec, last.plan, list(last.candidates)))
         res = evaluate(check_room(doc.spec, catalog))
         assert np.all(res.rt60_s["sabine"] <= 1.2 + 1e-6)
+        # The treatments stay, those the plan used marked applied, and the view says so.
+        used = {it.candidate for it in last.plan.items}
+        assert [c.name for c in doc.spec.candidates] == ["Ceiling tiles", "Wall panels"]
+        assert {c.name for c in doc.spec.candidates if c.applied} == used
+        await pilot.pause()
+        rows = [grid.get_row_at(i) for i in range(grid.row_count)]
+        assert {r[1] for r in rows if r[0] == "applied"} == used
+        # Space on an applied row leaves it so (the plan leaves it out whatever its tick).
+        k = next(i for i, r in enumerate(rows) if r[0] == "applied")
+        grid.focus()
+        grid.move_cursor(row=k)
+        await pilot.press("space")
+        await pilot.pause()
+        assert grid.get_row_at(k)[0] == "applied"
         await pilot.press("ctrl+z")
         await pilot.pause()
         assert not doc.modified and spec_to_toml(doc.spec) == spec_to_toml(spec)

@@ -359,3 +359,63 @@ def test_help_scrolls_to_its_last_section_at_80x24(tmp_path):
         assert "keys and numbers" not in screen and "Traceback" not in screen, screen
     finally:
         subprocess.run(tmux + ["kill-server"], capture_output=True, timeout=10)
+
+
+@pytest.mark.skipif(TMUX is None, reason="tmux is not installed")
+def test_view_keys_after_the_plan_and_a_digit_in_a_field_in_a_real_terminal(tmp_path):
+    """In a real 120x40 terminal: F9 shows the plan and F5 brings the reverberation back (F5
+    did nothing after F9); 1 and Down go into the Title field, where 2 types a "2" (and does not
+    switch tabs); Escape leaves the field, and then 2 shows the Surfaces table."""
+    room = tmp_path / "workshop.toml"
+    shutil.copyfile(EXAMPLES / "workshop.toml", room)
+    sock = f"roomcalc-test-{uuid.uuid4().hex[:12]}"
+    tmux = [TMUX, "-L", sock, "-f", os.devnull]
+    inner = (f"env -u COLUMNS -u LINES ROOMCALC_DATA_DIR={shlex.quote(str(tmp_path / 'data'))} "
+             f"{' '.join(shlex.quote(c) for c in _command())} open {shlex.quote(str(room))}")
+
+    def capture() -> str:
+        return subprocess.run(tmux + ["capture-pane", "-p", "-t", "rc"], capture_output=True,
+                              text=True, timeout=10).stdout
+
+    def press(key, until, tries=3, seconds=4.0):
+        """A key, pressed again if the screen has not shown its effect (a real terminal's
+        reader can miss a key that arrives while the screen is busy)."""
+        screen = ""
+        for _ in range(tries):
+            subprocess.run(tmux + ["send-keys", "-t", "rc", key], check=True, timeout=10)
+            screen = _wait(capture, until, seconds)
+            if until(screen):
+                break
+        return screen
+
+    def right(screen):
+        return "\n".join(line.split("│", 1)[1] for line in screen.splitlines() if "│" in line)
+
+    subprocess.run(tmux + ["new-session", "-d", "-s", "rc", "-x", "120", "-y", "40",
+                           "sh", "-c", inner, ";", "set-option", "-t", "rc",
+                           "remain-on-exit", "on"], check=True, timeout=10, cwd=tmp_path,
+                   stdin=subprocess.DEVNULL)
+    try:
+        screen = _wait(capture, lambda s: "Sabine" in s)
+        assert "Sabine" in screen, screen
+        screen = press("F9", lambda s: "What the room must reach" in s)
+        assert "What the room must reach" in screen, screen
+        screen = press("F5", lambda s: "Sabine" in right(s) and "What the room" not in s)
+        assert "Sabine" in right(screen) and "What the room must reach" not in screen, screen
+        screen = press("1", lambda s: "Temperature" in s or "Title" in s)
+        assert "Title" in screen, screen
+        screen = press("Down", lambda s: "Leave the field" in s)
+        assert "Leave the field" in screen, screen              # the key line says how out
+        screen = press("End", lambda s: True, tries=1, seconds=0.5)
+        # A digit in the field types.
+        screen = press("2", lambda s: "Woodworking workshop (demo)2" in s, tries=1, seconds=6.0)
+        assert "Woodworking workshop (demo)2" in screen, screen
+        assert "Title" in screen                                 # still the Room tab
+        screen = press("Escape", lambda s: "Leave the field" not in s, tries=1, seconds=3.0)
+        screen = press("2", lambda s: "Material" in s and "Title" not in s)
+        assert "Material" in screen and "Title" not in screen, screen
+        # The title took one "2", not two (the first line shows the room's title).
+        screen = _wait(capture, lambda s: "(demo)2" in s.splitlines()[0])
+        assert "Woodworking workshop (demo)2 " in screen.splitlines()[0], screen
+    finally:
+        subprocess.run(tmux + ["kill-server"], capture_output=True, timeout=10)

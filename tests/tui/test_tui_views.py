@@ -149,9 +149,11 @@ async def test_compare_view_shows_a_comparison_and_messages(catalog):
         rows = _rows(table)
         col = 1 + list(before.bands_hz).index(500)
         i = list(before.bands_hz).index(500)
-        assert rows[0][0] == f"RT60 {METHOD_TITLES[cmp.method]} before [s]"
-        assert rows[0][col] == f"{float(before.rt60_s[cmp.method][i]):.2f}"
-        assert rows[1][col] == f"{float(after.rt60_s[cmp.method][i]):.2f}"
+        assert rows[0][0] == f"RT60 {METHOD_TITLES[cmp.method]} [s]"
+        assert rows[1][0].strip() == "before"
+        assert rows[1][col] == f"{float(before.rt60_s[cmp.method][i]):.2f}"
+        assert rows[2][0].strip() == "after"
+        assert rows[2][col] == f"{float(after.rt60_s[cmp.method][i]):.2f}"
         notes = str(app.query_one("#compare-notes").content)
         assert notes == "\n".join(f"- {n}" for n in cmp.notes)
 

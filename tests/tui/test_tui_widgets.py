@@ -215,7 +215,7 @@ async def test_material_chooser_filters_and_picks(catalog):
         assert lst.row_count == len(surfaces) > 20
         # Objects are not offered for a surface.
         objects = set(catalog.ids("object"))
-        assert objects and not objects & {str(lst.get_row_at(i)[0]) for i in
+        assert objects and not objects & {lst.row_key(i) for i in
                                           range(lst.row_count)}
         await pilot.press(*"wool")
         await pilot.pause()
@@ -240,7 +240,7 @@ async def test_material_chooser_row_and_category(catalog):
         await pilot.pause()
         lst = app.screen.query_one("#list", CellGrid)
         # The current material is highlighted.
-        assert str(lst.get_row_at(lst.cursor_row)[0]) == "heavy-velour-flat"
+        assert lst.row_key(lst.cursor_row) == "heavy-velour-flat"
         await pilot.press(*"vel")
         await pilot.pause()
         want = [m.id for m in catalog.search("vel", None, "surface")]
@@ -260,7 +260,7 @@ async def test_material_chooser_row_and_category(catalog):
         app.screen.query_one("#category").value = category
         await pilot.pause()
         want = [m.id for m in catalog.search("", category, "object")]
-        assert [str(lst.get_row_at(i)[0]) for i in range(lst.row_count)] == want
+        assert [lst.row_key(i) for i in range(lst.row_count)] == want
         await pilot.press("escape")
         await pilot.pause()
     assert app.results == [None]

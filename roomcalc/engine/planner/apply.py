@@ -4,13 +4,12 @@ from __future__ import annotations
 
 import dataclasses
 import math
-import operator
 from collections.abc import Sequence
 
 import numpy as np
 
 from roomcalc.engine.model import Room, RoomObject, Surface
-from roomcalc.engine.planner.goals import Candidate
+from roomcalc.engine.planner.goals import Candidate, cover_shares, cover_surfaces
 from roomcalc.engine.planner.inputs import check_candidates
 
 __all__ = ["apply_to_room"]
@@ -47,7 +46,9 @@ def apply_to_room(room: Room, candidates: Sequence[Candidate], amounts) -> Room:
     alpha and material and the same face and count, placed after the surface it covers, whose
     area shrinks by what is covered (and which is left out when nothing of it remains; what
     remains keeps every other field, people-marked alpha included); units
-    become RoomObjects with ``count`` = amount.
+    become RoomObjects with ``count`` = amount. A candidate over several surfaces puts
+    :math:`w_i x` on surface i, :math:`w_i = S_i / \\sum_k S_k`
+    (:func:`~roomcalc.engine.planner.goals.cover_shares`).
 
     Notes
     -----
@@ -61,24 +62,27 @@ def apply_to_room(room: Room, candidates: Sequence[Candidate], amounts) -> Room:
     """
     cands = check_candidates(room, candidates)
     x = _check_amounts(cands, amounts)
-    covers: dict[int, list[int]] = {}
+    covers: dict[int, list[tuple[int, float]]] = {}     # surface -> (candidate, m^2 on it)
+    areas = np.array([sf.total_area for sf in room.surfaces])
     for j, cd in enumerate(cands):
         if cd.kind == "cover" and x[j] > 0:
-            covers.setdefault(operator.index(cd.surface), []).append(j)
+            sis = list(cover_surfaces(cd))
+            for si, w in zip(sis, cover_shares(areas[sis])):
+                covers.setdefault(si, []).append((j, float(w * x[j])))
     surfaces = []
     for si, sf in enumerate(room.surfaces):
         idx = covers.get(si, [])
         total = sf.total_area
-        used = float(sum(x[j] for j in idx))
+        used = float(sum(a for _, a in idx))
         if used > total * (1 + 1e-9) + 1e-9:
             raise ValueError(f"amounts: the cover candidates on surface {si} ('{sf.name}') "
                              f"cover {used:g} m^2, more than its {total:g} m^2")
         rest = total - used
         if rest > 1e-9 * max(total, 1.0):
             surfaces.append(dataclasses.replace(sf, area=rest / sf.count))
-        for j in idx:
+        for j, a in idx:
             cd = cands[j]
-            surfaces.append(Surface(f"{sf.name} ({cd.name})", x[j] / sf.count, cd.alpha,
+            surfaces.append(Surface(f"{sf.name} ({cd.name})", a / sf.count, cd.alpha,
                                     count=sf.count, face=sf.face, material=cd.material))
     objects = list(room.objects) + [
         RoomObject(cd.name, cd.absorption, count=float(x[j]), material=cd.material)

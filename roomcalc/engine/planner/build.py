@@ -9,7 +9,6 @@ from __future__ import annotations
 
 import dataclasses
 import math
-import operator
 
 import numpy as np
 
@@ -17,7 +16,7 @@ from roomcalc.engine.analysis import ALPHA_LOG_MAX, METHOD_TITLES, evaluate
 from roomcalc.engine.bands import band_constants
 from roomcalc.engine.model import Room
 from roomcalc.engine.planner.bounds import LN10
-from roomcalc.engine.planner.goals import Goals
+from roomcalc.engine.planner.goals import Goals, cover_shares, cover_surfaces
 from roomcalc.engine.planner.inputs import check_candidates, check_goals
 from roomcalc.engine.planner.model import (DB_PER_NEPER, EXACT_METHODS, BandLevelKey, DbaKey,
                                            LevelCut, PlanModel, Row, RtKey, SurfaceGroup)
@@ -60,14 +59,20 @@ def _variables(room: Room, cands, objective, method, alphas, areas) -> dict:
     out = {k: np.zeros((n, nb)) for k in ("g_rt", "g_log")}
     out.update(step=np.ones(n), integer=np.zeros(n, bool), ub_x=np.zeros(n),
                primary=np.zeros(n), secondary=np.zeros(n))
-    groups: dict[int, list[int]] = {}
+    groups: dict[int, list[tuple[int, float]]] = {}
     for j, cd in enumerate(cands):
         if cd.kind == "cover":
-            si = operator.index(cd.surface)
-            groups.setdefault(si, []).append(j)
-            out["g_rt"][j] = _gain(method, cd.alpha, alphas[si])
-            out["g_log"][j] = _gain("eyring", cd.alpha, alphas[si])
-            out["ub_x"][j] = min(float(cd.max_amount), areas[si])
+            # One amount spread over its surfaces in proportion to their areas: the gain per
+            # m^2 is the share-weighted mean of the gains on each (Sabine: sum_i w_i
+            # (alpha_j - alpha_i), from A = sum S alpha).
+            sis = list(cover_surfaces(cd))
+            w = cover_shares(areas[sis])
+            for si, wi in zip(sis, w):
+                groups.setdefault(si, []).append((j, float(wi)))
+            out["g_rt"][j] = w @ np.array([_gain(method, cd.alpha, alphas[si]) for si in sis])
+            out["g_log"][j] = w @ np.array([_gain("eyring", cd.alpha, alphas[si])
+                                            for si in sis])
+            out["ub_x"][j] = min(float(cd.max_amount), float(areas[sis].sum()))
             area_each = 1.0
             if cd.step is not None:
                 out["step"][j], out["integer"][j] = float(cd.step), True
@@ -83,8 +88,10 @@ def _variables(room: Room, cands, objective, method, alphas, areas) -> dict:
     ub_y = out["ub_x"] / step
     out["ub_y"] = np.where(integer & np.isfinite(ub_y), np.floor(ub_y + 1e-9), ub_y)
     out["ub_x"] = np.where(integer, out["ub_y"] * step, out["ub_x"])
-    out["surface_groups"] = tuple(SurfaceGroup(si, idx, float(areas[si]))
-                                  for si, idx in sorted(groups.items()))
+    out["surface_groups"] = tuple(
+        SurfaceGroup(si, [j for j, _ in jw], float(areas[si]),
+                     None if all(w == 1.0 for _, w in jw) else np.array([w for _, w in jw]))
+        for si, jw in sorted(groups.items()))
     return out
 
 

@@ -54,14 +54,16 @@ def describe(model: PlanModel, x) -> str:
     """The treatment x in words, for the reasons."""
     parts = []
     at_limit = x >= model.ub_x - 0.005
-    for si, idx, area in model.surface_groups:
+    for group in model.surface_groups:
+        si, idx, area, share = group.surface, group.candidates, group.area, group.share()
         used = [j for j in idx if x[j] > 0]
         if not used:
             continue
-        total = float(sum(x[j] for j in used))
+        on = dict(zip(idx, (share * x[idx]).tolist()))      # m^2 of each on this surface
+        total = float(sum(on[j] for j in used))
         names = [f"'{model.candidates[j].name}'" for j in used]
         with_ = (names[0] if len(used) == 1 else
-                 " and ".join(f"{nm} ({x[j]:.1f} m^2)" for nm, j in zip(names, used)))
+                 " and ".join(f"{nm} ({on[j]:.1f} m^2)" for nm, j in zip(names, used)))
         sname = model.room.surfaces[si].name
         if total >= area - 0.005:
             parts.append(f"covering all {area:.1f} m^2 of '{sname}' with {with_}")

@@ -18,7 +18,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 __all__ = ["OBJECTIVES", "PLAN_METHODS", "KINDS", "Candidate", "LevelGoal", "Goals",
-           "PlanItem", "Plan", "frozen_array"]
+           "PlanItem", "Plan", "frozen_array", "cover_surfaces", "cover_shares"]
 
 #: What a plan minimises: the total cost, or the total area (m^2 covered plus units x
 #: ``area_each``).
@@ -46,31 +46,59 @@ class Candidate:
 
     kind "cover": covers up to ``max_amount`` m^2 of ``room.surfaces[surface]`` (in total over
     its ``count`` copies), replacing that surface's alpha by ``alpha`` over the covered area;
-    the surface's own total area is a hard limit too. ``alpha`` may exceed 1 up to the
+    the surface's own total area is a hard limit too. ``surface`` may be a tuple of indices:
+    one treatment over several surfaces (all walls), with one limit and one price for the area
+    covered over all of them, spread over them in proportion to their total areas
+    (:func:`cover_shares`). ``alpha`` may exceed 1 up to the
     catalogue's largest (ISO 354 reports give such values): Sabine takes it as given, the
     logarithmic formulas cap it at 0.99 as the engine does. ``step`` [m^2], if given, makes the
     covered area a whole number of steps (whole panels, e.g. 1.2 x 0.6 = 0.72 m^2).
     kind "units": adds up to ``max_amount`` units of ``absorption`` [m^2 per unit per band];
     whole units unless ``integer`` is False. ``area_each`` [m^2] is what one unit counts for
     when the objective is the least area.
-    ``cost`` is per m^2 (cover) or per unit (units), in the file's currency.
+    ``cost`` is per m^2 (cover) or per unit (units), in the file's currency. ``panel``
+    (width, height) [m] is the panel ``step`` is the area of, when the file states it; it is
+    only shown (the planner uses ``step``).
     """
 
     name: str
     kind: str                                   # "cover" or "units"
     cost: float = 0.0
     max_amount: float = float("inf")            # m^2 (cover) or units
-    surface: int | None = None                  # cover: index into room.surfaces
+    surface: int | tuple[int, ...] | None = None    # cover: index (indices) into room.surfaces
     alpha: np.ndarray | None = None             # cover: alpha per band
     absorption: np.ndarray | None = None        # units: m^2 per unit per band
     step: float | None = None                   # cover: whole steps of this many m^2
     integer: bool = True                        # units: whole numbers of units
     area_each: float = 1.0                      # units: m^2 each, for the least-area objective
     material: str | None = None                 # catalogue id, kept for writing the room back
+    panel: tuple[float, float] | None = None    # cover: one panel's width and height [m], shown
 
     def __post_init__(self):
         object.__setattr__(self, "alpha", frozen_array(self.alpha))
         object.__setattr__(self, "absorption", frozen_array(self.absorption))
+        if isinstance(self.surface, list):
+            object.__setattr__(self, "surface", tuple(self.surface))
+
+
+def cover_surfaces(cd: Candidate) -> tuple[int, ...]:
+    """The indices of the surfaces a cover candidate covers (one or more), in its order."""
+    s = cd.surface
+    return tuple(int(i) for i in s) if isinstance(s, tuple) else (int(s),)
+
+
+def cover_shares(total_areas) -> np.ndarray:
+    """How one cover candidate's area spreads over the surfaces it covers: in proportion to
+    their total areas, :math:`w_i = S_i / \\sum_k S_k`, so that each surface gets the same
+    share of itself covered (covering x m^2 in all covers :math:`x / \\sum_k S_k` of each).
+    ``total_areas`` [m^2], one per surface; all 0: equal shares.
+
+    >>> cover_shares([30.0, 10.0]).tolist()
+    [0.75, 0.25]
+    """
+    a = np.asarray(total_areas, dtype=float)
+    tot = float(a.sum())
+    return a / tot if tot > 0 else np.full(a.size, 1.0 / max(a.size, 1))
 
 
 @dataclass(frozen=True, eq=False)
@@ -111,7 +139,7 @@ class PlanItem:
 
     candidate: str
     kind: str
-    surface: str | None          # the covered surface's name (cover), None (units)
+    surface: str | None          # the covered surface's name (cover; several: "A, B"), None (units)
     amount: float                # m^2 (cover) or units
     cost: float
 

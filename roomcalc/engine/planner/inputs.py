@@ -26,17 +26,24 @@ ALPHA_MAX = 1.2
 
 
 def _check_cover(cd: Candidate, at: str, who: str, ns: int, bands) -> None:
-    if cd.surface is None or isinstance(cd.surface, bool):
+    if cd.surface is None or isinstance(cd.surface, bool) or cd.surface == ():
         raise ValueError(f"{at}.surface: a cover candidate needs a surface, an index "
-                         f"0 to {ns - 1} into the room's surfaces{who}")
-    try:
-        si = operator.index(cd.surface)
-    except TypeError:
-        raise ValueError(f"{at}.surface: {cd.surface!r} must be a whole number 0 to "
-                         f"{ns - 1} (an index into the room's surfaces){who}") from None
-    if not 0 <= si < ns:
-        raise ValueError(f"{at}.surface: {si} is out of range 0 to {ns - 1} (the room "
-                         f"has {ns} surfaces){who}")
+                         f"0 to {ns - 1} into the room's surfaces (or a tuple of them){who}")
+    seen = set()
+    for s in (cd.surface if isinstance(cd.surface, tuple) else (cd.surface,)):
+        try:
+            if isinstance(s, bool):
+                raise TypeError
+            si = operator.index(s)
+        except TypeError:
+            raise ValueError(f"{at}.surface: {s!r} must be a whole number 0 to "
+                             f"{ns - 1} (an index into the room's surfaces){who}") from None
+        if not 0 <= si < ns:
+            raise ValueError(f"{at}.surface: {si} is out of range 0 to {ns - 1} (the room "
+                             f"has {ns} surfaces){who}")
+        if si in seen:
+            raise ValueError(f"{at}.surface: {si} is given twice; each surface once{who}")
+        seen.add(si)
     if cd.alpha is None:
         raise ValueError(f"{at}.alpha: a cover candidate needs alpha, {len(bands)} values "
                          f"from 0 to {ALPHA_MAX:g}{who}")

@@ -128,11 +128,20 @@ class Miss:
 
 
 class SurfaceGroup(NamedTuple):
-    """The cover candidates on one surface, whose areas add up to at most ``area`` [m^2]."""
+    """The cover candidates on one surface, whose areas on it add up to at most ``area``
+    [m^2]: candidate ``candidates[k]`` puts ``weights[k]`` of its amount on this surface (1
+    for a candidate of one surface; its share, :func:`~.goals.cover_shares`, for one spread
+    over several)."""
 
     surface: int
     candidates: list
     area: float
+    weights: np.ndarray | None = None       # None: all 1
+
+    def share(self) -> np.ndarray:
+        """The weights as an array (ones when not given)."""
+        return (np.ones(len(self.candidates)) if self.weights is None
+                else np.asarray(self.weights, dtype=float))
 
 
 @dataclass(frozen=True, kw_only=True, eq=False)
@@ -204,7 +213,7 @@ class PlanModel:
         out[cont] = np.where(near[cont] > self.ub_x[cont] * (1 + 1e-12), low[cont], near[cont])
         for group in self.surface_groups:
             idx = group.candidates
-            if out[idx].sum() > group.area * (1 + 1e-12):
+            if out[idx] @ group.share() > group.area * (1 + 1e-12):
                 c = [j for j in idx if cont[j]]
                 out[c] = low[c]
         out = np.minimum(np.maximum(out, 0.0), self.ub_x)

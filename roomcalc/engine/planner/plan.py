@@ -12,7 +12,7 @@ from roomcalc.engine.analysis import METHOD_TITLES
 from roomcalc.engine.model import Room
 from roomcalc.engine.planner.build import build_model, with_rt_limits
 from roomcalc.engine.planner.explain import evaluate_plan, explain, violations
-from roomcalc.engine.planner.goals import Candidate, Goals, Plan, PlanItem
+from roomcalc.engine.planner.goals import Candidate, Goals, Plan, PlanItem, cover_surfaces
 from roomcalc.engine.planner.model import (MAX_CUT_ROUNDS, MAX_SURROGATE_ROUNDS,
                                            SURROGATE_MARGIN, Miss, PlanModel, RtKey)
 from roomcalc.engine.progress import PlanWatch
@@ -119,7 +119,8 @@ def _items(model: PlanModel, x) -> tuple[list, float, float, float]:
         if x[j] <= 0:
             continue
         cost = float(x[j] * cd.cost)
-        sname = model.room.surfaces[cd.surface].name if cd.kind == "cover" else None
+        sname = (", ".join(model.room.surfaces[i].name for i in cover_surfaces(cd))
+                 if cd.kind == "cover" else None)
         items.append(PlanItem(cd.name, cd.kind, sname, float(x[j]), cost))
         cost_sum += cost
         if cd.kind == "cover":
@@ -169,7 +170,11 @@ def plan(room: Room, candidates: Sequence[Candidate], goals: Goals, *,
     Variables: :math:`0 \\le x_j \\le x_{j,max}`, and the covers on each surface add up to at
     most its area. Per band, absorption is affine in x,
     :math:`A_b(x) = A_{0,b} + \\sum_j \\Delta A_{jb} x_j`, with :math:`\\Delta A_{jb}` the
-    change per m^2 covered of surface i, or the absorption per unit. With
+    change per m^2 covered of surface i, or the absorption per unit. A cover over several
+    surfaces puts :math:`w_i x_j` on surface i, :math:`w_i = S_i / \\sum_k S_k`
+    (:func:`~roomcalc.engine.planner.goals.cover_shares`): its :math:`\\Delta A_{jb}` is
+    :math:`\\sum_i w_i \\Delta A_{jb,i}`, and surface i holds
+    :math:`\\sum_j w_{ij} x_j \\le S_i`. With
     :math:`Y_b = K V / T_{max} - 4 m_b V` (air as in the engine, outside A):
 
     - Sabine [1]_: :math:`\\Delta A = \\alpha_j - \\alpha_i` (alpha as given, above 1 too);

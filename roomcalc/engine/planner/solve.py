@@ -74,7 +74,7 @@ class _Problem:
         for group in model.surface_groups:
             if len(group.candidates) > 1:
                 row = np.zeros(nz)
-                row[group.candidates] = sy[group.candidates]
+                row[group.candidates] = sy[group.candidates] * group.share()
                 self.base_a.append(row)
                 self.base_b.append(group.area)
         self.goal_a = []

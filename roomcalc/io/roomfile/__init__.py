@@ -28,6 +28,7 @@ from roomcalc.io.roomfile.resolve import (candidate_material, check_room, materi
                                           unoccupied_values)
 from roomcalc.io.roomfile.spec import (AIR_KEYS, AREA_COST_KEY, CANDIDATE_ALPHA_MAX,
                                        CANDIDATE_KEYS, COVER_KEYS, DEFAULT_OBJECTIVE,
+                                       WALL_FACES,
                                        DEFAULT_PLACEMENT, FORMAT_VERSION, METHODS,
                                        LEVEL_LIMIT_MAX_DB, OBJECT_KEYS, OBJECTIVES,
                                        RECEIVER_KEYS, SHAPE_KEYS, SOURCE_KEYS, SURFACE_KEYS,
@@ -41,7 +42,7 @@ from roomcalc.io.roomfile.write import (save_spec, spec_fields_dict, spec_to_dic
 __all__ = [
     # spec
     "FORMAT_VERSION", "TOP_KEYS", "AIR_KEYS", "SHAPE_KEYS", "SURFACE_KEYS", "OBJECT_KEYS",
-    "SOURCE_KEYS", "RECEIVER_KEYS", "TARGET_KEYS", "COVER_KEYS", "UNIT_KEYS", "CANDIDATE_KEYS",
+    "SOURCE_KEYS", "RECEIVER_KEYS", "TARGET_KEYS", "COVER_KEYS", "UNIT_KEYS", "CANDIDATE_KEYS", "WALL_FACES",
     "CANDIDATE_ALPHA_MAX", "AREA_COST_KEY", "DEFAULT_PLACEMENT", "METHODS", "OBJECTIVES",
     "DEFAULT_OBJECTIVE", "LEVEL_LIMIT_MAX_DB",
     "AirSpec", "ShapeSpec", "SurfaceSpec", "ObjectSpec", "SourceSpec", "ReceiverSpec",

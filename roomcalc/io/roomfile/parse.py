@@ -10,7 +10,6 @@ from __future__ import annotations
 from roomcalc.engine.bands import ALLOWED_BANDS_HZ, DEFAULT_BANDS_HZ
 from roomcalc.engine.field import PLACEMENT_Q
 from roomcalc.engine.model import FACES
-from roomcalc.engine.spectra import SPECTRUM_SHAPES
 from roomcalc.io.catalog import parse_entries
 from roomcalc.io.checks import Checker, kind_of, read_text_file, read_toml
 from roomcalc.io.errors import Problem, RoomFileError
@@ -21,6 +20,7 @@ from roomcalc.io.roomfile.spec import (AIR_KEYS, FORMAT_VERSION, METHODS, OBJECT
                                        RECEIVER_KEYS, SHAPE_KEYS, SOURCE_KEYS, SURFACE_KEYS,
                                        TOP_KEYS, ObjectSpec, ReceiverSpec, RoomSpec, SourceSpec,
                                        SurfaceSpec, band_text)
+from roomcalc.io.sources import spectrum_names, spectrum_shape
 from roomcalc.io.units import UNITS, Units
 
 
@@ -205,8 +205,8 @@ def _sources(chk: Checker, data: dict, spec: RoomSpec, u: Units) -> set[str]:
         sp.sound_power = chk.numbers(s, "sound_power", w, length=len(spec.bands),
                                      **limit("sound_power", unit=bt))
         sp.sound_power_dba = chk.number(s, "sound_power_dba", w, **limit("sound_power_dba"))
-        sp.spectrum = chk.text(s, "spectrum", w, choices=tuple(SPECTRUM_SHAPES),
-                               nonempty=True)
+        sp.level_dba_1m = chk.number(s, "level_dba_1m", w, **limit("level_dba_1m"))
+        sp.spectrum = chk.text(s, "spectrum", w, choices=spectrum_names(), nonempty=True)
         _source_power_rules(chk, s, w, sp, spec.bands)
         sp.directivity = chk.number(s, "directivity", w, **limit("directivity"))
         sp.placement = chk.text(s, "placement", w, choices=tuple(PLACEMENT_Q), nonempty=True)
@@ -220,17 +220,20 @@ def _sources(chk: Checker, data: dict, spec: RoomSpec, u: Units) -> set[str]:
 
 
 def _source_power_rules(chk: Checker, s: dict, w: str, sp: SourceSpec, bands) -> None:
-    """sound_power or sound_power_dba, and a spectrum with (only with) sound_power_dba."""
-    if ("sound_power" in s) == ("sound_power_dba" in s):
-        chk.add(w, "give either sound_power (dB re 1 pW, " + band_text(bands) + ") or "
-                "sound_power_dba with spectrum")
-    if "sound_power_dba" in s and "spectrum" not in s:
-        chk.add(f"{w}.spectrum", "is required with sound_power_dba; one of "
-                + ", ".join(SPECTRUM_SHAPES))
-    if sp.spectrum and "sound_power" in s:
-        chk.add(f"{w}.spectrum", "only goes with sound_power_dba")
-    if sp.spectrum and "sound_power_dba" in s:
-        missing = [b for b in bands if b not in SPECTRUM_SHAPES[sp.spectrum]]
+    """One of sound_power, sound_power_dba and level_dba_1m; a spectrum with (only with) one
+    of the two dB(A) keys."""
+    given = [k for k in ("sound_power", "sound_power_dba", "level_dba_1m") if k in s]
+    if len(given) != 1:
+        chk.add(w, "give one of sound_power (dB re 1 pW, " + band_text(bands) + "), "
+                "sound_power_dba with spectrum, or level_dba_1m (dB(A) at 1 m) with spectrum"
+                + (f"; this source gives {' and '.join(given)}" if given else ""))
+    dba = next((k for k in ("sound_power_dba", "level_dba_1m") if k in s), None)
+    if dba and "spectrum" not in s:
+        chk.add(f"{w}.spectrum", f"is required with {dba}; one of " + ", ".join(spectrum_names()))
+    if sp.spectrum and dba is None and "sound_power" in s:
+        chk.add(f"{w}.spectrum", "only goes with sound_power_dba or level_dba_1m")
+    if sp.spectrum and dba:
+        missing = [b for b in bands if b not in spectrum_shape(sp.spectrum)]
         if missing:
             chk.add(f"{w}.spectrum", f"'{sp.spectrum}' has no value at "
                     f"{', '.join(map(str, missing))} Hz")

@@ -5,6 +5,8 @@ SI goals and candidates.
 
 from __future__ import annotations
 
+import math
+
 from roomcalc.io.checks import Checker, kind_of, nearest
 from roomcalc.io.limits import limit
 from roomcalc.io.roomfile.spec import (AREA_COST_KEY, CANDIDATE_KEYS, COVER_KEYS, METHODS,
@@ -125,7 +127,12 @@ def parse_candidates(chk: Checker, data: dict, spec: RoomSpec, u: Units) -> list
         if any(o.name == cp.name for o in out):
             chk.add(f"{w}.name", f"'{cp.name}' is used by another candidate; names must differ")
         cp.material = chk.text(c, "material", w, nonempty=True)
-        if "surface" in c:
+        if "applied" in c:
+            if isinstance(c["applied"], bool):
+                cp.applied = c["applied"] or None
+            else:
+                chk.add(f"{w}.applied", f"must be true or false, not {kind_of(c['applied'])}")
+        if "surface" in c or "walls" in c:
             _cover(chk, c, w, cp, spec, u)
         else:
             _units(chk, c, w, cp, spec, u)
@@ -134,20 +141,33 @@ def parse_candidates(chk: Checker, data: dict, spec: RoomSpec, u: Units) -> list
 
 
 def _cover(chk: Checker, c: dict, w: str, cp: CandidateSpec, spec: RoomSpec, u: Units) -> None:
-    """A candidate that covers part of a surface."""
-    surfaces = [s.name for s in spec.surfaces]
-    cp.surface = chk.text(c, "surface", w, nonempty=True)
-    if cp.surface is not None:
-        hits = [f"surfaces[{j}]" for j, n in enumerate(surfaces) if n == cp.surface]
-        if not hits:
-            near = nearest(cp.surface, surfaces)
-            chk.add(f"{w}.surface", f"'{cp.surface}' is not a surface of this room"
-                    + (f"; did you mean '{near}'?" if near else "")
-                    + f" (surfaces: {', '.join(surfaces) or 'none'})")
-        elif len(hits) > 1:
-            chk.add(f"{w}.surface", f"'{cp.surface}' names {len(hits)} surfaces "
-                    f"({', '.join(hits)}); give them different names so that one can "
-                    "be treated")
+    """A candidate that covers part of one surface, of several (a list), or of every wall."""
+    if "walls" in c:
+        if c["walls"] is True:
+            cp.walls = True
+            if "surface" in c:
+                chk.add(w, "give surface (one name or a list) or walls = true (every wall), "
+                        "not both")
+            elif not cp.surface_names(spec):
+                chk.add(f"{w}.walls", "covers the surfaces on the box's wall faces (front, "
+                        "back, left, right), and no surface here has such a face; give "
+                        "surface instead")
+        else:
+            chk.add(f"{w}.walls", "must be true (every surface on a wall face), or left out")
+    if "surface" in c:
+        v = c["surface"]
+        if isinstance(v, list):
+            if not v or not all(isinstance(x, str) and x.strip() for x in v):
+                chk.add(f"{w}.surface", "a list must hold one or more surface names (text)")
+            elif len(set(v)) < len(v):
+                chk.add(f"{w}.surface", "names a surface twice; give each once")
+            else:
+                cp.surface = list(v)
+        else:
+            cp.surface = chk.text(c, "surface", w, nonempty=True)
+    if cp.surface is not None and not cp.applied:
+        # An applied candidate may name a surface its plan covered whole (and so removed).
+        _known_surfaces(chk, w, cp.surface_names(spec), [s.name for s in spec.surfaces])
     for k in UNIT_KEYS:
         if k in c:
             chk.add(f"{w}.{k}", "only goes with a candidate added as units (one "
@@ -159,6 +179,12 @@ def _cover(chk: Checker, c: dict, w: str, cp: CandidateSpec, spec: RoomSpec, u: 
                 + bt + ") for the covered part")
     cp.max_area = chk.number(c, "max_area", w, **limit("max_area", u))
     cp.step = chk.number(c, "step", w, **limit("step", u))
+    cp.panel = _panel(chk, c, w, u)
+    if cp.panel is not None and cp.step is not None and not math.isclose(
+            cp.panel[0] * cp.panel[1], cp.step, rel_tol=1e-3):
+        chk.add(f"{w}.step", f"{cp.step:g} {u.area_label} is not the panel's area "
+                f"({cp.panel[0]:g} x {cp.panel[1]:g} = {cp.panel[0] * cp.panel[1]:g} "
+                f"{u.area_label}); give panel alone, or both in agreement")
     cost_key = AREA_COST_KEY[u.name]
     other_cost = AREA_COST_KEY["imperial" if u.name == "metric" else "metric"]
     if other_cost in c:
@@ -167,6 +193,35 @@ def _cover(chk: Checker, c: dict, w: str, cp: CandidateSpec, spec: RoomSpec, u: 
                 f"{u.area_label}: use {cost_key}")
     setattr(cp, cost_key, chk.number(c, cost_key, w,
                                      **limit("cost", unit=f"per {u.area_label}")))
+
+
+def _panel(chk: Checker, c: dict, w: str, u: Units) -> list[float] | None:
+    """``panel = [width, height]``, each in the range of a panel side (in the file's units)."""
+    if "panel" not in c:
+        return None
+    v = c["panel"]
+    if not isinstance(v, list) or len(v) != 2:
+        chk.add(f"{w}.panel", f"must be [width, height] of one panel ({u.length_label}), not "
+                + (f"{len(v)} value{'' if len(v) == 1 else 's'}" if isinstance(v, list)
+                   else kind_of(v)))
+        return None
+    sides = [chk.value(x, f"{w}.panel[{i}]", **limit("panel", u)) for i, x in enumerate(v)]
+    return None if None in sides else [float(x) for x in sides]
+
+
+def _known_surfaces(chk: Checker, w: str, names: list[str], surfaces: list[str]) -> None:
+    """Each name a candidate covers is one surface of the room (exactly one)."""
+    for name in names:
+        hits = [f"surfaces[{j}]" for j, n in enumerate(surfaces) if n == name]
+        if not hits:
+            near = nearest(name, surfaces)
+            chk.add(f"{w}.surface", f"'{name}' is not a surface of this room"
+                    + (f"; did you mean '{near}'?" if near else "")
+                    + f" (surfaces: {', '.join(surfaces) or 'none'})")
+        elif len(hits) > 1:
+            chk.add(f"{w}.surface", f"'{name}' names {len(hits)} surfaces "
+                    f"({', '.join(hits)}); give them different names so that one can "
+                    "be treated")
 
 
 def _units(chk: Checker, c: dict, w: str, cp: CandidateSpec, spec: RoomSpec, u: Units) -> None:

@@ -8,7 +8,6 @@ from __future__ import annotations
 import math
 
 from roomcalc.engine.model import Air, Receiver, Room, RoomObject, Source, Surface
-from roomcalc.engine.spectra import band_power_from_dba
 from roomcalc.io.catalog import Catalog, Material, counterpart_problems
 from roomcalc.io.checks import Checker, nearest
 from roomcalc.io.criteria import check_criterion_id
@@ -18,6 +17,7 @@ from roomcalc.io.roomfile.faces import box_dimensions_m, surface_area_m2
 from roomcalc.io.roomfile.parse import SpecProblems, parse_data, read_spec
 from roomcalc.io.roomfile.spec import CandidateSpec, RoomSpec
 from roomcalc.io.roomfile.write import spec_to_dict
+from roomcalc.io.sources import source_band_power
 
 
 def read_room(path, catalog: Catalog, criteria=None) -> tuple[RoomSpec, Room]:
@@ -222,10 +222,8 @@ def _sources(spec: RoomSpec) -> list[Source]:
     u = spec.unit_system
     out = []
     for s in spec.sources:
-        if s.sound_power is not None:
-            lw = s.sound_power
-        else:
-            lw = band_power_from_dba(s.sound_power_dba, s.spectrum, spec.bands)
+        lw = source_band_power(s.sound_power, s.sound_power_dba, s.level_dba_1m, s.spectrum,
+                               s.q, spec.bands)
         pos = tuple(x * u.length for x in s.position) if s.position else None
         out.append(Source(s.name, lw, s.q, pos))
     return out

@@ -23,16 +23,20 @@ AIR_KEYS = ("temperature", "relative_humidity", "pressure_kpa")
 SHAPE_KEYS = ("length", "width", "height", "volume")
 SURFACE_KEYS = ("name", "area", "count", "face", "material", "alpha")
 OBJECT_KEYS = ("name", "count", "material", "absorption", "occupant")
-SOURCE_KEYS = ("name", "sound_power", "sound_power_dba", "spectrum", "directivity", "placement",
-               "position")
+SOURCE_KEYS = ("name", "sound_power", "sound_power_dba", "level_dba_1m", "spectrum",
+               "directivity", "placement", "position")
 RECEIVER_KEYS = ("name", "position", "distances", "hours", "source_hours")
 TARGET_KEYS = ("method", "objective", "currency", "criterion", "rt60_max", "rt60_min",
                "max_level_dba", "max_level_db")
 #: Keys of a candidate that covers part of a surface, of one added as units, and of both.
-COVER_KEYS = ("surface", "alpha", "max_area", "step", "cost_per_m2", "cost_per_ft2")
+COVER_KEYS = ("surface", "walls", "alpha", "max_area", "step", "panel", "cost_per_m2",
+              "cost_per_ft2")
 UNIT_KEYS = ("absorption", "max_count", "whole", "cost_each", "area_each")
-CANDIDATE_KEYS = ("name", "surface", "material", "alpha", "absorption", "max_area", "step",
-                  "cost_per_m2", "cost_per_ft2", "max_count", "whole", "cost_each", "area_each")
+CANDIDATE_KEYS = ("name", "surface", "walls", "material", "alpha", "absorption", "max_area",
+                  "step", "panel", "cost_per_m2", "cost_per_ft2", "max_count", "whole", "cost_each", "area_each",
+                  "applied")
+#: The faces of a box that a candidate with ``walls = true`` covers.
+WALL_FACES = ("front", "back", "left", "right")
 #: Largest alpha of a cover candidate: as for a surface, the catalogue's largest (test reports to
 #: ISO 354 give values a little above 1; the logarithmic formulas cap alpha at 0.99).
 CANDIDATE_ALPHA_MAX = ALPHA_MAX
@@ -111,6 +115,7 @@ class SourceSpec(AsRead):
     sound_power: list[float] | None = None
     sound_power_dba: float | None = None
     spectrum: str | None = None
+    level_dba_1m: float | None = None       # A-weighted level at 1 m (with spectrum)
     directivity: float | None = None
     placement: str | None = None
     position: list[float] | None = None
@@ -177,26 +182,48 @@ class TargetSpec(AsRead):
 
 @dataclass
 class CandidateSpec(AsRead):
-    """One [[candidates]] entry as written (file units). With ``surface`` it covers part of that
-    surface; without, it is added as units."""
+    """One [[candidates]] entry as written (file units). With ``surface`` (one name or a list)
+    or ``walls`` it covers part of those surfaces; without, it is added as units. ``applied``:
+    built into the room already (a plan applied it), so a plan leaves it out."""
 
     name: str
-    surface: str | None = None
+    surface: str | list[str] | None = None  # cover: one surface's name, or a list of names
+    walls: bool | None = None               # cover: True = every surface on a wall face
     material: str | None = None
     alpha: list[float] | None = None        # cover
     absorption: list[float] | None = None   # units: area per unit per band (m^2 or ft^2)
     max_area: float | None = None           # cover, m^2 or ft^2; None = the whole surface
     step: float | None = None               # cover, m^2 or ft^2 per panel
+    panel: list[float] | None = None        # cover, one panel's [width, height], m or ft
     cost_per_m2: float | None = None        # cover, metric files
     cost_per_ft2: float | None = None       # cover, imperial files
     max_count: float | None = None          # units; None = no limit
     whole: bool | None = None               # units; None = whole units
     cost_each: float | None = None          # units
     area_each: float | None = None          # units, m^2 or ft^2 each
+    applied: bool | None = None             # True: already built into the room (not planned)
 
     @property
     def covers(self) -> bool:
-        return self.surface is not None
+        return self.surface is not None or bool(self.walls)
+
+    @property
+    def panel_area(self) -> float | None:
+        """The area of one panel (file units): ``step``, else ``panel`` width x height;
+        None: any area."""
+        if self.step is not None:
+            return self.step
+        return self.panel[0] * self.panel[1] if self.panel else None
+
+    def surface_names(self, spec: "RoomSpec") -> list[str]:
+        """The names of the surfaces this candidate covers (empty for units): ``surface`` as a
+        list, or with ``walls`` every surface whose face is a wall (front, back, left, right),
+        in the room's order."""
+        if self.walls:
+            return [s.name for s in spec.surfaces if s.face in WALL_FACES]
+        if self.surface is None:
+            return []
+        return [self.surface] if isinstance(self.surface, str) else list(self.surface)
 
     @property
     def area_cost(self) -> float | None:

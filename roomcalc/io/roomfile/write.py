@@ -71,7 +71,8 @@ def spec_fields_dict(spec: RoomSpec) -> dict:
                         for o in spec.objects]
     if spec.sources:
         d["sources"] = [_clean({"name": s.name, "sound_power": s.sound_power,
-                                "sound_power_dba": s.sound_power_dba, "spectrum": s.spectrum,
+                                "sound_power_dba": s.sound_power_dba,
+                                "level_dba_1m": s.level_dba_1m, "spectrum": s.spectrum,
                                 "directivity": s.directivity, "placement": s.placement,
                                 "position": s.position}) for s in spec.sources]
     if spec.receivers:
@@ -106,6 +107,7 @@ def _planning(spec: RoomSpec, d: dict) -> None:
 def _candidate_out(c) -> dict:
     d = {k: _limit_out(getattr(c, k)) for k in CANDIDATE_KEYS}
     d["max_count"] = _whole(c.max_count)
+    d["applied"] = True if c.applied else None      # false is the default: left out
     return _clean(d)
 
 

@@ -8,10 +8,15 @@ from __future__ import annotations
 
 from textual.widgets import TabbedContent
 
+from roomcalc.present.places import TABLE_TITLES, place_on_screen
 from roomcalc.study.edits import change_bands, convert_units, set_item_fields, set_method
 from roomcalc.tui.messages import FieldEdited, MaterialWanted, RowAction
 from roomcalc.tui.widgets.record_table import RecordTable
 from roomcalc.tui.widgets.room_form import Unparsed
+
+
+#: The tables whose rows have a material (``m`` opens the chooser for them).
+MATERIAL_TABLES = ("surfaces", "objects", "candidates")
 
 
 class EditRoutes:
@@ -88,17 +93,51 @@ class EditRoutes:
         self._choose_material(msg.collection, msg.index)
 
     def action_material(self) -> None:
+        """``m``: choose the material of the highlighted row of the table shown on the left
+        (Surfaces, Objects or Treatments), or a typical source (Sources); the chooser names
+        the row it will change."""
         tab = self.query_one("#edit", TabbedContent).active
-        if tab in ("surfaces", "objects"):
-            i = self.query_one(f"#t-{tab}", RecordTable).current_row
-            if i is not None:
-                self._choose_material(tab, i)
+        if tab == "sources":
+            i = self.query_one("#t-sources", RecordTable).current_row
+            if i is None:
+                self.notify("Sources has no rows yet: a adds one.", timeout=6)
+            else:
+                self._choose_source(i)
+            return
+        if tab not in MATERIAL_TABLES:
+            self.notify("m chooses the material of a row of Surfaces, Objects or Treatments, "
+                        "or a typical source on Sources: show one of those tables first.",
+                        timeout=6)
+            return
+        i = self.query_one(f"#t-{tab}", RecordTable).current_row
+        if i is None:
+            self.notify(f"{TABLE_TITLES[tab]} has no rows yet: a adds one.", timeout=6)
+            return
+        self._choose_material(tab, i)
+
+    def _choose_source(self, i: int) -> None:
+        """The typical sources, for row ``i`` of the Sources table."""
+        from roomcalc.io.sources import typical_sources
+        from roomcalc.present.places import place_on_screen
+        from roomcalc.study.edits import use_typical_source
+        from roomcalc.tui.screens.sources import SourceChooser
+
+        known = typical_sources()
+        rec = self.document.items("sources")[i]
+
+        def done(choice) -> None:
+            if choice is not None:
+                self.apply(lambda spec: use_typical_source(spec, i, known[choice]),
+                           f"source '{rec.name}': {known[choice].name}")
+        self.app.push_screen(SourceChooser(list(known.values()), self.document.spec.bands,
+                                           place_on_screen(f"sources[{i}]",
+                                                           self.document.spec)), done)
 
     def _choose_material(self, coll: str, i: int) -> None:
         from roomcalc.tui.screens.materials import MaterialChooser
 
         rec = self.document.items(coll)[i]
-        surface_like = coll == "surfaces" or (coll == "candidates" and rec.surface)
+        surface_like = coll == "surfaces" or (coll == "candidates" and rec.covers)
         kind = "surface" if surface_like else "object"
         own = rec.alpha if surface_like else rec.absorption
         cat = self.catalog.with_materials(self.document.spec.materials) \
@@ -119,8 +158,9 @@ class EditRoutes:
                 for k, v in values.items():
                     setattr(item, k, v)
             self.apply(fn, f"{coll[:-1]} '{rec.name}': material")
+        row = place_on_screen(f"{coll}[{i}]", self.document.spec)
         self.app.push_screen(MaterialChooser(cat, kind, self.document.spec.bands, rec.material,
-                                             own), done)
+                                             own, changes=row), done)
 
     # ------------------------------------------------------------------ undo and redo
     def action_undo(self) -> None:

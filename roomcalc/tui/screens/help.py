@@ -17,7 +17,9 @@ Escape closes it.
 | Key | What it does |
 |---|---|
 | Tab / Shift+Tab | move between panels |
-| 1 to 6 | the Room, Surfaces, Objects, Sources, Receivers, Treatments tabs |
+| 1 to 6 | the Room, Surfaces, Objects, Sources, Receivers, Treatments tabs (when the focus is not in a field) |
+| Escape in a field | leave the field for its tab bar, where 1 to 6 and the other one-key shortcuts work |
+| Down on a tab bar | go into the tab |
 | F5 to F9 | the result tabs: reverberation, level vs distance, receivers, before/after, plan |
 | Enter or click on a cell | edit it (a material cell opens the material chooser) |
 | Enter / Escape in the editor line | apply / cancel |
@@ -25,7 +27,7 @@ Escape closes it.
 | c | copy (duplicate) the highlighted row |
 | Delete or x | delete the highlighted row |
 | Ctrl+Up / Ctrl+Down (or K / J) | move the row up / down |
-| m | choose a material for the highlighted surface or object |
+| m | choose a material for the highlighted surface, object or treatment; on the Sources tab, a typical source (a voice, a machine, an amplifier) with its level at 1 m and spectrum (the chooser names the row it changes) |
 | p | pin the room as it is now as "before"; the before/after tab compares with it |
 | b | change the reverberant model: diffuse field (4/R) or Barron & Lee |
 | r / Space (in the plan tab) | make the plan / tick a treatment in or out |
@@ -34,6 +36,7 @@ Escape closes it.
 | Ctrl+S / F2 | save / save as |
 | Ctrl+O / Ctrl+N | open / new room |
 | Ctrl+P | the command palette: every action by name |
+| Ctrl+E (or a click on the strip at the bottom) | show every error, warning and caution in full, or fold them again |
 | F1 or ? | this help |
 | Ctrl+Q | quit (asks first when there are unsaved changes) |
 
@@ -51,17 +54,26 @@ kept from before").
   Millington-Sette (per-surface logarithms), Fitzroy and Arau-Puchades (per box axis; these need
   every surface's face). `>` marks the one used, with the reason in the report; the air term
   4mV follows ISO 9613-1.
-- **Room constant R**: `R = S abar / (1 - abar)`, abar with air; the bigger, the deader the room.
+- **room constant R**: `R = S abar / (1 - abar)`, abar with air; the bigger, the deader the room.
+- **mean alpha** (mean absorption coefficient): abar, the share of sound the surfaces and the
+  air absorb at each reflection, from 0 (all reflected) to 1 (all absorbed).
+- **air** (air absorption) [dB/km]: what the air itself absorbs, by ISO 9613-1; it matters in
+  large rooms at high frequencies.
 - **r_c** (critical distance): `sqrt(Q R / 16 pi)`, where direct and reverberant sound are
   equally loud. Closer than r_c the source itself dominates and absorption helps little.
-- **Lp**: sound pressure level, `Lw + 10 lg(Q / (4 pi r^2) + 4 / R)`, direct and reverberant
+- **Lw, LwA** (sound power, A-weighted sound power): what a source puts out, whatever the
+  room; a source may instead be given by its level in dB(A) at 1 m (see the Sources tab).
+- **Q** (directivity): how much a source favours the listeners' side: 1 in free space, 2 on
+  a surface (floor or wall), 4 at an edge, 8 in a corner.
+- **Lp** (sound level): sound pressure level, `Lw + 10 lg(Q / (4 pi r^2) + 4 / R)`, direct and reverberant
   parts shown; dB(A) with IEC 61672-1 weights.
-- **Schroeder f_S**: `2000 sqrt(T / V)`; below it room modes dominate and these figures are rough.
+- **f_S** (Schroeder frequency): `2000 sqrt(T / V)`; below it room modes dominate and these figures are rough.
 - **NRC, SAA~, alpha_w**: single-number ratings of a material (ASTM C423, ISO 11654).
-- **Plan** (F9): the cheapest (or smallest) set of treatments from tab 6 that brings RT60 per
+- **Plan** (F9): the cheapest (or smallest) set of treatments from the Treatments tab (key 6) that brings RT60 per
   band into the target window (a criterion such as DIN 18041 or ANSI S12.60, or the room file's
   own limits) and levels at receivers under their limits, by linear programming (whole units and
-  panels by mixed-integer programming). "Apply to the room" makes it one undoable edit. The plan
+  panels by mixed-integer programming). "Apply to the room" makes it one undoable edit; the
+  treatments it used stay in tab 6 marked Applied, and the next plan leaves them out. The plan
   is made in the background: the tab shows the step (building, solving, cutting plane k of at
   most N, checking the treated room) and the time so far; a plan made for a room that has been
   edited since is not shown as the room's and cannot be applied: press r again.

@@ -17,7 +17,7 @@ from textual.containers import Horizontal, Vertical
 from textual.reactive import reactive
 from textual.css.query import NoMatches
 from textual.screen import Screen
-from textual.widgets import Static, TabbedContent, TabPane
+from textual.widgets import Input, Select, Static, TabbedContent, TabPane
 
 from roomcalc.engine.analysis import RoomResult
 from roomcalc.io.catalog import Catalog
@@ -65,6 +65,7 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
         Binding("m", "material", "Material", show=False, id="main.material"),
         Binding("b", "toggle_model", "Reverb model", show=False, id="main.model"),
         Binding("f1,question_mark", "app.help", "Help", id="main.help"),
+        Binding("ctrl+e", "findings", "All findings", show=False, id="main.findings"),
         Binding("1", "edit_tab('room')", "Room", show=False, id="main.tab.room"),
         Binding("2", "edit_tab('surfaces')", "Surfaces", show=False, id="main.tab.surfaces"),
         Binding("3", "edit_tab('objects')", "Objects", show=False, id="main.tab.objects"),
@@ -78,6 +79,10 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
         Binding("f8", "view_tab('v-compare')", "Before/after", show=False,
                 id="main.view.compare"),
         Binding("f9", "view_tab('v-plan')", "Plan", show=False, id="main.view.plan"),
+        # Typing in a field types; Escape leaves the field for its tab bar, where the one-key
+        # shortcuts work again, and Down goes from a tab bar into its tab.
+        Binding("escape", "leave_field", "Leave the field", id="main.leave_field"),
+        Binding("down", "enter_tab", "Into the tab", show=False, id="main.enter_tab"),
     ]
 
     # repaint=False: a reactive on the screen would otherwise repaint the whole screen on each
@@ -154,11 +159,31 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
     def on_resize(self, event) -> None:
         self._layout_for(event.size.width)
 
+    def on_descendant_focus(self, event) -> None:
+        # On a small screen (one column) the half the user works in gets more of the height:
+        # the Plan tab's controls and list do not fit a quarter of 80x24.
+        right = self._opt("#right")
+        if right is not None:
+            _toggle(self.query_one("#body"), right in event.widget.ancestors_with_self,
+                    "right-focus")
+
     def on_unmount(self) -> None:
         self.stop_plan(None, notify=False)    # closing: the planner stops at its next step
 
     def _layout_for(self, width: int) -> None:
-        _toggle(self, width < 110, "narrow")
+        narrow = width < 110
+        _toggle(self, narrow, "narrow")
+        # The room's six tabs with their digits need about 70 columns: side by side, a
+        # narrower left half shows the titles alone (1-6 still switch; the help says so), so
+        # that the sixth, Treatments, is not hidden off the edge.
+        digits = narrow or width * 0.45 >= 70
+        if digits != getattr(self, "_tab_digits", None) and self._opt("#edit") is not None:
+            self._tab_digits = digits
+            edit = self.query_one("#edit", TabbedContent)
+            edit.set_class(not digits, "short-tabs")
+            for n, coll in enumerate(EDIT_TABS, 1):
+                title = TAB_TITLES.get(coll, coll.capitalize())
+                edit.get_tab(coll).label = f"{n} {title}" if digits else title
 
 
     # ------------------------------------------------------------------ tables and title
@@ -257,6 +282,10 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
         if self.answer is None or self.answer.result is not self.result:
             self.answer = self._study.answer(result=self.result)
         return self.answer
+
+    def action_findings(self) -> None:
+        """Unfold the strip of errors, warnings and cautions (every item in full), or fold it."""
+        self.query_one(FindingsStrip).toggle()
 
     def watch_result(self, result: RoomResult | None) -> None:
         self._show(result)
@@ -431,9 +460,37 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
         self.recompute()
 
     def action_edit_tab(self, tab: str) -> None:
-        self.query_one("#edit", TabbedContent).active = tab
+        edit = self.query_one("#edit", TabbedContent)
+        edit.active = tab
         if tab != "room":   # the table of the new tab takes the keys (the old one is hidden)
             self.call_after_refresh(self.query_one(f"#t-{tab} #table").focus)
+        else:               # its tab bar: a digit typed next switches tabs, not into a field
+            self.call_after_refresh(edit.query_one("ContentTabs").focus)
+
+    def _field_focused(self):
+        """The focused text field or drop-down of this screen (None when the focus is on a
+        table, a tab bar or a button)."""
+        focused = self.focused
+        return focused if isinstance(focused, (Input, Select)) else None
+
+    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
+        if action == "leave_field":
+            return self._field_focused() is not None
+        if action == "enter_tab":
+            return self.focused is not None and type(self.focused).__name__ == "ContentTabs"
+        return True
+
+    def action_leave_field(self) -> None:
+        """Escape in a field: the focus goes to the bar of the tabs the field is in."""
+        field = self._field_focused()
+        tabs = next((a for a in field.ancestors if isinstance(a, TabbedContent)), None) \
+            if field is not None else None
+        if tabs is not None:
+            tabs.query_one("ContentTabs").focus()
+
+    def action_enter_tab(self) -> None:
+        """Down on a tab bar: the focus goes to the first thing in the tab shown."""
+        self.focus_next()
 
     def action_view_tab(self, tab: str) -> None:
         view = self.query_one("#view", TabbedContent)

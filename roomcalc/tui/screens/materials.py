@@ -9,7 +9,7 @@ from textual.screen import ModalScreen
 from textual.widgets import Button, Input, Select, Static
 
 from roomcalc.io.catalog import Catalog, Material
-from roomcalc.present.materials import no_match_text
+from roomcalc.present.materials import no_match_text, source_sentence
 from roomcalc.study.typed import parse_numbers
 from roomcalc.tui.widgets.grid import CellGrid
 
@@ -27,7 +27,7 @@ def material_details(m: Material, bands) -> str:
     if r:
         lines += ["", f"NRC {r[0]:.2f}   SAA~ {r[1]:.2f} (octave estimate)   "
                       f"alpha_w {r[2].label()}  class {r[2].absorption_class}"]
-    lines += ["", f"source: {m.source}"]
+    lines += ["", f"values: {source_sentence(m)}"]
     if m.notes:
         lines.append(f"notes: {m.notes}")
     return "\n".join(lines)
@@ -41,6 +41,8 @@ class MaterialChooser(ModalScreen[tuple | None]):
     MaterialChooser { align: center middle; }
     MaterialChooser > Vertical { width: 96%; height: 94%; border: thick $primary;
                                  background: $surface; padding: 0 1; }
+    MaterialChooser #title { text-style: bold; }
+    MaterialChooser #hint { color: $text-muted; }
     MaterialChooser #search-row { height: auto; }
     MaterialChooser #words { width: 1fr; }
     MaterialChooser #category { width: 30; }
@@ -48,7 +50,7 @@ class MaterialChooser(ModalScreen[tuple | None]):
     MaterialChooser #list { width: 3fr; }
     MaterialChooser #details { width: 2fr; padding: 0 1; border-left: solid $primary; }
     MaterialChooser #own-row { height: auto; }
-    MaterialChooser #own-row Static { width: auto; padding: 1 0 0 0; }
+    MaterialChooser #own-label { height: auto; padding: 1 0 0 0; }
     MaterialChooser #own { width: 1fr; }
     MaterialChooser #own-error { color: $error; height: auto; }
     """
@@ -56,8 +58,11 @@ class MaterialChooser(ModalScreen[tuple | None]):
                 Binding("ctrl+f", "focus_search", "Search", id="chooser.search")]
 
     def __init__(self, catalog: Catalog, kind: str, bands, current: str | None = None,
-                 current_values: list | None = None) -> None:
+                 current_values: list | None = None, changes: str = "") -> None:
+        """``changes``: the row the choice will change, as the screen names it
+        (``Surfaces row 1 "Floor"``), shown in the title."""
         super().__init__()
+        self.changes = changes
         self.catalog, self.kind, self.bands = catalog, kind, tuple(bands)
         self.current, self.current_values = current, current_values
         self._shown: list[Material] = []
@@ -65,9 +70,11 @@ class MaterialChooser(ModalScreen[tuple | None]):
 
     def compose(self) -> ComposeResult:
         with Vertical():
-            yield Static(f"Choose a {'surface material' if self.kind == 'surface' else 'kind of object'}"
-                         " - type words to search; Enter picks the highlighted row",
-                         id="title")
+            what = "surface material" if self.kind == "surface" else "kind of object"
+            target = f" for {self.changes}" if self.changes else ""
+            yield Static(f"Choose a {what}{target}", id="title", markup=False)
+            yield Static("Type words to search; Enter picks the highlighted row; Esc leaves "
+                         "it as it was", id="hint")
             with Horizontal(id="search-row"):
                 yield Input(placeholder="search: words of the name, e.g. wool 50", id="words")
                 cats = sorted({m.category for m in self.catalog.materials.values()
@@ -78,8 +85,11 @@ class MaterialChooser(ModalScreen[tuple | None]):
                                id="list")
                 yield Static("", id="details", markup=False)
             unit = "alpha per band" if self.kind == "surface" else "m^2 per unit per band"
+            # The words on a line of their own, so that the field and its button keep their
+            # room on a narrow screen.
+            yield Static(f"Or your own {unit} ({', '.join(map(str, self.bands))} Hz):",
+                         id="own-label")
             with Horizontal(id="own-row"):
-                yield Static(f"Or your own {unit} ({', '.join(map(str, self.bands))} Hz): ")
                 yield Input(" ".join(f"{x:g}" for x in (self.current_values or [])),
                             placeholder="0.10 0.25 0.60 0.85 0.90 0.90", id="own")
                 yield Button("Use these", id="use-own")
@@ -87,13 +97,15 @@ class MaterialChooser(ModalScreen[tuple | None]):
 
     def on_mount(self) -> None:
         table = self.query_one("#list", CellGrid)
-        table.add_column("id", key="id")
-        table.add_column("name", key="name")
+        # The name first, cut to fit before the ratings are (the id is in the details).
+        table.add_column("name", key="name", shrink_to=16)
         if self.kind == "surface":
             table.add_column("NRC", key="nrc", justify="right")
             table.add_column("alpha_w", key="aw")
         else:
             table.add_column("500 Hz m^2", key="v500", justify="right")
+        table.add_column("id", key="id")
+        table.keep_in_view = len(table.columns) - 1
         self._fill()
         self.query_one("#words", Input).focus()
 
@@ -115,9 +127,9 @@ class MaterialChooser(ModalScreen[tuple | None]):
         if row is None:
             if self.kind == "surface":
                 nrc, _saa, aw = m.ratings()
-                row = [m.id, m.name, f"{nrc:.2f}", f"{aw.label()} {aw.absorption_class}"]
+                row = [m.name, f"{nrc:.2f}", f"{aw.label()} {aw.absorption_class}", m.id]
             else:
-                row = [m.id, m.name, f"{m.values.get(500, 0):.2f}"]
+                row = [m.name, f"{m.values.get(500, 0):.2f}", m.id]
             self._rows[m.id] = row
         return row
 

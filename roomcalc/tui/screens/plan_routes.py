@@ -250,7 +250,7 @@ class PlanRoutes:
             run = event.worker.result
             self._plan_run, self._plan_version = run, job.version
             u = self.document.spec.unit_system
-            view.show_run(run, sections.plan_totals_text(run, u), u.area, u.area_label)
+            view.show_run(run, sections.plan_totals_text(run, u), u.area, u.area_label, u)
             if self.query_one("#view").active != "v-plan":
                 self._say("The plan is ready: F9 shows it.")
 

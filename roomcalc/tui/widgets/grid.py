@@ -39,6 +39,14 @@ class GridColumn:
     width: int | None = None            # fixed content width; None = as wide as the widest cell
     justify: str = "left"               # or "right"
     content_width: int = 0              # the width used now
+    shrink_to: int | None = None        # text that may be cut (with an ellipsis) to this width
+    #                                     so that the grid's first columns fit its view
+    pad: tuple[int, int] = (PAD, PAD)   # blank columns left and right of the cell
+
+    @property
+    def outer_width(self) -> int:
+        """The columns the cell takes on screen, its blanks included."""
+        return self.content_width + self.pad[0] + self.pad[1]
 
 
 class CellGrid(ScrollView, can_focus=True):
@@ -134,12 +142,21 @@ class CellGrid(ScrollView, can_focus=True):
         self._styles: dict[str, Style] = {}
         self._parsed: dict[str, Style] = {}
         self._label_width = 0
+        # How many leading columns must fit the view without scrolling sideways: columns with
+        # a ``shrink_to`` among them are cut to make room (names, never numbers).
+        self.keep_in_view = 0
+        # Rows with a first cell only are headings whose text runs on over the empty cells.
+        self.headings = False
 
     # ------------------------------------------------------------------ columns and rows
     def add_column(self, label: str, *, key: str | None = None, width: int | None = None,
-                   justify: str = "left") -> str:
+                   justify: str = "left", shrink_to: int | None = None,
+                   pad: tuple[int, int] = (PAD, PAD)) -> str:
+        """A column; ``pad`` = blanks left and right of its cells ((1, 0) packs columns of
+        right-aligned numbers one blank apart)."""
         key = key if key is not None else str(len(self.columns))
-        self.columns[key] = GridColumn(key, str(label), width, justify)
+        self.columns[key] = GridColumn(key, str(label), width, justify, shrink_to=shrink_to,
+                                       pad=pad)
         self._cache.clear()
         self._widths.clear()
         self._changed()
@@ -265,7 +282,7 @@ class CellGrid(ScrollView, can_focus=True):
     def _column_span(self, index: int) -> tuple[int, int]:
         x = self._label_width
         for i, col in enumerate(self.columns.values()):
-            w = col.content_width + 2 * PAD
+            w = col.outer_width
             if i == index:
                 return x, x + w
             x += w
@@ -332,7 +349,11 @@ class CellGrid(ScrollView, can_focus=True):
         measured = [self._widths.get(v) for v in self._versions]
         for i, m in enumerate(measured):
             if m is None:
-                m = self._widths[self._versions[i]] = tuple(cell_len(c) for c in self._rows[i])
+                row = self._rows[i]
+                # A heading row's label runs on over its empty cells: it widens no column.
+                m = (0,) * len(row) if self.headings and len(row) > 1 and not any(row[1:]) \
+                    else tuple(cell_len(c) for c in row)
+                self._widths[self._versions[i]] = m
                 measured[i] = m
         widths = []
         for j, col in enumerate(self.columns.values()):
@@ -350,6 +371,7 @@ class CellGrid(ScrollView, can_focus=True):
             widths.append(w)
         label_w = (max((cell_len(x) for x in self._labels), default=0) + 2 * PAD
                    if self.show_row_labels and any(self._labels) else 0)
+        self._fit(widths, label_w)
         if widths != [c.content_width for c in self.columns.values()] \
                 or label_w != self._label_width:
             for col, w in zip(self.columns.values(), widths):
@@ -359,7 +381,7 @@ class CellGrid(ScrollView, can_focus=True):
         if self.row_count:
             self._cursor = Coordinate(min(self._cursor.row, self.row_count - 1),
                                       min(self._cursor.column, max(0, len(self.columns) - 1)))
-        width = self._label_width + sum(c.content_width + 2 * PAD for c in self.columns.values())
+        width = self._label_width + sum(c.outer_width for c in self.columns.values())
         size = Size(width, self.row_count + 1)
         if size != self.virtual_size:
             old = self.virtual_size
@@ -377,6 +399,28 @@ class CellGrid(ScrollView, can_focus=True):
                 if self.is_mounted and self.container_size:
                     self._scroll_update(size)   # the scrollbars now, in the same frame
         self.refresh()
+
+    def _fit(self, widths: list[int], label_w: int) -> None:
+        """Narrow the cuttable columns among the first ``keep_in_view`` (the widest first, to
+        their ``shrink_to``) until those columns fit the view; the rest scroll sideways."""
+        view = self.size.width - (self.scrollbar_size_vertical if self.is_mounted else 0)
+        k = min(self.keep_in_view, len(widths))
+        if not k or view <= 0:
+            return
+        cols = list(self.columns.values())
+        excess = label_w + sum(widths[:k]) + sum(sum(c.pad) for c in cols[:k]) - view
+        while excess > 0:
+            cuttable = [j for j in range(k) if cols[j].shrink_to is not None
+                        and widths[j] > cols[j].shrink_to]
+            if not cuttable:
+                return
+            j = max(cuttable, key=lambda i: widths[i])
+            widths[j] -= 1
+            excess -= 1
+
+    def on_resize(self, event: events.Resize) -> None:
+        if self.keep_in_view:
+            self._changed()
 
     def _move_thumbs(self, size: Size) -> None:
         """Tell the scrollbars the new scrolled size; each redraws only if its own numbers
@@ -445,16 +489,24 @@ class CellGrid(ScrollView, can_focus=True):
         pieces: list[tuple[str, Style]] = []
         cursor_style = self._style("cell-grid--cursor")
         own = self._parse(row_style)
+        cols = list(self.columns.values())
+        if self.headings and len(cols) > 1 and cells \
+                and cell_len(cells[0]) > cols[0].content_width and not any(cells[1:]):
+            # A heading row (a label, no other cells): its label runs on over the empty cells.
+            w = sum(c.outer_width for c in cols) - cols[0].pad[0] - cols[-1].pad[1]
+            text = cells[0] if cell_len(cells[0]) <= w else cells[0][:max(0, w - 1)] + "\u2026"
+            style = own + cursor_style if cursor is not None else own
+            return [(" " * cols[0].pad[0] + text.ljust(w) + " " * cols[-1].pad[1], style)]
         for j, col in enumerate(self.columns.values()):
             text = cells[j] if j < len(cells) else ""
             w = col.content_width
             n = cell_len(text)
             if n > w:
-                text = text[:max(0, w - 1)] + "~" if w > 1 else text[:w]
+                text = text[:max(0, w - 1)] + "\u2026" if w > 1 else text[:w]
                 n = cell_len(text)
             text = " " * (w - n) + text if col.justify == "right" else text + " " * (w - n)
             style = own + cursor_style if cursor is not None and cursor in (j, -1) else own
-            pieces.append((" " * PAD + text + " " * PAD, style))
+            pieces.append((" " * col.pad[0] + text + " " * col.pad[1], style))
         return pieces
 
     def _row_segments(self, index: int, base: Style) -> tuple[list[Segment], int]:

@@ -14,7 +14,8 @@ from textual.message import Message
 from textual.widgets import Button, Input, Select, Static
 
 from roomcalc.engine.analysis import METHOD_TITLES, METHODS
-from roomcalc.present.sections import plan_levels
+from roomcalc.io.units import METRIC
+from roomcalc.present.sections import amount_text, applied_text, plan_levels
 from roomcalc.tui.widgets.grid import CellGrid
 from roomcalc.tui.widgets.results import BandTable
 from roomcalc.tui.widgets.room_form import RECOMMENDED
@@ -39,8 +40,10 @@ class PlanRtTable(BandTable):
         self._flush()
 
 
-class PlanView(VerticalScroll):
-    """Criterion, method and objective; the candidates with a tick each; the plan."""
+class PlanView(VerticalScroll, can_focus=False):
+    """Criterion, method and objective; the candidates with a tick each; the plan. The view
+    itself takes no focus (its fields, list and buttons do: a focus stop must show where it
+    is); its keys work wherever the focus is inside it."""
 
     DEFAULT_CSS = """
     PlanView { height: 1fr; }
@@ -49,7 +52,9 @@ class PlanView(VerticalScroll):
     PlanView #plan-controls-2 Select { width: 1fr; }
     PlanView #plan-controls-2 Button { width: auto; min-width: 8; margin: 0 1; }
     PlanView #plan-head, PlanView #plan-result { height: auto; padding: 0 1; }
-    PlanView #plan-own { margin: 0 1; }
+    PlanView #plan-own-row { height: 1; margin: 0 1; }
+    PlanView #plan-own-label { width: auto; color: $text-muted; }
+    PlanView #plan-own { width: 1fr; background: $boost; }
     PlanView #plan-own-error { height: auto; color: $error; padding: 0 1; display: none; }
     PlanView #plan-check { height: auto; max-height: 12; padding: 0 1; color: $text-muted; }
     PlanView #plan-candidates { height: auto; max-height: 8; }
@@ -61,6 +66,7 @@ class PlanView(VerticalScroll):
         Binding("space", "toggle", "Use or not", id="plan.toggle"),
         Binding("r", "run", "Plan", id="plan.run"),
         Binding("escape", "stop", "Stop the plan", id="plan.stop"),
+        Binding("a", "apply", "Apply the plan", id="plan.apply"),
     ]
 
     class Run(Message):
@@ -94,8 +100,11 @@ class PlanView(VerticalScroll):
         yield Static("", id="plan-head", markup=False)
         with Horizontal(id="plan-controls"):
             yield Select([("No RT target", NONE)], id="plan-criterion", allow_blank=False)
-        yield Input(placeholder="or your own RT60 limit [s]: one value, or one per band",
-                    id="plan-own", compact=True)
+        # A field that looks like one (a compact field alone read as a line of text).
+        with Horizontal(id="plan-own-row"):
+            yield Static("or your own RT60 limit [s] ", id="plan-own-label", markup=False)
+            yield Input(placeholder="one value, or one per band; Enter", id="plan-own",
+                        compact=True)
         yield Static("", id="plan-own-error", markup=False)
         with Horizontal(id="plan-controls-2"):
             yield Select([("recommended formula", RECOMMENDED)] +
@@ -106,7 +115,7 @@ class PlanView(VerticalScroll):
                          id="plan-objective", allow_blank=False)
             yield Button("Plan (r)", id="plan-run", variant="primary")
             yield Button("Stop (Esc)", id="plan-stop", variant="warning", disabled=True)
-            yield Button("Apply", id="plan-apply", disabled=True)
+            yield Button("Apply (a)", id="plan-apply", disabled=True)
         yield CellGrid(cursor_type="row", zebra_stripes=True, show_row_labels=False,
                        id="plan-candidates")
         yield Static("", id="plan-result", markup=False)
@@ -121,11 +130,15 @@ class PlanView(VerticalScroll):
         for key, label, just in (("use", "use", "left"), ("name", "candidate", "left"),
                                  ("where", "where", "left"), ("max", "up to", "right"),
                                  ("cost", "cost", "right")):
-            g.add_column(label, key=key, justify=just)
+            g.add_column(label, key=key, justify=just,
+                         shrink_to=10 if key in ("name", "where") else None)
+        g.keep_in_view = len(g.columns)        # names are cut so that the cost shows
         items = self.query_one("#plan-items", CellGrid)
         for key, label, just in (("what", "plan", "left"), ("where", "where", "left"),
                                  ("amount", "how much", "right"), ("cost", "cost", "right")):
-            items.add_column(label, key=key, justify=just)
+            items.add_column(label, key=key, justify=just,
+                             shrink_to=10 if key in ("what", "where") else None)
+        items.keep_in_view = len(items.columns)
         items.display = False
         self.query_one("#plan-rt").display = False
         self.query_one("#plan-stop").display = False     # shown while a plan is being made
@@ -171,32 +184,34 @@ class PlanView(VerticalScroll):
         levels = ", ".join(f"{k} <= {v:g} dB(A)" for k, v in (t.max_level_dba if t else {}).items())
         self.query_one("#plan-head", Static).update(
             "What the room must reach, and the cheapest treatment to get there. The "
-            "treatments are edited in tab 6; Space ticks one in or out, r plans, "
+            "treatments are edited in the Treatments tab (key 6); Space ticks one in or out, r plans, "
             "Escape stops a plan being made."
             + (f"\nLevel goals: {levels}" if levels else ""))
         rows, self._names = [], []
         cur = f" {t.currency}" if t is not None and t.currency else ""
         for c in spec.candidates:
             self._names.append(c.name)
-            if c.surface:
-                where = c.surface
-                most = "whole surface" if c.max_area is None else f"{c.max_area:g} {area_label}"
+            if c.covers:
+                where = "every wall" if c.walls else ", ".join(c.surface_names(spec))
+                whole = "whole surface" if len(c.surface_names(spec)) == 1 else "all of them"
+                most = whole if c.max_area is None else f"{c.max_area:g} {area_label}"
                 cost = "-" if c.area_cost is None else f"{c.area_cost:g}{cur}/{area_label}"
             else:
                 where = "added units"
                 most = "any number" if c.max_count is None else f"{c.max_count:g}"
                 cost = "-" if c.cost_each is None else f"{c.cost_each:g}{cur} each"
-            rows.append(["[ ]" if c.name in self.disabled_names else "[x]", c.name, where, most,
-                         cost])
+            use = ("applied" if c.applied else
+                   "[ ]" if c.name in self.disabled_names else "[x]")
+            rows.append([use, c.name, where, most, cost])
         self.query_one("#plan-candidates", CellGrid).set_rows(rows, keys=self._names)
 
     def show_check(self, text: str) -> None:
         """The room as it is now against its target (the report's target section)."""
         self.query_one("#plan-check", Static).update(text.rstrip())
 
-    def show_run(self, run, totals: str, area, area_label: str) -> None:
+    def show_run(self, run, totals: str, area, area_label: str, units=METRIC) -> None:
         """A plan (a PlanRun of roomcalc.study) with its totals in words ("48.62 m^2 and 40
-        units")."""
+        units"); ``units``: the room file's (amounts and panel sizes are shown in them)."""
         p = run.plan
         cur = f" {run.currency}" if run.currency else ""
         head = ("The plan meets the target." if p.feasible
@@ -210,9 +225,8 @@ class PlanView(VerticalScroll):
                     else "No candidate helps.")
         self.query_one("#plan-result", Static).update(head)
         items = self.query_one("#plan-items", CellGrid)
-        items.set_rows([[it.candidate, it.surface or "added",
-                         f"{it.amount / area:.2f} {area_label}" if it.kind == "cover"
-                         else f"{it.amount:g} units", f"{it.cost:.2f}"] for it in p.items])
+        items.set_rows([[it.candidate, it.surface or "added", amount_text(run, it, units),
+                         f"{it.cost:.2f}"] for it in p.items])
         items.display = bool(p.items)
         rt = self.query_one("#plan-rt", PlanRtTable)
         lo, hi = run.goals.rt60_min, run.goals.rt60_max
@@ -220,8 +234,10 @@ class PlanView(VerticalScroll):
         rt.display = True
         lines = [f"{name}: {b:.1f} -> {a:.1f} dB(A)" for name, b, a in plan_levels(run)]
         lines += [f"! {r}" for r in p.reasons]
+        if run.applied:
+            lines.append(applied_text(run))
         self.query_one("#plan-reasons", Static).update("\n".join(lines))
-        self.query_one("#plan-apply", Button).disabled = not p.items
+        self._can_apply(bool(p.items))
         self.call_after_refresh(self.query_one("#plan-result").scroll_visible, animate=False)
 
     def show_message(self, text: str) -> None:
@@ -229,7 +245,7 @@ class PlanView(VerticalScroll):
         self.query_one("#plan-items").display = False
         self.query_one("#plan-rt").display = False
         self.query_one("#plan-reasons", Static).update("")
-        self.query_one("#plan-apply", Button).disabled = True
+        self._can_apply(False)
 
     def showing(self, text: str) -> bool:
         """The result line says ``text`` now."""
@@ -260,7 +276,7 @@ class PlanView(VerticalScroll):
         text = str(res.content)
         if text and not text.startswith("(The room changed"):
             res.update("(The room changed since this plan: press r to plan again.)\n" + text)
-            self.query_one("#plan-apply", Button).disabled = True
+            self._can_apply(False)
 
     # ------------------------------------------------------------------ upward
     def action_toggle(self) -> None:
@@ -268,21 +284,37 @@ class PlanView(VerticalScroll):
         if not g.row_count:
             return
         name = self._names[g.cursor_row]
+        row = g.get_row_at(g.cursor_row)
+        if row[0] == "applied":
+            # Built into the room already: the plan leaves it out whatever its tick.
+            self.notify(f"'{name}' is applied to the room already; set Applied to no in "
+                        "tab 6 to plan it again.")
+            return
         if name in self.disabled_names:
             self.disabled_names.discard(name)
         else:
             self.disabled_names.add(name)
-        row = g.get_row_at(g.cursor_row)
         row[0] = "[ ]" if name in self.disabled_names else "[x]"
         rows = [g.get_row_at(i) for i in range(g.row_count)]
         rows[g.cursor_row] = row
         g.set_rows(rows, keys=self._names)
 
     def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
+        if action == "apply":           # a applies a plan that is shown and can be applied
+            apply = self.query("#plan-apply")
+            return bool(apply) and not apply.first().disabled
         if action == "stop":            # Escape stops a plan; with none running it is left free
             stop = self.query("#plan-stop")
             return (bool(stop) and stop.first().display) or None
         return True
+
+    def _can_apply(self, can: bool) -> None:
+        """Enable Apply (its button and the key a) or not."""
+        self.query_one("#plan-apply", Button).disabled = not can
+        self.refresh_bindings()
+
+    def action_apply(self) -> None:
+        self.post_message(self.Apply())
 
     def action_stop(self) -> None:
         self.post_message(self.Stop())

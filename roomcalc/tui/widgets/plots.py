@@ -51,7 +51,8 @@ class DistancePlot(Chart):
         lo, hi = float(np.min(rv)) - 15.0, float(np.max(tot)) + 3.0
         xs = r.tolist()
         self.show_data(ChartData(
-            title=f"Level against distance, {what}" + ("  (stale)" if stale else ""),
+            title=f"Level against distance, {what}; r_c critical distance"
+                  + ("  (stale)" if stale else ""),
             series=[Series("total", xs, tot.tolist(), heavy=True),
                     Series("direct", xs, dr.tolist()),
                     Series("reverberant", xs, rv.tolist())],

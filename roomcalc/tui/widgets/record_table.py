@@ -26,7 +26,8 @@ from roomcalc.tui.widgets.grid import CellGrid
 class Column:
     """One column: the record attribute, its heading, and how to show, parse and edit it.
 
-    kind: text, number, int, choice, material, numbers (a list), position, distances.
+    kind: text, number, int, choice, material, numbers (a list), position, distances, names
+    (one name, or several separated by semicolons: a list), flag (yes / no: True or None).
     """
 
     key: str
@@ -41,13 +42,22 @@ class Column:
     extra: dict = field(default_factory=dict)
 
 
+#: The narrowest a column of text may be cut to (with an ellipsis) so that the table's
+#: leading columns fit its pane; other kinds (numbers) are never cut.
+SHRINK_TO = {"text": 8, "material": 10, "choice": 6}
+
+
 def fmt_value(v, kind: str) -> str:
+    if kind == "flag":
+        return "yes" if v else "no"
     if v is None:
         return ""
     if kind in ("numbers", "position"):
         return " ".join(f"{x:g}" for x in v)
     if kind == "distances":
         return ", ".join(f"{k}={x:g}" for k, x in v.items())
+    if kind == "names" and isinstance(v, list):
+        return "; ".join(v)
     if isinstance(v, float):
         return f"{v:g}"
     return str(v)
@@ -76,6 +86,18 @@ def parse_value(text: str, col: Column):
         raise ValueError(f"{col.label} cannot be empty")
     if col.kind == "text":
         return t
+    if col.kind == "names":
+        names = [n.strip() for n in t.split(";") if n.strip()]
+        if len(set(names)) < len(names):
+            raise ValueError("a name is given twice; give each once")
+        return names[0] if len(names) == 1 else names
+    if col.kind == "flag":
+        low = t.lower()
+        if low in ("yes", "y", "true", "1"):
+            return True
+        if low in ("no", "n", "false", "0"):
+            return None
+        raise ValueError(f"'{t}': type yes or no")
     if col.kind == "number":
         return parse_number(t)             # "9,5" or "9.5"
     if col.kind == "int":
@@ -169,8 +191,17 @@ class RecordTable(Vertical):
     def on_mount(self) -> None:
         table = self.query_one("#table", CellGrid)
         table.cursor_moved = lambda coordinate: self._detail(coordinate.row)
+        self._add_columns(table)
+
+    def _add_columns(self, table: CellGrid) -> None:
+        """The grid's columns; the leading ones (up to the material, else the name and the
+        next) stay in view, names and materials cut to make room (numbers never are)."""
         for col in self.columns:
-            table.add_column(col.label, key=col.key, width=col.width)
+            table.add_column(col.label, key=col.key, width=col.width,
+                             shrink_to=SHRINK_TO.get(col.kind))
+        kinds = [col.kind for col in self.columns]
+        table.keep_in_view = kinds.index("material") + 1 if "material" in kinds \
+            else min(2, len(kinds))
 
     # ---------------------------------------------------------------- downward
     def set_columns(self, columns: list[Column]) -> None:
@@ -181,8 +212,7 @@ class RecordTable(Vertical):
             return
         table = self.query_one("#table", CellGrid)
         table.clear(columns=True)
-        for col in self.columns:
-            table.add_column(col.label, key=col.key, width=col.width)
+        self._add_columns(table)
         self.records = []
 
     def set_records(self, records: list, annotations: dict | None = None) -> None:

@@ -38,8 +38,9 @@ class _Number(Validator):
         return self.success()
 
 
-class RoomForm(VerticalScroll):
-    """Fields of the room. Each valid change is sent up as FieldEdited("room", None, key, value)
+class RoomForm(VerticalScroll, can_focus=False):
+    """Fields of the room (the form itself takes no focus, its fields do: a focus stop must
+    show where it is). Each valid change is sent up as FieldEdited("room", None, key, value)
     (None for a cleared field); a value that is not a number is shown as invalid, with the
     reason, and not sent."""
 

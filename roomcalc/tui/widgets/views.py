@@ -14,10 +14,15 @@ from textual.widgets import Select, Static
 
 from roomcalc.engine.analysis import METHOD_TITLES, Comparison, RoomResult
 from roomcalc.io.units import METRIC, Units
+from roomcalc.present.glossary import legend
 from roomcalc.tui.widgets.plots import DistancePlot, RtPlot
 from roomcalc.tui.widgets.results import CompareTable, ReceiverTable, ReverbTable
 
 NO_RECEIVERS = "No receivers with sources yet: add them in the Sources and Receivers tabs."
+#: What the symbols of each view stand for, shown under its table (F1 says more).
+REVERB_LEGEND = legend(["RT60", "R", "mean alpha", "r_c", "f_S", "air"]) + " (F1: more)"
+RECEIVERS_LEGEND = (legend(["Lp", "dB(A)"]) + "; direct: straight from the sources; "
+                    "reverberant: from the room's reflections")
 NO_PIN = ("Press p to pin the room as it is now as \"before\"; then edit it and compare "
           "here.")
 
@@ -39,11 +44,18 @@ class ResultView(Vertical):
         self.post_message(self.Ready(self))
 
 
+class ResultLegend(Static):
+    """A legend line under a result table: each symbol in words."""
+
+    DEFAULT_CSS = "ResultLegend { padding: 0 1; color: $text-muted; height: auto; }"
+
+
 class ReverbView(ResultView):
     """RT by every method and the room's figures (a table), and RT against band (a plot)."""
 
     def compose(self) -> ComposeResult:
         yield ReverbTable(id="reverb-table")
+        yield ResultLegend(REVERB_LEGEND, id="reverb-legend", markup=False)
         yield RtPlot(id="rt-plot")
 
     def show(self, res: RoomResult, units: Units = METRIC, stale: bool = False) -> None:
@@ -124,6 +136,7 @@ class ReceiversView(ResultView):
 
     def compose(self) -> ComposeResult:
         yield ReceiverTable(id="receiver-table")
+        yield ResultLegend(RECEIVERS_LEGEND, id="receiver-legend", markup=False)
         yield Static("", id="receiver-note")
 
     def show(self, res: RoomResult, exposure_text: str = "") -> None:
@@ -150,7 +163,7 @@ class CompareView(ResultView):
         self.query_one("#compare-head", Static).update(
             f"Before: pinned room   After: the room now{'  (stale)' if stale else ''}   "
             f"negative = shorter or quieter   RT60 by {METHOD_TITLES[cmp.method]} "
-            f"(in force before)")
+            f"(in force before); RT60 = reverberation time")
         self.query_one("#compare-notes", Static).update("\n".join(f"- {n}" for n in cmp.notes))
 
     def show_message(self, text: str = NO_PIN) -> None:
