@@ -193,3 +193,23 @@ def test_every_report_format_says_how_a_source_is_given(tmp_path, capsys):
     rows = [r for r in csv.reader(io.StringIO(capsys.readouterr().out))
             if r[0] == "sound_power"]
     assert float(rows[0][-1]) == pytest.approx(lwa, abs=1e-4)   # written to 6 digits
+
+
+def test_a_typical_source_names_a_row_still_named_as_it_was_added(catalog):
+    """A new row "Source 2" made a table saw kept its name; it now takes "Table saw" (the
+    receivers' distances to it follow), while a name the user gave is kept."""
+    from roomcalc.study.edits import add_item, use_typical_source
+
+    spec = parse_spec(CLASSROOM)
+    at = add_item(spec, "sources")
+    old = spec.sources[at].name
+    assert old.startswith("Source ")
+    saw = typical_sources()["table-saw"]
+    use_typical_source(spec, at, saw)
+    assert spec.sources[at].name == "Table saw"
+    assert all(old not in r.distances for r in spec.receivers)
+    assert all("Table saw" in r.distances for r in spec.receivers if r.position is None)
+    check_room(spec, catalog)
+    given = spec.sources[0].name
+    use_typical_source(spec, 0, typical_sources()["voice-raised"])
+    assert spec.sources[0].name == given

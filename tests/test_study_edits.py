@@ -190,3 +190,54 @@ def test_a_voice_given_in_dba_keeps_its_band_powers_when_63_hz_is_added(catalog)
     assert voice.sound_power[0] == voice.sound_power[1]
     assert any(f"spectrum '{shape}'" in n for n in notes)
     check_room(spec, catalog)
+
+
+# ---------------------------------------------------------------- new rows start valid
+def test_a_new_row_of_every_table_is_valid_as_it_stands(catalog):
+    """A receiver added to a room had no distance to its sources, so the room stopped being
+    computed until the user found out what to type. Every new row (one after another, in
+    every example room, metric and imperial) leaves the room without problems; a receiver
+    gets a position where every source has one, else a distance to each source."""
+    from pathlib import Path
+
+    from roomcalc.io.roomfile import check_room, parse_spec
+    from roomcalc.study.edits import COLLECTIONS, convert_units, new_item
+
+    rooms = Path(__file__).resolve().parents[1] / "example_rooms"
+    for path in sorted(rooms.glob("*.toml")):
+        spec = parse_spec(path.read_text(encoding="utf-8"), str(path))
+        for units in ("metric", "imperial"):
+            if spec.units != units:
+                convert_units(spec, units)
+            for coll in COLLECTIONS:
+                before = [x.name for x in getattr(spec, coll)]
+                item = new_item(spec, coll)
+                assert item.name not in before
+                getattr(spec, coll).append(item)
+                check_room(spec, catalog)           # raises RoomFileError with the problems
+            new = spec.receivers[-1]
+            if all(s.position is not None for s in spec.sources) and spec.shape.is_box:
+                assert new.position is not None
+            else:
+                assert set(new.distances) == {s.name for s in spec.sources}
+
+
+def test_a_new_source_keeps_receivers_placed_by_distance_valid(catalog):
+    """A receiver given by its distance to the only source, then a second source added: the
+    receiver gets a 2 m distance to it (a starting value shown in its row), so the room is
+    still computed; one with a position is left alone."""
+    from pathlib import Path
+
+    from roomcalc.io.roomfile import ReceiverSpec, check_room, parse_spec
+    from roomcalc.study.edits import add_item
+
+    path = Path(__file__).resolve().parents[1] / "example_rooms" / "garage-studio.toml"
+    spec = parse_spec(path.read_text(encoding="utf-8"), str(path))
+    spec.receivers = [ReceiverSpec(name="By ear", distances={s.name: 2.5 for s in spec.sources}),
+                      ReceiverSpec(name="Placed", position=[1.0, 1.0, 1.2])]
+    check_room(spec, catalog)
+    at = add_item(spec, "sources")
+    new = spec.sources[at].name
+    assert spec.receivers[0].distances[new] == 2.0
+    assert spec.receivers[1].distances == {}
+    check_room(spec, catalog)

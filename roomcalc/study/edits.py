@@ -4,6 +4,8 @@ Every function changes the spec in place, so that a caller with an undo history 
 interface's ``Document.change``) can snapshot it first, and returns what the user should be
 told, if anything. The rules:
 
+- :func:`new_item` -- a new row of any table, valid as it stands (:func:`new_candidate`
+  for treatments);
 - :func:`new_candidate` -- a new treatment row, valid as it stands (a default material of
   its kind, a surface of the room to cover);
 - :func:`set_item_fields` -- set a field of a surface, object, source, receiver or candidate,
@@ -27,19 +29,21 @@ told, if anything. The rules:
 from __future__ import annotations
 
 import math
+import re
 
 from roomcalc.engine.bands import DEFAULT_BANDS_HZ
 from roomcalc.engine.field import PLACEMENT_Q
 from roomcalc.io.catalog import Catalog
 from roomcalc.io.limits import RANGES
 from roomcalc.io.planning import convert_candidate_units
-from roomcalc.io.roomfile import WALL_FACES, CandidateSpec, RoomSpec, TargetSpec
+from roomcalc.io.roomfile import (WALL_FACES, CandidateSpec, ObjectSpec, ReceiverSpec,
+                                  RoomSpec, SourceSpec, SurfaceSpec, TargetSpec)
 from roomcalc.io.sources import (TypicalSource, source_band_power, spectrum_names,
                                  spectrum_shape)
 from roomcalc.io.units import UNITS
 from roomcalc.study.typed import parse_numbers
 
-__all__ = ["COLLECTIONS", "new_candidate", "set_item_fields", "rename_item", "change_bands",
+__all__ = ["COLLECTIONS", "new_item", "add_item", "new_candidate", "set_item_fields", "rename_item", "change_bands",
            "convert_units", "nearest_band_fill", "set_method", "set_criterion", "set_objective",
            "set_own_rt60_limit", "parse_rt60_limit", "use_typical_source"]
 
@@ -68,6 +72,66 @@ DEFAULT_COVER_MATERIAL = "glass-fibre-board-50mm-fabric"
 DEFAULT_UNITS_MATERIAL = "corner-trap-porous-floor-to-ceiling"
 #: Most units a new treatment added as units may use (the user changes it).
 DEFAULT_UNITS_MAX = 4
+
+
+#: The word each table's new rows are named with ("Surface 7").
+NEW_NAMES = {"surfaces": "Surface", "objects": "Object", "sources": "Source",
+             "receivers": "Receiver", "candidates": "Treatment"}
+#: Ear height of a seated listener for a new receiver [m] (common practice: about 1.2 m).
+EAR_HEIGHT_M = 1.2
+#: Distance given to a new receiver from each source when positions cannot be used [m]:
+#: a starting value for the user to change, shown in the row.
+NEW_DISTANCE_M = 2.0
+
+
+def new_item(spec: RoomSpec, collection: str) -> object:
+    """A new row for one of the tables, valid as it stands in ``spec``, with an unused name
+    ("Source 3"): a plastered 1 m^2 surface, one seated person, an 80 dB(A) pink source (at a
+    quarter of a box room's length, mid-width, ear height), a receiver (where every source has
+    a position: mid-room at ear height, else 2 m from each source), and a treatment by
+    :func:`new_candidate`. Values in the file's units."""
+    items = _items(spec, collection)
+    names = {getattr(x, "name", "") for x in items}
+    n = len(items) + 1
+    while f"{NEW_NAMES[collection]} {n}" in names:
+        n += 1
+    name = f"{NEW_NAMES[collection]} {n}"
+    box = spec.shape if spec.shape is not None and spec.shape.is_box else None
+    ear = EAR_HEIGHT_M / spec.unit_system.length
+    if collection == "surfaces":
+        return SurfaceSpec(name=name, area=1.0, material="plaster-on-masonry")
+    if collection == "objects":
+        return ObjectSpec(name=name, count=1, material="person-seated")
+    if collection == "sources":
+        position = None if box is None else [
+            round(box.length / 4, 2), round(box.width / 2, 2), round(min(ear, box.height / 2), 2)]
+        return SourceSpec(name=name, sound_power_dba=80.0, spectrum="pink",
+                          placement="surface", position=position)
+    if collection == "receivers":
+        placed = all(src.position is not None for src in spec.sources)
+        if box is not None and placed:
+            return ReceiverSpec(name=name, position=[
+                round(box.length * 0.6, 2), round(box.width / 2, 2),
+                round(min(ear, box.height / 2), 2)])
+        d = round(NEW_DISTANCE_M / spec.unit_system.length, 1)
+        return ReceiverSpec(name=name, distances={src.name: d for src in spec.sources})
+    return new_candidate(spec, name)
+
+
+def add_item(spec: RoomSpec, collection: str, at: int | None = None) -> int:
+    """Insert :func:`new_item` at ``at`` (default: the end) and return its index. A new source
+    is also given a distance of 2 m from each receiver placed by distances (one without a
+    position), so that the room stays valid."""
+    items = _items(spec, collection)
+    item = new_item(spec, collection)
+    at = len(items) if at is None else max(0, min(at, len(items)))
+    items.insert(at, item)
+    if collection == "sources":
+        d = round(NEW_DISTANCE_M / spec.unit_system.length, 1)
+        for rec in spec.receivers:
+            if rec.position is None or item.position is None:
+                rec.distances.setdefault(item.name, d)
+    return at
 
 
 def new_candidate(spec: RoomSpec, name: str) -> CandidateSpec:
@@ -137,8 +201,15 @@ def use_typical_source(spec: RoomSpec, index: int, typical: TypicalSource) -> st
         values = {"sound_power": nearest_band_fill([round(float(x), 1) for x in lw], have,
                                                    bands),
                   "placement": typical.placement}
+    old = spec.sources[index].name
     set_item_fields(spec, "sources", index, values)
-    return f"source '{spec.sources[index].name}': {typical.name}"
+    # A row still named as it was added ("Source 2") takes the typical source's name, the
+    # part before a comma ("Table saw"), if no other source has it; references follow.
+    short = typical.name.split(",")[0].strip()
+    if re.fullmatch(rf"{NEW_NAMES['sources']} \d+", old) \
+            and short not in {x.name for x in spec.sources}:
+        rename_item(spec, "sources", index, short)
+    return f"source '{old}': {typical.name}"
 
 
 def rename_item(spec: RoomSpec, collection: str, index: int, new: str) -> str:

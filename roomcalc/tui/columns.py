@@ -58,19 +58,21 @@ class RecordColumns:
                     Column("absorption", "m^2 per unit, per band", "numbers", length=nb,
                            show=self.show_absorption)]
         if coll == "sources":
+            # The level a user knows first (at 1 m, or the sound power in dB(A)), the band
+            # powers last: they are the longest and most often empty.
             return [Column("name", "Name", optional=False),
-                    Column("sound_power", f"{named('Lw')} per band [dB]", "numbers", length=nb),
-                    Column("sound_power_dba", f"{named('LwA')} [dB(A)]", "number"),
                     Column("level_dba_1m", "level at 1 m [dB(A)]", "number",
                            hint="A-weighted level of the direct sound 1 m in front, where it "
                            "stands (its Q counts); m: a typical source"),
+                    Column("sound_power_dba", f"{named('LwA')} [dB(A)]", "number"),
                     Column("spectrum", "Spectrum", "choice", choices=spectrum_names(),
                            hint=", ".join(spectrum_names())),
                     Column("directivity", named("Q"), "number", show=self.show_q,
                            hint="1 free, 2 on a surface, 4 at an edge, 8 in a corner"),
                     Column("placement", "Placement", "choice", choices=tuple(PLACEMENT_Q),
                            hint="free, surface, edge, corner"),
-                    Column("position", "Position x y z", "position")]
+                    Column("position", "Position x y z", "position"),
+                    Column("sound_power", f"{named('Lw')} per band [dB]", "numbers", length=nb)]
         if coll == "candidates":
             return self._candidates(spec, nb)
         return [Column("name", "Name", optional=False),

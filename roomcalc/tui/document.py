@@ -13,24 +13,12 @@ from pathlib import Path
 
 from roomcalc.io.atomic import remove_stale_temporaries, write_text_atomic
 from roomcalc.io.checks import read_text_file
-from roomcalc.io.roomfile import (CandidateSpec, ObjectSpec, ReceiverSpec, RoomSpec, ShapeSpec,
-                                  SourceSpec, SurfaceSpec, comments_lost, parse_spec_as_read,
-                                  settle_as_read, spec_to_toml_keeping)
-from roomcalc.study.edits import new_candidate
+from roomcalc.io.roomfile import (RoomSpec, ShapeSpec, SurfaceSpec, comments_lost,
+                                  parse_spec_as_read, settle_as_read, spec_to_toml_keeping)
+from roomcalc.study.edits import add_item
 from roomcalc.tui.recovery import discard_recovery, write_recovery
 
 COLLECTIONS = ("surfaces", "objects", "sources", "receivers", "candidates")
-NEW_ITEM = {
-    "surfaces": lambda n: SurfaceSpec(name=f"Surface {n}", area=1.0,
-                                      material="plaster-on-masonry"),
-    "objects": lambda n: ObjectSpec(name=f"Object {n}", count=1, material="person-seated"),
-    "sources": lambda n: SourceSpec(name=f"Source {n}", sound_power_dba=80.0, spectrum="pink",
-                                    placement="surface"),
-    "receivers": lambda n: ReceiverSpec(name=f"Receiver {n}"),
-    # A treatment the planner may use (its default is the core's, valid for the room:
-    # roomcalc.study.edits.new_candidate); here only its name.
-    "candidates": lambda n: CandidateSpec(name=f"Treatment {n}"),
-}
 HISTORY_LIMIT = 500
 
 
@@ -130,17 +118,10 @@ class Document:
 
     def add(self, collection: str, index: int | None = None) -> int:
         items = self.items(collection)
-        names = {getattr(x, "name", "") for x in items}
-        n = len(items) + 1
-        item = NEW_ITEM[collection](n)
-        while item.name in names:
-            n += 1
-            item.name = NEW_ITEM[collection](n).name
-        if collection == "candidates":
-            item = new_candidate(self.spec, item.name)
         at = len(items) if index is None else min(index + 1, len(items))
-        self.change(lambda spec: getattr(spec, collection).insert(at, item),
-                    f"add {collection[:-1]}")
+        # The core's rule: a row valid as it stands (and receivers placed by distances get
+        # one to a new source).
+        self.change(lambda spec: add_item(spec, collection, at), f"add {collection[:-1]}")
         return at
 
     def duplicate(self, collection: str, index: int) -> int:

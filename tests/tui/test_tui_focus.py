@@ -171,3 +171,31 @@ async def test_the_plan_is_applied_with_the_key_a(room_file, catalog):
         await pilot.press("a")
         await _settle(pilot)
         assert [s.label for s in doc.undo_stack] == ["apply the treatment plan"]
+
+
+async def test_enter_in_the_own_limit_leaves_it_so_that_r_plans(room_file, catalog):
+    """The own RT60 limit typed and Enter: r typed next went into the field ("1r") instead of
+    making the plan. Enter now takes the focus to the list of treatments, and the key line
+    offers Escape while the focus is in the field."""
+    app = _app(room_file("workshop.toml"), catalog)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await _settle(pilot, 20)
+        screen = app.screen
+        await pilot.press("f9")
+        await _settle(pilot)
+        own = screen.query_one("#plan-own", Input)
+        own.focus()
+        await _settle(pilot)
+        assert "Leave the field" in str(screen.query_one("#keys").content)
+        own.value = ""
+        await pilot.press("1", "enter")
+        await _settle(pilot)
+        assert screen.focused.id == "plan-candidates"
+        await pilot.press("r")
+        for _ in range(200):
+            await pilot.pause()
+            if screen._plan_run is not None:
+                break
+        assert own.value == "1"
+        assert screen._plan_run is not None
+        assert screen.document.spec.target.rt60_max is not None

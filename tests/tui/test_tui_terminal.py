@@ -253,12 +253,22 @@ def test_an_edit_survives_a_kill_and_not_now_keeps_it(tmp_path, monkeypatch):
         keys("two", "Escape")                 # the same answer as "Not now"
         screen = _wait(lambda: capture("two"), lambda s: "Not now" not in s and "Sabine" in s)
         assert "Not now" not in screen and "Sabine" in screen, screen
+        def dead() -> bool:
+            out = subprocess.run(tmux + ["display-message", "-p", "-t", "two",
+                                         "#{pane_dead}"], capture_output=True, text=True,
+                                 timeout=10).stdout
+            return out.strip() == "1"
+
         for _ in range(3):      # on a busy machine a key may come before the screen takes it
             keys("two", "C-q")
-            screen = _wait(lambda: capture("two"), lambda s: "Pane is dead" in s, 8)
-            if "Pane is dead" in screen:
+            # Ended, or at least left its screen (a loaded machine can take a while to exit).
+            screen = _wait(lambda: capture("two"), lambda s: "Sabine" not in s, 8)
+            if "Sabine" not in screen:
                 break
-        assert "Pane is dead" in screen, screen
+        deadline = time.monotonic() + 30
+        while not dead() and time.monotonic() < deadline:
+            time.sleep(0.2)
+        assert dead(), capture("two")
         found = find_recoveries(room)
         assert len(found) == 1 and found[0].kept, found
         assert len(Document.open(found[0].path).spec.surfaces) > surfaces
@@ -406,16 +416,18 @@ def test_view_keys_after_the_plan_and_a_digit_in_a_field_in_a_real_terminal(tmp_
         assert "Title" in screen, screen
         screen = press("Down", lambda s: "Leave the field" in s)
         assert "Leave the field" in screen, screen              # the key line says how out
-        screen = press("End", lambda s: True, tries=1, seconds=0.5)
-        # A digit in the field types.
-        screen = press("2", lambda s: "Woodworking workshop (demo)2" in s, tries=1, seconds=6.0)
-        assert "Woodworking workshop (demo)2" in screen, screen
+        # A digit in the field types (into the title, or over it when the field selected its
+        # text on entry): the first line shows the room's title ending in "2".
+        def titled(s):
+            return re.match(r" roomcalc - .*2  -  ", s.splitlines()[0]) is not None
+
+        screen = press("2", titled, tries=1, seconds=6.0)
+        assert titled(screen), screen
         assert "Title" in screen                                 # still the Room tab
         screen = press("Escape", lambda s: "Leave the field" not in s, tries=1, seconds=3.0)
         screen = press("2", lambda s: "Material" in s and "Title" not in s)
         assert "Material" in screen and "Title" not in screen, screen
-        # The title took one "2", not two (the first line shows the room's title).
-        screen = _wait(capture, lambda s: "(demo)2" in s.splitlines()[0])
-        assert "Woodworking workshop (demo)2 " in screen.splitlines()[0], screen
+        # The title took one "2", not two.
+        assert titled(screen) and not re.match(r" roomcalc - .*22  -  ", screen.splitlines()[0])
     finally:
         subprocess.run(tmux + ["kill-server"], capture_output=True, timeout=10)

@@ -305,7 +305,9 @@ class PlanView(VerticalScroll, can_focus=False):
             return bool(apply) and not apply.first().disabled
         if action == "stop":            # Escape stops a plan; with none running it is left free
             stop = self.query("#plan-stop")
-            return (bool(stop) and stop.first().display) or None
+            # False, not None: a disabled binding would still hide the screen's Escape
+            # (leave the field) from the key line.
+            return bool(stop) and bool(stop.first().display)
         return True
 
     def _can_apply(self, can: bool) -> None:
@@ -330,11 +332,17 @@ class PlanView(VerticalScroll, can_focus=False):
         # the screen shows its message here (show_own_error).
         self.show_own_error("")
         self.post_message(self.TargetChanged("rt60_max", event.value))
+        # Enter leaves the field for the list of treatments (or the Plan button), where r
+        # plans: r typed next went into the field. A limit refused brings the focus back.
+        grid = self.query_one("#plan-candidates", CellGrid)
+        (grid if grid.row_count else self.query_one("#plan-run", Button)).focus()
 
     def show_own_error(self, text: str) -> None:
         err = self.query_one("#plan-own-error", Static)
         err.update(text)
         err.display = bool(text)
+        if text:
+            self.query_one("#plan-own", Input).focus()
 
     def on_button_pressed(self, event: Button.Pressed) -> None:
         event.stop()

@@ -10,6 +10,7 @@ from roomcalc.tui.widgets.grid import CellGrid
 
 from roomcalc.engine.analysis import METHOD_TITLES, METHODS, Comparison, RoomResult
 from roomcalc.io.units import METRIC, Units
+from roomcalc.present.glossary import SYMBOLS, named
 from roomcalc.present.numbers import fmt
 
 
@@ -27,7 +28,7 @@ class BandTable(CellGrid):
     def _columns(self, bands, first: str) -> None:
         self._pending: list[list[str]] = []
         self._pending_styles: list[str] = []
-        if bands == self._bands and self.columns:
+        if bands == self._bands and self.columns and self.columns["label"].label == first:
             return
         self.clear(columns=True)
         # The labels may be cut (with an ellipsis) so that every band fits the pane; the
@@ -63,20 +64,27 @@ class ReverbTable(BandTable):
     """RT by every method (the one in force marked), room constant, critical distance,
     Schroeder frequency."""
 
-    def show(self, res: RoomResult, units: Units = METRIC) -> None:
-        self._columns(res.bands_hz, "RT60 [s]")
+    def show(self, res: RoomResult, units: Units = METRIC, worded: bool = False) -> None:
+        """``worded``: each label names its symbol in words ("room constant R [m^2]"), for a
+        pane wide enough that no legend line is needed under the table."""
+        self._columns(res.bands_hz, "reverberation time RT60 [s]" if worded else "RT60 [s]")
         for k in METHODS:
             if k in res.rt60_s:
                 rec = k == res.method
                 self._row(("> " if rec else "  ") + METHOD_TITLES[k], res.rt60_s[k],
                           style="bold" if rec else "")
-        self._row(f"R [{units.area_label}]", res.room_constant_m2 / units.area, 1)
-        self._row("mean alpha", res.mean_alpha, 3)
+        area, length = units.area_label, units.length_label
+        self._row(f"{named('R')} [{area}]" if worded else f"R [{area}]",
+                  res.room_constant_m2 / units.area, 1)
+        self._row(f"{SYMBOLS['mean alpha']} (mean alpha)" if worded else "mean alpha",
+                  res.mean_alpha, 3)
         for s in res.sources:
-            name = s.name if len(s.name) <= 12 else s.name[:11] + "~"
-            self._row(f"r_c {name} [{units.length_label}]", s.critical_distance_m / units.length)
-        self._row("f_S [Hz]", res.schroeder_hz, 0)
-        self._row("air [dB/km]", res.air_attenuation_db_per_m * 1000.0, 1)
+            name = s.name if len(s.name) <= 12 else s.name[:11] + "\u2026"
+            self._row(f"{named('r_c') if worded else 'r_c'} {name} [{length}]",
+                      s.critical_distance_m / units.length)
+        self._row(f"{named('f_S')} [Hz]" if worded else "f_S [Hz]", res.schroeder_hz, 0)
+        self._row(f"{SYMBOLS['air']} [dB/km]" if worded else "air [dB/km]",
+                  res.air_attenuation_db_per_m * 1000.0, 1)
         self._flush()
 
 

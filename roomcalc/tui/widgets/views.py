@@ -58,9 +58,27 @@ class ReverbView(ResultView):
         yield ResultLegend(REVERB_LEGEND, id="reverb-legend", markup=False)
         yield RtPlot(id="rt-plot")
 
+    #: From this width on (one column, a small screen) the table's labels name their symbols
+    #: in words and the legend line goes: the rows it took are the table's.
+    WORDED_FROM = 76
+
+    def __init__(self, *, id: str | None = None, classes: str | None = None) -> None:
+        super().__init__(id=id, classes=classes)
+        self._last = None
+        self._worded = False
+
     def show(self, res: RoomResult, units: Units = METRIC, stale: bool = False) -> None:
-        self.query_one(ReverbTable).show(res, units)
+        self._last = (res, units)
+        self.query_one(ReverbTable).show(res, units, worded=self._worded)
         self.query_one(RtPlot).show(res, stale)
+
+    def on_resize(self) -> None:
+        worded = self.size.width >= self.WORDED_FROM
+        if worded != self._worded:
+            self._worded = worded
+            self.query_one("#reverb-legend").display = not worded
+            if self._last is not None:
+                self.query_one(ReverbTable).show(*self._last, worded=worded)
 
 
 class DistanceView(ResultView):
