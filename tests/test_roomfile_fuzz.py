@@ -235,7 +235,9 @@ def _check_report(exc: RoomFileError, name: str):
         assert p.message.strip()
         assert "Traceback" not in str(p)
         assert str(p).startswith(f"{name}: ")
-    assert str(exc).count("\n") == len(exc.problems) - 1
+    # One line per problem, and the two lines of a broken TOML line shown with its caret.
+    excerpts = sum(p.excerpt.count("\n") + 1 for p in exc.problems if p.excerpt)
+    assert str(exc).count("\n") == len(exc.problems) - 1 + excerpts
 
 
 def _check_accepted(spec, room):

@@ -77,7 +77,8 @@ def read_toml_file(path) -> dict:
 
 
 def read_toml(text: str, filename: str) -> dict:
-    """Parse TOML text; a syntax error becomes a RoomFileError naming the line and column.
+    """Parse TOML text; a syntax error becomes a RoomFileError naming the line and column, with
+    the line itself and a caret under the column (:func:`toml_error`).
 
     Text larger, or with longer lines, dotted keys or deeper brackets than
     :mod:`roomcalc.io.limits` allows is refused before it is parsed."""
@@ -87,21 +88,137 @@ def read_toml(text: str, filename: str) -> dict:
     try:
         return tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
-        msg = str(exc)
-        m = _TOML_POS.match(msg)
-        if m:
-            where, msg = f"line {m['line']}, column {m['col']}", m["msg"]
-        elif (m := _TOML_END.match(msg)):
-            where, msg = "end of file", m["msg"]
-        else:
-            where = ""
-        raise RoomFileError([Problem(filename, where, f"not valid TOML: {msg}")]) from None
+        raise RoomFileError([toml_error(text, str(exc), filename)]) from None
     except ValueError as exc:  # an integer longer than Python converts (sys.int_info)
         msg = "a number has too many digits to read" if "digits" in str(exc) else str(exc)
         raise RoomFileError([Problem(filename, "", f"not valid TOML: {msg}")]) from None
     except RecursionError:
         raise RoomFileError([Problem(filename, "", "not valid TOML: arrays or tables are "
                                      "nested too deeply")]) from None
+
+
+#: tomllib's messages for a bracket or a string that is never closed: it names where it
+#: noticed (often the end of the file), not where the bracket or string was opened.
+_UNCLOSED = ("Unclosed array", "Unclosed inline table", "Unterminated string",
+             "Expected \"'\"", "Illegal character '\\n'")
+_OPENED = {"[": "the list opened here with '[' is not closed (a ']' is missing)",
+           "{": "the inline table opened here with '{' is not closed (a '}' is missing; an "
+                "inline table must end on the line it starts)",
+           '"': "the text opened here with '\"' is not closed (a '\"' is missing)",
+           "'": "the text opened here with \"'\" is not closed (a \"'\" is missing)",
+           '"""': "the text opened here with '\"\"\"' is not closed",
+           "'''": "the text opened here with \"'''\" is not closed"}
+#: A line that starts a table or gives a key: never inside a list, so a list still open there
+#: was left open.
+_TABLE_OR_KEY = re.compile(r"\s*(\[\[?[A-Za-z0-9_.-]+\]\]?\s*(#.*)?$|[A-Za-z0-9_.-]+\s*=)")
+EXCERPT_WIDTH = 72      # characters of the line shown under a TOML error
+
+
+def toml_error(text: str, message: str, filename: str) -> Problem:
+    """The problem of TOML text that cannot be read, from tomllib's ``message``: the file, the
+    line and column, what is wrong, and that line with a caret under the column. For a list
+    ``[``, an inline table ``{`` or a text (string) that is never closed, the place is where it
+    was opened (found by :func:`_unclosed_at`), not where the parser gave up (often the end of
+    the file)."""
+    m = _TOML_POS.match(message)
+    if m:
+        msg, line, col = m["msg"], int(m["line"]), int(m["col"])
+    elif (m := _TOML_END.match(message)):
+        msg, line, col = m["msg"], None, None
+    else:
+        return Problem(filename, "", f"not valid TOML: {message}")
+    lines = text.split("\n")          # as the parser counts lines
+    line_start = None if line is None else sum(len(x) + 1 for x in lines[:line - 1])
+    opened = _unclosed_at(text, len(text) if line is None else line_start + col - 1)
+    if opened is None or not (line is None or msg.startswith(_UNCLOSED)):
+        if line is not None and _TABLE_OR_KEY.match(lines[line - 1]):
+            # A list left open runs into the next table's header or key, which the parser
+            # then finds to be a bad value.
+            opened = _unclosed_at(text, line_start)
+        else:
+            opened = None
+    if opened is not None:
+        token, line, col = opened
+        msg = _OPENED[token]
+    elif line is None:                 # the end of the file: its last line that has text
+        line = max((i + 1 for i, x in enumerate(lines) if x.strip()), default=1)
+        col = len(lines[line - 1].rstrip()) + 1
+        msg += " at the end of the file"
+    excerpt = _excerpt(lines[line - 1] if line <= len(lines) else "", line, col)
+    return Problem(filename, f"line {line}, column {col}", f"not valid TOML: "
+                   f"{msg[:1].lower() + msg[1:]}", excerpt)
+
+
+def _excerpt(line_text: str, line: int, col: int) -> str:
+    """``  12 | alpha = [0.1,`` and a caret under column ``col`` (a long line is cut around
+    it; tabs are shown as spaces so that the caret stays under its character)."""
+    s = line_text.replace("\t", " ").rstrip("\r\n")
+    s = "".join(c if c.isprintable() else " " for c in s)
+    start = max(0, col - 1 - EXCERPT_WIDTH // 2) if len(s) > EXCERPT_WIDTH else 0
+    shown = s[start:start + EXCERPT_WIDTH]
+    lead = "..." if start else ""
+    tail = "..." if start + EXCERPT_WIDTH < len(s) else ""
+    num = f"{line:>5} | "
+    return (f"{num}{lead}{shown}{tail}\n" + " " * (len(num) - 2) + "| " +
+            " " * (len(lead) + col - 1 - start) + "^")
+
+
+def _unclosed_at(text: str, stop: int):
+    """The innermost list ``[``, inline table ``{`` or text (``"``, ``'``, ``\"\"\"``,
+    ``'''``) still open at character ``stop`` of TOML ``text``: (token, line, column), both
+    counted from 1, or None. Table headers (``[shape]``, ``[[surfaces]]``), comments and the
+    contents of closed texts are skipped."""
+    stack: list[tuple[str, int, int]] = []
+    i, n, line, line_start = 0, min(stop, len(text)), 1, 0
+    at_line_start = True
+
+    def here(k):
+        return line, k - line_start + 1
+
+    while i < n:
+        c = text[i]
+        if c == "\n":
+            i += 1
+            line, line_start, at_line_start = line + 1, i, True
+            continue
+        if c in " \t\r":
+            i += 1
+            continue
+        if c == "#":
+            j = text.find("\n", i)
+            i = n if j < 0 else j
+            continue
+        if at_line_start and not stack and c == "[":     # a table header: to its line's end
+            at_line_start = False
+            j = text.find("\n", i)
+            i = n if j < 0 else j
+            continue
+        at_line_start = False
+        if c in "\"'":
+            triple = text.startswith(c * 3, i)
+            token = c * 3 if triple else c
+            where = here(i)
+            j = i + len(token)
+            while True:
+                if j >= n:
+                    return (token, *where)
+                if text.startswith(token, j):
+                    break
+                if not triple and text[j] == "\n":
+                    return (token, *where)
+                if c == '"' and text[j] == "\\":
+                    j += 1
+                if text[j] == "\n":
+                    line, line_start = line + 1, j + 1
+                j += 1
+            i = j + len(token)
+            continue
+        if c in "[{":
+            stack.append((c, *here(i)))
+        elif c in "]}" and stack:
+            stack.pop()
+        i += 1
+    return stack[-1] if stack else None
 
 
 def nearest(word: str, choices, cutoff: float = 0.6) -> str | None:
@@ -119,9 +236,13 @@ def kind_of(v) -> str:
 class Checker:
     """Collects problems for one file."""
 
-    def __init__(self, filename: str):
+    def __init__(self, filename: str, keep: bool = False):
         self.filename = filename
         self.problems: list[Problem] = []
+        #: Keep a number that is outside its range (or not whole where a whole number goes)
+        #: instead of dropping it, as the interface keeps a value typed out of range: a file
+        #: with problems is opened with its numbers as written (roomcalc.io.roomfile.asread).
+        self.keep = keep
 
     def add(self, where: str, message: str) -> None:
         self.problems.append(Problem(self.filename, where, message))
@@ -220,7 +341,7 @@ class Checker:
               integer=False, unit=""):
         if integer and isinstance(v, float) and math.isfinite(v):
             self.add(where, f"must be a whole number, not {v!r}")
-            return default
+            return v if self.keep else default
         if isinstance(v, bool) or not isinstance(v, (int, float)) or \
                 (integer and not isinstance(v, int)):
             want = "a whole number" if integer else "a number"
@@ -237,7 +358,7 @@ class Checker:
             (high is not None and v > high)
         if bad:
             self.add(where, f"{_fmt(v)} is outside {_range(low, high, low_open, unit)}")
-            return default
+            return v if self.keep else default
         return v
 
     def numbers(self, table: dict, key: str, where: str, *, length=None, low=None, high=None,
@@ -254,13 +375,20 @@ class Checker:
         if length is not None and len(v) != length:
             self.add(path, f"has {len(v)} {what}; {length} are needed ({unit})" if unit else
                      f"has {len(v)} {what}; {length} are needed")
-            return None
+            return self._kept(v)
         out, ok = [], True
         for i, x in enumerate(v):
             y = self.value(x, f"{path}[{i}]", low=low, high=high, low_open=low_open)
             ok &= y is not None
             out.append(y)
         return [float(x) for x in out] if ok else None
+
+    def _kept(self, v: list):
+        """A list of numbers of the wrong length, kept in keep mode (else None)."""
+        if self.keep and v and all(isinstance(x, (int, float)) and not isinstance(x, bool)
+                                   and math.isfinite(x) and abs(x) <= 1e300 for x in v):
+            return [float(x) for x in v]
+        return None
 
 
 def _fmt(v) -> str:

@@ -12,9 +12,12 @@ class Problem:
     file: str
     where: str
     message: str
+    #: For text that could not be read at all (broken TOML): the line it points at and a caret
+    #: under the column, two lines ready to print under the problem; "" otherwise.
+    excerpt: str = ""
 
     def __str__(self) -> str:
-        return f"{self.file}: {self.located}"
+        return f"{self.file}: {self.located}" + (f"\n{self.excerpt}" if self.excerpt else "")
 
     @property
     def located(self) -> str:

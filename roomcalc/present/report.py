@@ -311,7 +311,8 @@ def check_dict(ans: Answer, shown: str) -> dict:
 def problems_dict(problems, shown: str) -> dict:
     """Every problem of a refused file, for ``check --format json``."""
     return {"file": shown, "ok": False,
-            "problems": [{"file": p.file, "field": p.where, "message": p.message}
+            "problems": [{"file": p.file, "field": p.where, "message": p.message,
+                          **({"excerpt": p.excerpt} if p.excerpt else {})}
                          for p in problems]}
 
 

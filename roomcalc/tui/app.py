@@ -20,6 +20,7 @@ from roomcalc.tui.document import Document
 from roomcalc.tui.recovery import (RecoveryWriter, Status, discard_file, find_recoveries,
                                    take_over)
 from roomcalc.tui.screens.dialogs import Ask, AskBox, AskText
+from roomcalc.tui.screens.file_fixes import FIX_KEYS_COMMAND, ask_key_fixes, opening_notice
 from roomcalc.tui.screens.main import MainScreen
 
 RECOVERY_DELAY_S = 0.0    # the recovery file is written at once after an edit (off the main
@@ -81,6 +82,8 @@ class RoomApp(App):
             self._take_over_recovery(self.document)
         if self.config.ask_box_size:
             self._ask_size()
+        else:
+            self.call_after_refresh(self._say_problems)
 
     def _settle(self) -> None:
         """Move everything made at start-up (widgets, styles, the catalogue) out of the
@@ -124,6 +127,9 @@ class RoomApp(App):
             ("Switch reverberant model", "Diffuse field (4/R) or Barron & Lee",
              main.action_toggle_model),
             ("Choose material", "For the highlighted surface or object", main.action_material),
+            (FIX_KEYS_COMMAND, "Keys of the room file roomcalc does not know (a typo) and a "
+             "missing version: read each as the key it meant, or remove it",
+             lambda: ask_key_fixes(self.main)),
             (RESTORE_COMMAND, "Unsaved changes of this room from a session that ended "
              "without saving: restore or discard them", self.action_offer_recovery),
             ("Help", "Every key, and what each number means", self.action_help),
@@ -322,7 +328,14 @@ class RoomApp(App):
             self._discard_approved = None
             return
         self._set_document(doc)
+        self._say_problems()
         self._offer_recovery(doc)
+
+    def _say_problems(self) -> None:
+        """A room opened with problems: say so, and how to fix them."""
+        said = opening_notice(self.main)
+        if said:
+            self.notify(said, severity="warning", timeout=NOT_SAVED_NOTICE_S, markup=False)
 
     def action_new(self) -> None:
         def ask():
@@ -413,6 +426,7 @@ class RoomApp(App):
         if self.keep_recovery_now():
             discard_file(rec)
         self.notify("Unsaved changes restored. Save to keep them.")
+        self._say_problems()
 
     def schedule_recovery(self) -> None:
         """After an edit: keep the room's text in the recovery file, in the background, as

@@ -13,8 +13,8 @@ from pathlib import Path
 
 from roomcalc.io.atomic import remove_stale_temporaries, write_text_atomic
 from roomcalc.io.checks import read_text_file
-from roomcalc.io.roomfile import (RoomSpec, ShapeSpec, SurfaceSpec, comments_lost, parse_spec,
-                                  spec_to_toml_keeping)
+from roomcalc.io.roomfile import (RoomSpec, ShapeSpec, SurfaceSpec, comments_lost,
+                                  parse_spec_as_read, settle_as_read, spec_to_toml_keeping)
 from roomcalc.study.edits import add_item
 from roomcalc.tui.recovery import discard_recovery, write_recovery
 
@@ -82,6 +82,7 @@ class Document:
         """Apply ``fn(spec)`` with an undo step (merged with the last one if ``merge`` matches)."""
         before = clone(self.spec)
         fn(self.spec)
+        settle_as_read(self.spec)       # an edited field's value stands, not the file's text
         if merge is not None and self.undo_stack and self.undo_stack[-1].merge == merge \
                 and not self.redo_stack:
             pass  # the earlier snapshot already holds the state before this run of edits
@@ -172,12 +173,14 @@ class Document:
 
     @classmethod
     def open(cls, path) -> "Document":
-        """Read a room file (raises RoomFileError with every problem, or naming the file
-        when it cannot be read: roomcalc.io.checks.read_text_file)."""
+        """Read a room file, problems and all, to be fixed in the interface: what the spec
+        cannot hold is kept as read (roomcalc.io.roomfile.asread) and the room's check
+        reports it. Raises RoomFileError only for a file that cannot be read
+        (roomcalc.io.checks.read_text_file) or is not TOML (roomcalc.io.checks.toml_error)."""
         path = Path(path)
         text = read_text_file(path)
         remove_stale_temporaries(path)       # left by a save that was killed half-way
-        spec = parse_spec(text, str(path))
+        spec = parse_spec_as_read(text, str(path))
         return cls(spec=spec, path=path, saved_text=text, original_text=text)
 
     @classmethod
@@ -213,6 +216,8 @@ def clone(obj):
     times quicker than ``copy.deepcopy``: every edit keeps one for undo."""
     names = _FIELDS.get(type(obj))
     if names is None and is_dataclass(obj) and not isinstance(obj, type):
+        if obj.__dataclass_params__.frozen:
+            return obj          # never changed (a room's own material): shared, not copied
         names = _FIELDS[type(obj)] = tuple(f.name for f in fields(obj))
     if names is not None:
         new = object.__new__(type(obj))

@@ -10,11 +10,14 @@ The modules, by job: :mod:`.spec` (the dataclasses and the keys of each table), 
 :mod:`.parse_target` (TOML data to a checked spec), :mod:`.resolve` (spec to the engine's room,
 catalogue lookup), :mod:`.write` (spec to TOML text, atomic saving), :mod:`.keep` (spec to TOML
 text written over the text it was read from, keeping the user's comments and layout, as
-:mod:`.layout` reads it). The
+:mod:`.layout` reads it), :mod:`.asread` (a file with problems read as far as it goes, to be
+fixed in the interface). The
 planning tables are read here with the rest of the file; :mod:`roomcalc.io.planning` turns them
 into the planner's SI goals and candidates.
 """
 
+from roomcalc.io.roomfile.asread import (KNOWN_KEYS, as_read_objects, parse_spec_as_read,
+                                         read_spec_as_read, settle_as_read, spec_as_read)
 from roomcalc.io.roomfile.faces import (AREA_OR_FACE, box_dimensions_m, face_areas,
                                         missing_area, surface_area_m2)
 from roomcalc.io.roomfile.parse import (SpecProblems, box_size_problems, parse_data, parse_spec,
@@ -33,8 +36,8 @@ from roomcalc.io.roomfile.spec import (AIR_KEYS, AREA_COST_KEY, CANDIDATE_ALPHA_
                                        CandidateSpec, ObjectSpec, ReceiverSpec, RoomSpec,
                                        ShapeSpec, SourceSpec, SurfaceSpec, TargetSpec, band_text,
                                        limit_values)
-from roomcalc.io.roomfile.write import (save_spec, spec_to_dict, spec_to_toml, toml_key,
-                                        toml_value)
+from roomcalc.io.roomfile.write import (save_spec, spec_fields_dict, spec_to_dict, spec_to_toml,
+                                        toml_key, toml_value, with_as_read)
 
 __all__ = [
     # spec
@@ -44,6 +47,9 @@ __all__ = [
     "DEFAULT_OBJECTIVE", "LEVEL_LIMIT_MAX_DB",
     "AirSpec", "ShapeSpec", "SurfaceSpec", "ObjectSpec", "SourceSpec", "ReceiverSpec",
     "BandLimit", "TargetSpec", "CandidateSpec", "RoomSpec", "band_text", "limit_values",
+    # asread
+    "read_spec_as_read", "parse_spec_as_read", "spec_as_read", "settle_as_read",
+    "as_read_objects", "KNOWN_KEYS",
     # faces
     "AREA_OR_FACE", "missing_area", "face_areas", "box_dimensions_m", "surface_area_m2",
     # parse
@@ -53,7 +59,7 @@ __all__ = [
     "read_room", "check_room", "resolve", "room_catalog", "material_values",
     "candidate_material", "material_problems", "unoccupied_values",
     # write
-    "spec_to_dict", "spec_to_toml", "save_spec", "toml_key", "toml_value",
+    "spec_to_dict", "spec_fields_dict", "with_as_read", "spec_to_toml", "save_spec", "toml_key", "toml_value",
     # keep
     "spec_to_toml_keeping", "comments_lost",
 ]

@@ -262,7 +262,10 @@ def frozen(x):
     if isinstance(x, bool):
         return x
     if isinstance(x, (int, float)):
-        return float(x)
+        try:
+            return float(x)
+        except OverflowError:       # a whole number too large for a float, kept as read
+            return x
     if isinstance(x, list):
         return tuple(frozen(v) for v in x)
     if isinstance(x, dict):

@@ -51,6 +51,24 @@ def parse_data(data: dict, filename: str = "<room>") -> RoomSpec:
     Raises :class:`SpecProblems` (a RoomFileError) with every problem found.
     """
     chk = Checker(filename)
+    spec = _parse(chk, data)
+    if chk.problems:
+        entries = data.get("materials")
+        inline_ids = {e["id"] for e in entries if isinstance(e, dict)
+                      and isinstance(e.get("id"), str)} if isinstance(entries, list) else set()
+        raise SpecProblems(chk.problems, spec, inline_ids - {m.id for m in spec.materials})
+    return spec
+
+
+def parse_with(data: dict, filename: str = "<room>", keep: bool = False) -> RoomSpec:
+    """The spec of a parsed room document as far as it can be read, problems or not (they
+    are not reported: :func:`parse_data` reports them); ``keep``: numbers outside their range
+    are kept as written (:class:`roomcalc.io.checks.Checker`). For
+    :mod:`roomcalc.io.roomfile.asread`."""
+    return _parse(Checker(filename, keep=keep), data)
+
+
+def _parse(chk: Checker, data: dict) -> RoomSpec:
     chk.keys(data, "", TOP_KEYS)
     spec = RoomSpec()
     version = chk.number(data, "version", "", required=True, integer=True)
@@ -74,11 +92,6 @@ def parse_data(data: dict, filename: str = "<room>") -> RoomSpec:
     spec.materials = parse_entries(chk.array_of_tables(data, "materials"), chk,
                                    where="materials")
     _positions_inside(chk, spec, u)
-    if chk.problems:
-        entries = data.get("materials")
-        inline_ids = {e["id"] for e in entries if isinstance(e, dict)
-                      and isinstance(e.get("id"), str)} if isinstance(entries, list) else set()
-        raise SpecProblems(chk.problems, spec, inline_ids - {m.id for m in spec.materials})
     return spec
 
 

@@ -54,14 +54,32 @@ LEVEL_LIMIT_MAX_DB = RANGES["level_limit"].high
 
 
 @dataclass
-class AirSpec:
+class AsRead:
+    """What a table of a file held that its spec cannot hold, kept so that a file with problems
+    can be opened, shown and fixed, and saved without losing what the user wrote
+    (:mod:`roomcalc.io.roomfile.asread`):
+
+    - ``unknown_keys``: keys the table does not know (a typo), key -> the value as read;
+    - ``as_read``: known keys whose value the spec could not hold (text where a number goes,
+      a choice not offered), key -> (the value as read, the field's value when it was read).
+
+    :func:`roomcalc.io.roomfile.write.spec_to_dict` writes them back, so the room's check
+    reports them until they are fixed; a value as read gives way once its field is edited.
+    Both are empty for a room read without problems."""
+
+    unknown_keys: dict = field(default_factory=dict, kw_only=True)
+    as_read: dict = field(default_factory=dict, kw_only=True)
+
+
+@dataclass
+class AirSpec(AsRead):
     temperature: float | None = None        # file units (degC or degF); None = default
     relative_humidity: float | None = None  # %
     pressure_kpa: float | None = None
 
 
 @dataclass
-class ShapeSpec:
+class ShapeSpec(AsRead):
     length: float | None = None
     width: float | None = None
     height: float | None = None
@@ -73,7 +91,7 @@ class ShapeSpec:
 
 
 @dataclass
-class SurfaceSpec:
+class SurfaceSpec(AsRead):
     name: str
     material: str | None = None
     alpha: list[float] | None = None
@@ -83,7 +101,7 @@ class SurfaceSpec:
 
 
 @dataclass
-class ObjectSpec:
+class ObjectSpec(AsRead):
     name: str
     count: float = 1
     material: str | None = None
@@ -92,7 +110,7 @@ class ObjectSpec:
 
 
 @dataclass
-class SourceSpec:
+class SourceSpec(AsRead):
     name: str
     sound_power: list[float] | None = None
     sound_power_dba: float | None = None
@@ -110,7 +128,7 @@ class SourceSpec:
 
 
 @dataclass
-class ReceiverSpec:
+class ReceiverSpec(AsRead):
     name: str
     position: list[float] | None = None
     distances: dict[str, float] = field(default_factory=dict)
@@ -140,7 +158,7 @@ def limit_values(limit: BandLimit | None, bands) -> list[float]:
 
 
 @dataclass
-class TargetSpec:
+class TargetSpec(AsRead):
     """The [target] table as written. None = not given (the defaults apply)."""
 
     method: str | None = None
@@ -163,7 +181,7 @@ class TargetSpec:
 
 
 @dataclass
-class CandidateSpec:
+class CandidateSpec(AsRead):
     """One [[candidates]] entry as written (file units). With ``surface`` (one name or a list)
     or ``walls`` it covers part of those surfaces; without, it is added as units. ``applied``:
     built into the room already (a plan applied it), so a plan leaves it out."""
@@ -214,7 +232,7 @@ class CandidateSpec:
 
 
 @dataclass
-class RoomSpec:
+class RoomSpec(AsRead):
     """A room as written in its file (file units, material ids)."""
 
     title: str = ""
@@ -228,7 +246,7 @@ class RoomSpec:
     sources: list[SourceSpec] = field(default_factory=list)
     receivers: list[ReceiverSpec] = field(default_factory=list)
     materials: list[Material] = field(default_factory=list)
-    version: int = FORMAT_VERSION
+    version: int | None = FORMAT_VERSION   # None: a file with problems left it out
     target: TargetSpec | None = None
     candidates: list[CandidateSpec] = field(default_factory=list)
 

@@ -12,8 +12,40 @@ from roomcalc.io.roomfile.spec import CANDIDATE_KEYS, SHAPE_KEYS, RoomSpec
 
 
 def spec_to_dict(spec: RoomSpec) -> dict:
-    """The TOML document of a spec, keys in the order of docs/room-files.md."""
-    d: dict = {"version": spec.version}
+    """The TOML document of a spec, keys in the order of docs/room-files.md; what a file with
+    problems held that the spec cannot (unknown keys, values as read) is written back as it
+    was read (:func:`with_as_read`), so that checking the spec reports it."""
+    return with_as_read(spec_fields_dict(spec), spec)
+
+
+def with_as_read(d: dict, obj) -> dict:
+    """``d``, the TOML table of a spec object ``obj`` (a room, its [air], a surface, ...), with
+    the keys ``obj`` kept as read (:class:`roomcalc.io.roomfile.spec.AsRead`): a value as read
+    stands while its field still has the value it was read with; unknown keys follow. The
+    tables and entries inside a room get theirs too."""
+    if not isinstance(d, dict):
+        return d
+    for key, (raw, held) in obj.as_read.items():
+        if getattr(obj, key, None) == held:
+            d[key] = raw
+    for key, raw in obj.unknown_keys.items():
+        d.setdefault(key, raw)
+    if isinstance(obj, RoomSpec):
+        for key in ("air", "shape", "target"):
+            sub = getattr(obj, key)
+            if sub is not None and (sub.as_read or sub.unknown_keys) and key not in obj.as_read:
+                d[key] = with_as_read(dict(d.get(key) or {}), sub)
+        for key in ("surfaces", "objects", "sources", "receivers", "candidates"):
+            items = getattr(obj, key)
+            if key in d and isinstance(d[key], list) and len(d[key]) == len(items):
+                d[key] = [with_as_read(x, it) if (it.as_read or it.unknown_keys) else x
+                          for x, it in zip(d[key], items)]
+    return d
+
+
+def spec_fields_dict(spec: RoomSpec) -> dict:
+    """The TOML document of a spec's own fields, without what it keeps as read."""
+    d: dict = {"version": spec.version} if spec.version is not None else {}
     if spec.title:
         d["title"] = spec.title
     d["units"] = spec.units
@@ -26,8 +58,9 @@ def spec_to_dict(spec: RoomSpec) -> dict:
                              ("pressure_kpa", spec.air.pressure_kpa)) if v is not None}
     if air:
         d["air"] = air
-    d["shape"] = {k: getattr(spec.shape, k) for k in SHAPE_KEYS
-                  if getattr(spec.shape, k) is not None}
+    shape = {k: getattr(spec.shape, k) for k in SHAPE_KEYS if getattr(spec.shape, k) is not None}
+    if shape:                   # none: a room without a shape yet (its check says so)
+        d["shape"] = shape
     d["surfaces"] = [_clean({"name": s.name, "area": s.area,
                              "count": _whole(s.count) if s.count != 1 else None, "face": s.face,
                              "material": s.material, "alpha": s.alpha}) for s in spec.surfaces]
@@ -102,14 +135,16 @@ def spec_to_toml(spec: RoomSpec) -> str:
     material, each list of numbers on one line.
     ``tomllib.loads(spec_to_toml(s)) == spec_to_dict(s)`` (a test checks it)."""
     d = spec_to_dict(spec)
+
+    def tables(v) -> bool:          # an array of tables ([[...]]), not a list kept as read
+        return isinstance(v, list) and bool(v) and all(isinstance(x, dict) for x in v)
     out = [f"{toml_key(k)} = {toml_value(v)}" for k, v in d.items()
-           if not isinstance(v, (dict, list))
-           or (isinstance(v, list) and not (v and isinstance(v[0], dict)))]
+           if not isinstance(v, dict) and not tables(v)]
     for k, v in d.items():
         if isinstance(v, dict):
             out += ["", f"[{toml_key(k)}]"] + [f"{toml_key(a)} = {toml_value(b)}"
                                                for a, b in v.items()]
-        elif isinstance(v, list) and v and isinstance(v[0], dict):
+        elif tables(v):
             for item in v:
                 out += ["", f"[[{toml_key(k)}]]"] + [f"{toml_key(a)} = {toml_value(b)}"
                                                      for a, b in item.items()]
@@ -138,7 +173,10 @@ def toml_value(v) -> str:
     if isinstance(v, dict):
         return "{ " + ", ".join(f"{toml_key(a)} = {toml_value(b)}" for a, b in v.items()) + " }" \
             if v else "{}"
-    raise TypeError(f"cannot write {type(v).__name__} to a room file")
+    try:        # a date or time, kept as read from a file with problems
+        return tomli_w.dumps({"x": v})[4:].rstrip("\n")
+    except TypeError:
+        raise TypeError(f"cannot write {type(v).__name__} to a room file") from None
 
 
 def save_spec(spec: RoomSpec, path) -> None:

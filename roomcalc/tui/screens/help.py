@@ -48,6 +48,11 @@ Unsaved changes are written to a recovery file a moment after each edit. After a
 opening the room again offers them; "Not now" keeps them for later (Ctrl+P, "Restore changes
 kept from before").
 
+A room file with problems (an unknown material, a value out of range, a misspelled key) opens
+all the same: each problem is listed at the bottom and under its table, to be fixed there, and
+saving writes the room as fixed. Ctrl+P, "Fix unknown keys" reads a misspelled key as the key
+it meant, or removes it.
+
 ## The numbers
 - **RT60 [s]**: reverberation time, the time for sound to fall by 60 dB, per octave band, by
   Sabine `T = 0.161 V / (A + 4mV)`, Eyring `T = 0.161 V / (-S ln(1 - abar) + 4mV)`,

@@ -426,8 +426,10 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
 
 
     # ------------------------------------------------------------------ edits
-    def apply(self, fn, label: str, merge: str | None = None) -> None:
+    def apply(self, fn, label: str, merge: str | None = None, *, form: bool = False) -> None:
+        """Change the room (one undo step) and show it; ``form``: the room form too."""
         self.document.change(fn, label, merge)
+        self._needs_form_refresh |= form
         self.after_change()
 
     def after_change(self) -> None:

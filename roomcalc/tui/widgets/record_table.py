@@ -16,6 +16,7 @@ from textual.containers import Vertical
 from textual.validation import ValidationResult, Validator
 from textual.widgets import Input, Static
 
+from roomcalc.io.roomfile import toml_value
 from roomcalc.study.typed import parse_number, parse_numbers, split_entries
 from roomcalc.tui.messages import FieldEdited, MaterialWanted, RowAction
 from roomcalc.tui.widgets.grid import CellGrid
@@ -60,6 +61,19 @@ def fmt_value(v, kind: str) -> str:
     if isinstance(v, float):
         return f"{v:g}"
     return str(v)
+
+
+def as_read_text(rec, col: Column) -> str:
+    """A cell of a row from a file with problems: a value its field cannot hold is shown as
+    the file has it (``"two"`` in a number column), until the cell is given a value
+    (roomcalc.io.roomfile.asread)."""
+    kept = rec.as_read.get(col.key)
+    if kept is not None and getattr(rec, col.key, None) == kept[1]:
+        try:
+            return toml_value(kept[0])
+        except TypeError:
+            return "?"
+    return col.show(rec) if col.show else fmt_value(getattr(rec, col.key, None), col.kind)
 
 
 def parse_value(text: str, col: Column):
@@ -208,7 +222,8 @@ class RecordTable(Vertical):
         coord = table.cursor_coordinate
         # Plain strings: the grid never reads them as markup.
         rows = [[col.show(rec) if col.show else fmt_value(getattr(rec, col.key, None), col.kind)
-                 for col in self.columns] for rec in records]
+                 for col in self.columns] if not getattr(rec, "as_read", None) else
+                [as_read_text(rec, col) for col in self.columns] for rec in records]
         # Only rows that differ are drawn again.
         table.set_rows(rows, labels=[str(i + 1) for i in range(len(rows))])
         if records:
