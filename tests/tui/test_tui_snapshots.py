@@ -134,3 +134,11 @@ def test_compare_view(snap_compare, catalog, engine):
         assert rows[5][col] == f"{d_rev:.1f}" and d_rev < 0
         await _settle(pilot)
     assert snap_compare(app, terminal_size=SIZE, run_before=run_before)
+
+
+def test_main_screen_demo_room_80x24(snap_compare, catalog):
+    """The demo room on a small terminal: one column, the six tabs with their digits, the
+    reverberation labels in words, the findings strip folded with its counts, the key line
+    keeping help and quit."""
+    app = _demo_app(catalog)
+    assert snap_compare(app, terminal_size=(80, 24), run_before=_settle)

@@ -74,7 +74,7 @@ async def test_findings_strip_counts_and_shows_every_kind_at_80x24(room_file, ca
         assert None not in first.values(), shown          # one line of each kind is visible
         assert first["Error:"] < first["Warning:"] < first["CAUTION"], shown
         assert strip.region.bottom <= SMALL[1] and strip.size.height == len(shown)
-        assert "show all" in shown[0]
+        assert "Ctrl+E or click: all" in shown[0]
 
         await pilot.press("ctrl+e")
         await pilot.pause()

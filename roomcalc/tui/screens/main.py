@@ -41,7 +41,8 @@ from roomcalc.tui.widgets.views import (CompareView, DistanceView, ReceiversView
 
 EDIT_TABS = ("room", "surfaces", "objects", "sources", "receivers", "candidates")
 TAB_TITLES = {"candidates": "Treatments"}
-ROW_HELP = "Enter: edit cell   a: add   c: copy   x: delete   Ctrl+Up/Down: move   m: material"
+ROW_HELP = ("Enter: edit cell   a: add   c: copy   x: delete   m: material (or typical source)   "
+            "Ctrl+Up/Down: move   Escape in a field: leave it")
 # The result tabs, their titles and the widget each shows its result in.
 VIEW_TITLES = {"v-reverb": "Reverberation", "v-distance": "Level vs distance",
                "v-receivers": "Receivers", "v-compare": "Before/after"}

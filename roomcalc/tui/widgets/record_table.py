@@ -152,7 +152,7 @@ class RecordTable(Vertical):
     RecordTable #editor-label { padding: 0 1; color: $text-muted; }
     RecordTable #editor { width: 1fr; margin: 0 1; }
     RecordTable #editor-error { color: $error; height: auto; padding: 0 1; display: none; }
-    RecordTable #row-help { color: $text-muted; height: 1; padding: 0 1; }
+    RecordTable #row-help { color: $text-muted; height: auto; padding: 0 1; }
     RecordTable #row-detail { height: 2; padding: 0 1; }
     RecordTable #problems { color: $error; height: auto; max-height: 4; padding: 0 1;
                             display: none; }

@@ -163,8 +163,8 @@ class FindingsStrip(Static):
     #: Most of the screen the unfolded strip takes.
     UNFOLDED_MAX_HEIGHT = "60%"
     #: How the strip says that it can be unfolded, and folded again.
-    UNFOLD_HINT = "click or Ctrl+E: show all"
-    FOLD_HINT = "click or Ctrl+E: fold"
+    UNFOLD_HINT = "Ctrl+E or click: all"
+    FOLD_HINT = "Ctrl+E or click: fold"
 
     expanded = False
     _args: tuple | None = None
@@ -264,9 +264,9 @@ class FindingsStrip(Static):
             if hidden or self.expanded:
                 text.append(f" ({self.UNFOLD_HINT if hidden else self.FOLD_HINT})")
             if problems:
-                text.append(" - not computed: fix the errors first"
-                            + (" (the results shown are from the last valid room)"
-                               if stale else ""))
+                # (short: the line is cut at the screen's width)
+                text.append(" - not computed: fix the errors"
+                            + ("; shown: the last valid room" if stale else ""))
         else:
             text.append("No errors, warnings or cautions.")
         if budget is not None:
