@@ -87,32 +87,34 @@ class RecordColumns:
     def _candidates(self, spec: RoomSpec, nb: int) -> list[Column]:
         u = spec.unit_system
         area = u.area_label
+        # What, where, of what, and its price first (they stay in view); the limits, panel
+        # size, the yes/no columns and the values per band after them.
         return [Column("name", "Name", optional=False),
-                Column("applied", "Applied", "flag",
-                       hint="yes: built into the room already, the plan leaves it out; "
-                       "no: plan it again"),
                 Column("surface", "Covers surface", "names",
                        hint="a surface's name, or several separated by ;  empty: added as "
                        "units"),
+                Column("material", "Material", "material", show=self.show_material),
+                Column("cost_per_m2" if spec.units == "metric" else "cost_per_ft2",
+                       f"Cost per {area}", "number"),
+                Column("cost_each", "Cost each", "number"),
+                Column("max_area", f"Up to [{area}]", "number",
+                       hint="cover: empty = the whole surface (all of them)"),
+                Column("max_count", "Up to [units]", "number", hint="units"),
+                Column("panel", f"Panel w h [{u.length_label}]", "numbers", length=2,
+                       hint="cover: one panel's width and height, e.g. 1.2 0.6"),
+                Column("step", f"Panel [{area}]", "number",
+                       hint="cover: whole panels of this area, e.g. 0.72"),
                 Column("walls", "All walls", "flag",
                        hint="yes: covers every surface on a wall face (instead of a surface)"),
-                Column("material", "Material", "material", show=self.show_material),
+                Column("applied", "Applied", "flag",
+                       hint="yes: built into the room already, the plan leaves it out; "
+                       "no: plan it again"),
                 Column("alpha", "alpha (cover)", "numbers", length=nb,
                        show=lambda r: self.show_alpha(r) if r.covers else "",
                        hint="one per band; typing here drops the material"),
                 Column("absorption", f"{area} per unit", "numbers", length=nb,
                        show=lambda r: "" if r.covers else self.show_absorption(r),
-                       hint="units: absorption area per unit"),
-                Column("max_area", f"Up to [{area}]", "number",
-                       hint="cover: empty = the whole surface (all of them)"),
-                Column("max_count", "Up to [units]", "number", hint="units"),
-                Column("cost_per_m2" if spec.units == "metric" else "cost_per_ft2",
-                       f"Cost per {area}", "number"),
-                Column("cost_each", "Cost each", "number"),
-                Column("step", f"Panel [{area}]", "number",
-                       hint="cover: whole panels of this area, e.g. 0.72"),
-                Column("panel", f"Panel w h [{u.length_label}]", "numbers", length=2,
-                       hint="cover: one panel's width and height, e.g. 1.2 0.6")]
+                       hint="units: absorption area per unit")]
 
     # ------------------------------------------------------------------ cells
     def show_material(self, rec) -> str:
