@@ -414,3 +414,20 @@ def test_the_plan_command_counts_panels_in_every_format(tmp_path, capsys):
     row = next(r for r in rows if r["candidate"] == "Wall panel")
     assert (int(row["panels"]), float(row["panel_width_m"]), row["how_much"]) == (n, 1.2, words)
     assert outputs["markdown"].startswith("# Treatment plan")
+
+
+def test_a_second_new_treatment_row_covers_another_wall(catalog):
+    """The second row added covered the same wall as the first; it now takes a wall no
+    treatment covers yet (and is valid as it stands)."""
+    from roomcalc.io.roomfile import check_room
+    from roomcalc.study.edits import add_item
+
+    from pathlib import Path
+
+    path = Path(__file__).resolve().parents[1] / "example_rooms" / "garage-studio.toml"
+    spec = parse_spec(path.read_text(encoding="utf-8"))
+    spec.candidates = []
+    first = spec.candidates[add_item(spec, "candidates")]
+    second = spec.candidates[add_item(spec, "candidates")]
+    assert first.surface != second.surface
+    check_room(spec, catalog)

@@ -136,12 +136,18 @@ def add_item(spec: RoomSpec, collection: str, at: int | None = None) -> int:
 
 def new_candidate(spec: RoomSpec, name: str) -> CandidateSpec:
     """A new treatment row that is valid as it stands: it covers a surface of the room (the
-    first on a wall face, else the first surface; a name used twice cannot be covered) with
+    first wall no treatment covers yet, else the first wall, else the first surface; a name
+    used twice cannot be covered) with
     the default porous wall panel, or, in a room without such a surface, is added as units
     (at most :data:`DEFAULT_UNITS_MAX` bass traps). No cost: the user gives it."""
     names = [s.name for s in spec.surfaces]
     unique = [s for s in spec.surfaces if names.count(s.name) == 1]
-    wall = next((s for s in unique if s.face in WALL_FACES), None) or next(iter(unique), None)
+    # A wall no treatment covers yet, if there is one (a second row covering the same wall
+    # as the first is seldom what was meant), else the first wall, else the first surface.
+    covered = {n for c in spec.candidates for n in c.surface_names(spec)}
+    walls = [s for s in unique if s.face in WALL_FACES]
+    wall = next((s for s in walls if s.name not in covered), None) \
+        or next(iter(walls), None) or next(iter(unique), None)
     if wall is not None:
         return CandidateSpec(name=name, surface=wall.name, material=DEFAULT_COVER_MATERIAL)
     return CandidateSpec(name=name, material=DEFAULT_UNITS_MATERIAL,
