@@ -349,6 +349,7 @@ def test_a_new_treatment_row_is_valid_as_it_stands(catalog):
     # Made a units row (surface cleared), its default material follows: still valid.
     set_item_fields(spec, "candidates", 2, {"surface": None})
     assert c.material == DEFAULT_UNITS_MATERIAL
+    assert c.max_count == 4          # corner traps: a box room has four vertical corners
     check_room(spec, catalog)
     set_item_fields(spec, "candidates", 2, {"walls": True})
     assert c.material == DEFAULT_COVER_MATERIAL and c.surface is None

@@ -185,6 +185,8 @@ def set_item_fields(spec: RoomSpec, collection: str, index: int, values: dict) -
                 DEFAULT_COVER_MATERIAL: DEFAULT_UNITS_MATERIAL}
         if item.material in swap:
             item.material = swap[item.material]
+            if item.material == DEFAULT_UNITS_MATERIAL and item.max_count is None:
+                item.max_count = DEFAULT_UNITS_MAX      # a room has four vertical corners
     if new_name is not None and new_name != item.name:
         rename_item(spec, collection, index, new_name)
     return label
