@@ -432,3 +432,21 @@ def test_a_second_new_treatment_row_covers_another_wall(catalog):
     second = spec.candidates[add_item(spec, "candidates")]
     assert first.surface != second.surface
     check_room(spec, catalog)
+
+
+def test_a_treatment_made_units_or_cover_drops_the_other_kinds_keys(catalog):
+    """A cover with an area limit and a price per m^2 made units (its surface cleared): the
+    limit and price go (they would make the row invalid), the default trap gets four; made a
+    cover again, the count limit goes."""
+    spec = parse_spec(ROOM)
+    at = len(spec.candidates)
+    spec.candidates.append(new_candidate(spec, "Treatment 9"))
+    set_item_fields(spec, "candidates", at, {"max_area": 5.0, "cost_per_m2": 40.0})
+    check_room(spec, catalog)
+    set_item_fields(spec, "candidates", at, {"surface": None})
+    c = spec.candidates[at]
+    assert (c.max_area, c.cost_per_m2, c.max_count) == (None, None, 4)
+    check_room(spec, catalog)
+    set_item_fields(spec, "candidates", at, {"walls": True})
+    assert c.max_count is None and c.covers
+    check_room(spec, catalog)

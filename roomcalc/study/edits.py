@@ -36,7 +36,7 @@ from roomcalc.engine.field import PLACEMENT_Q
 from roomcalc.io.catalog import Catalog
 from roomcalc.io.limits import RANGES
 from roomcalc.io.planning import convert_candidate_units
-from roomcalc.io.roomfile import (WALL_FACES, CandidateSpec, ObjectSpec, ReceiverSpec,
+from roomcalc.io.roomfile import (COVER_KEYS, UNIT_KEYS, WALL_FACES, CandidateSpec, ObjectSpec, ReceiverSpec,
                                   RoomSpec, SourceSpec, SurfaceSpec, TargetSpec)
 from roomcalc.io.sources import (TypicalSource, source_band_power, spectrum_names,
                                  spectrum_shape)
@@ -181,6 +181,11 @@ def set_item_fields(spec: RoomSpec, collection: str, index: int, values: dict) -
     if collection == "candidates" and was_cover != item.covers and "material" not in values:
         # Made a cover of a units row or the other way: a default material of the old kind
         # becomes the default of the new one, so the row stays valid.
+        # The keys of the old kind go (they would make the row invalid): a cover's area
+        # limit, panel and price per area, or the units' count limit and price each.
+        for key in (UNIT_KEYS if item.covers else COVER_KEYS):
+            if key not in values and key not in ("surface", "walls"):
+                setattr(item, key, None)
         swap = {DEFAULT_UNITS_MATERIAL: DEFAULT_COVER_MATERIAL,
                 DEFAULT_COVER_MATERIAL: DEFAULT_UNITS_MATERIAL}
         if item.material in swap:
