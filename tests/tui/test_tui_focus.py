@@ -200,3 +200,25 @@ async def test_enter_in_the_own_limit_leaves_it_so_that_r_plans(room_file, catal
         assert own.value == "1"
         assert screen._plan_run is not None
         assert screen.document.spec.target.rt60_max is not None
+
+
+async def test_r_plans_while_the_plan_tab_is_shown_wherever_the_focus_is(room_file, catalog):
+    """With the Plan tab shown and the focus on the room's table (Tab went there), r did
+    nothing; it now makes the plan, and elsewhere (another view) it still does nothing."""
+    app = _app(room_file("workshop.toml"), catalog)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await _settle(pilot, 20)
+        screen = app.screen
+        await pilot.press("r")                 # the Reverberation tab: nothing to plan
+        await _settle(pilot)
+        assert screen._plan_run is None and screen._plan_job is None
+        await pilot.press("f9")
+        await _settle(pilot)
+        screen.query_one("#t-surfaces #table").focus()
+        await _settle(pilot)
+        await pilot.press("r")
+        for _ in range(200):
+            await pilot.pause()
+            if screen._plan_run is not None:
+                break
+        assert screen._plan_run is not None

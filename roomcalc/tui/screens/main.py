@@ -84,6 +84,8 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
         # shortcuts work again, and Down goes from a tab bar into its tab.
         Binding("escape", "leave_field", "Leave the field", id="main.leave_field"),
         Binding("down", "enter_tab", "Into the tab", show=False, id="main.enter_tab"),
+        # r plans while the Plan tab is shown, wherever the focus is (but in a field).
+        Binding("r", "plan_run", "Plan", show=False, id="main.plan_run"),
     ]
 
     # repaint=False: a reactive on the screen would otherwise repaint the whole screen on each
@@ -477,6 +479,10 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
     def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
         if action == "leave_field":
             return self._field_focused() is not None
+        if action == "plan_run":
+            view = self._opt("#view")           # (checked before the screen is composed too)
+            return view is not None and view.active == "v-plan" \
+                and self._opt("#plan-view") is not None
         if action == "enter_tab":
             return self.focused is not None and type(self.focused).__name__ == "ContentTabs"
         return True
@@ -488,6 +494,9 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
             if field is not None else None
         if tabs is not None:
             tabs.query_one("ContentTabs").focus()
+
+    def action_plan_run(self) -> None:
+        self.query_one("#plan-view").action_run()
 
     def action_enter_tab(self) -> None:
         """Down on a tab bar: the focus goes to the first thing in the tab shown."""
