@@ -141,3 +141,19 @@ def pilot_keys():
         await pilot.pause()
 
     return SimpleNamespace(edit_cell=edit_cell, type_words=type_words)
+
+
+@pytest.fixture
+def record_notes():
+    """``notes = record_notes(app)``: every notice the app shows from then on, as (text,
+    severity), in a list that fills as the test runs."""
+    def record(app) -> list[tuple[str, str]]:
+        seen = []
+        original = app.notify
+
+        def notify(message, *args, **kw):
+            seen.append((str(message), kw.get("severity", "information")))
+            return original(message, *args, **kw)
+        app.notify = notify
+        return seen
+    return record

@@ -58,17 +58,6 @@ def _check_problems(path, capsys) -> list[str]:
     return [line[len(f"{path}: "):] for line in err[:-1]]
 
 
-def _notes(app) -> list[tuple[str, str]]:
-    seen = []
-    original = app.notify
-
-    def notify(message, *args, **kw):
-        seen.append((str(message), kw.get("severity", "information")))
-        return original(message, *args, **kw)
-    app.notify = notify
-    return seen
-
-
 async def _settle(pilot):
     for _ in range(5):
         await pilot.pause()
@@ -79,7 +68,7 @@ def _row(doc, name: str) -> int:
 
 
 async def test_open_a_room_with_problems_fix_it_in_place_and_save(room_file, catalog, capsys,
-                                                                  pilot_keys):
+                                                                  pilot_keys, record_notes):
     path = _bad_classroom(room_file)
     found = _check_problems(path, capsys)
     assert len(found) == 3 and any("aera" in p for p in found)
@@ -88,7 +77,7 @@ async def test_open_a_room_with_problems_fix_it_in_place_and_save(room_file, cat
 
     doc = Document.open(path)             # the old code refused the file here
     app = make_app(doc, catalog, AppConfig(offer_recovery=False, theme="textual-dark"))
-    notes = _notes(app)
+    notes = record_notes(app)
     async with app.run_test(size=SIZE) as pilot:
         await _settle(pilot)
         screen = app.screen
@@ -156,12 +145,12 @@ async def test_open_a_room_with_problems_fix_it_in_place_and_save(room_file, cat
 
 
 async def test_saving_before_fixing_keeps_what_the_user_wrote(room_file, catalog, capsys,
-                                                              pilot_keys):
+                                                              pilot_keys, record_notes):
     path = _bad_classroom(room_file)
     found = _check_problems(path, capsys)
     app = make_app(Document.open(path), catalog,
                    AppConfig(offer_recovery=False, theme="textual-dark"))
-    notes = _notes(app)
+    notes = record_notes(app)
     async with app.run_test(size=SIZE) as pilot:
         await _settle(pilot)
         doc = app.screen.document
@@ -183,14 +172,14 @@ async def test_saving_before_fixing_keeps_what_the_user_wrote(room_file, catalog
 
 
 async def test_ctrl_o_opens_a_room_with_problems_and_refuses_only_broken_toml(
-        room_file, catalog, tmp_path):
+        room_file, catalog, tmp_path, record_notes):
     good = room_file("workshop.toml")
     bad = _bad_classroom(room_file)
     broken = tmp_path / "broken.toml"
     broken.write_text('version = 1\n[shape]\nlength = [6.0,\nwidth = 4.0\n', encoding="utf-8")
     app = make_app(Document.open(good), catalog,
                    AppConfig(offer_recovery=False, theme="textual-dark"))
-    notes = _notes(app)
+    notes = record_notes(app)
     async with app.run_test(size=SIZE) as pilot:
         await _settle(pilot)
         app.open_path(str(broken))
@@ -208,7 +197,7 @@ async def test_ctrl_o_opens_a_room_with_problems_and_refuses_only_broken_toml(
             "classroom.toml has 3 problems")
 
 
-async def test_restoring_kept_changes_with_problems_restores_them(room_file, catalog, tmp_path):
+async def test_restoring_kept_changes_with_problems_restores_them(room_file, catalog, tmp_path, record_notes):
     """Changes kept from a session that ended without saving may hold a room with problems
     (the interface lets a room be invalid while it is edited): they are restored, problems
     and all, to be fixed."""
@@ -217,7 +206,7 @@ async def test_restoring_kept_changes_with_problems_restores_them(room_file, cat
     good = room_file("workshop.toml")
     app = make_app(Document.open(good), catalog,
                    AppConfig(offer_recovery=False, theme="textual-dark"))
-    notes = _notes(app)
+    notes = record_notes(app)
     async with app.run_test(size=SIZE) as pilot:
         await _settle(pilot)
         doc = app.screen.document

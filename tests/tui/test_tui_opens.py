@@ -31,17 +31,6 @@ def _app(path, catalog, **config):
     return make_app(Document.open(path), catalog, AppConfig(**config))
 
 
-def _notes(app) -> list[tuple[str, str]]:
-    seen = []
-    original = app.notify
-
-    def notify(message, *args, **kw):
-        seen.append((str(message), kw.get("severity", "information")))
-        return original(message, *args, **kw)
-    app.notify = notify
-    return seen
-
-
 async def _ready(pilot):
     app = pilot.app
     for _ in range(100):
@@ -52,12 +41,12 @@ async def _ready(pilot):
     raise AssertionError("the screen never got there")
 
 
-async def test_open_a_folder_or_binary_file_names_it(room_file, catalog, tmp_path):
+async def test_open_a_folder_or_binary_file_names_it(room_file, catalog, tmp_path, record_notes):
     path = room_file("classroom.toml")
     binary = tmp_path / "shop.toml"
     binary.write_bytes(b"\xff\xfe\x00")
     app = _app(path, catalog)
-    notes = _notes(app)
+    notes = record_notes(app)
     async with app.run_test(size=SIZE) as pilot:
         await _ready(pilot)
         app.open_path(str(tmp_path))
@@ -71,7 +60,7 @@ async def test_open_a_folder_or_binary_file_names_it(room_file, catalog, tmp_pat
         assert app.screen.document.path == path          # the room open stays open
 
 
-async def test_open_permission_denied_names_it(room_file, catalog, monkeypatch):
+async def test_open_permission_denied_names_it(room_file, catalog, monkeypatch, record_notes):
     path = room_file("classroom.toml")
     other = room_file("workshop.toml")
     real = Path.read_bytes
@@ -81,7 +70,7 @@ async def test_open_permission_denied_names_it(room_file, catalog, monkeypatch):
             raise PermissionError(13, "Permission denied", str(self))
         return real(self)
     app = _app(path, catalog)
-    notes = _notes(app)
+    notes = record_notes(app)
     async with app.run_test(size=SIZE) as pilot:
         await _ready(pilot)
         monkeypatch.setattr(Path, "read_bytes", read_bytes)
@@ -91,12 +80,12 @@ async def test_open_permission_denied_names_it(room_file, catalog, monkeypatch):
                              "error")
 
 
-async def test_restoring_an_unreadable_recovery_file_names_it(room_file, catalog, tmp_path):
+async def test_restoring_an_unreadable_recovery_file_names_it(room_file, catalog, tmp_path, record_notes):
     path = room_file("classroom.toml")
     rec = tmp_path / "kept.toml"
     rec.write_bytes(b'title = "a"\n\xc3(\n')
     app = _app(path, catalog)
-    notes = _notes(app)
+    notes = record_notes(app)
     async with app.run_test(size=SIZE) as pilot:
         await _ready(pilot)
         app._restore(app.screen.document, rec)
@@ -107,10 +96,10 @@ async def test_restoring_an_unreadable_recovery_file_names_it(room_file, catalog
         assert rec.exists()
 
 
-async def test_saving_a_room_with_problems_saves_it_and_says_what_is_wrong(room_file, catalog):
+async def test_saving_a_room_with_problems_saves_it_and_says_what_is_wrong(room_file, catalog, record_notes):
     path = room_file("classroom.toml")
     app = _app(path, catalog)
-    notes = _notes(app)
+    notes = record_notes(app)
     async with app.run_test(size=SIZE) as pilot:
         await _ready(pilot)
         doc = app.screen.document

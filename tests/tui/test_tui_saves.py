@@ -39,18 +39,6 @@ def _app(path, catalog, **config):
     return make_app(Document.open(path) if path else None, catalog, AppConfig(**config))
 
 
-def _notes(app) -> list[tuple[str, str]]:
-    """Record every notice the app shows: (text, severity)."""
-    seen = []
-    original = app.notify
-
-    def notify(message, *args, **kw):
-        seen.append((str(message), kw.get("severity", "information")))
-        return original(message, *args, **kw)
-    app.notify = notify
-    return seen
-
-
 async def _settle(pilot, until, tries: int = 100):
     for _ in range(tries):
         await pilot.pause()
@@ -106,7 +94,7 @@ def _crashed_session(path, material="mineral-wool-50mm-48kg"):
 
 # ---------------------------------------------------------------------------- 1. quit, save fails
 async def test_failed_save_on_quit_keeps_the_app_open_with_the_reason(room_file, catalog,
-                                                                       monkeypatch):
+                                                                       monkeypatch, record_notes):
     """Edit, Ctrl+Q at once, "Save" into a folder that refuses: the app stays open with the
     reason on screen, the edit is still there and already in the recovery file."""
     path = room_file("classroom.toml")
@@ -114,7 +102,7 @@ async def test_failed_save_on_quit_keeps_the_app_open_with_the_reason(room_file,
     _fail_saving_to(monkeypatch, path.parent)
     app = _app(path, catalog, recovery_delay_s=3600)     # no help from a timer
     async with app.run_test(size=SIZE) as pilot:
-        notes = _notes(app)
+        notes = record_notes(app)
         await _ready(pilot)
         await pilot.press("a", "ctrl+q")
         await _ask(pilot, "save")
@@ -153,13 +141,13 @@ async def test_quit_writes_the_recovery_file_before_asking(room_file, catalog):
 
 
 async def test_save_into_a_missing_folder_says_so_and_keeps_the_app(tmp_path, catalog,
-                                                                    room_file):
+                                                                    room_file, record_notes):
     """Save as into a folder that does not exist: the reason names the folder; quitting
     through "Save" then does not quit."""
     path = room_file("classroom.toml")
     app = _app(path, catalog)
     async with app.run_test(size=SIZE) as pilot:
-        notes = _notes(app)
+        notes = record_notes(app)
         await _ready(pilot)
         await pilot.press("a")
         await pilot.pause()
@@ -233,7 +221,7 @@ async def test_not_now_then_quit_keeps_the_crash_recovery(room_file, catalog):
     assert len(kept) == 1 and spec_to_toml(Document.open(kept[0].path).spec) == crashed
 
 
-async def test_not_now_then_edit_keeps_both_and_offers_them_again(room_file, catalog):
+async def test_not_now_then_edit_keeps_both_and_offers_them_again(room_file, catalog, record_notes):
     """After "Not now" an edit writes its own recovery file; the crash's stays beside it,
     named by its time, and is offered again: from the command palette's entry and on the next
     open. Only "Discard them" removes it."""
@@ -241,7 +229,7 @@ async def test_not_now_then_edit_keeps_both_and_offers_them_again(room_file, cat
     crashed = _crashed_session(path)
     app = _app(path, catalog, offer_recovery=True)
     async with app.run_test(size=SIZE) as pilot:
-        notes = _notes(app)
+        notes = record_notes(app)
         await _ready(pilot)
         await _ask(pilot, "later")
         assert any(RESTORE_COMMAND in t for t, _ in notes), notes     # where to find it
@@ -288,7 +276,7 @@ async def test_restore_moves_the_kept_changes_into_this_session(room_file, catal
 
 # ---------------------------------------------------------------------------- 3. nowhere to write
 async def test_recovery_falls_back_beside_the_room_and_says_so(room_file, catalog, tmp_path,
-                                                               monkeypatch):
+                                                               monkeypatch, record_notes):
     """The recovery folder cannot be made (its parent is a regular file: ENOTDIR, even for
     root): the file goes beside the room as a hidden file, a notice says where, and
     find_recovery finds it there."""
@@ -298,7 +286,7 @@ async def test_recovery_falls_back_beside_the_room_and_says_so(room_file, catalo
     path = room_file("classroom.toml")
     app = _app(path, catalog)
     async with app.run_test(size=SIZE) as pilot:
-        notes = _notes(app)
+        notes = record_notes(app)
         await _ready(pilot)
         await pilot.press("a")
         await pilot.pause()
@@ -311,7 +299,7 @@ async def test_recovery_falls_back_beside_the_room_and_says_so(room_file, catalo
         assert str(rec) in warning and "Not a directory" in warning
 
 
-async def test_recovery_nowhere_is_an_error_notice_at_once(room_file, catalog, monkeypatch):
+async def test_recovery_nowhere_is_an_error_notice_at_once(room_file, catalog, monkeypatch, record_notes):
     """Every place refuses (a full disk): an error notice says a crash would lose the work;
     when writing works again, a notice says so."""
     from roomcalc.tui import recovery
@@ -327,7 +315,7 @@ async def test_recovery_nowhere_is_an_error_notice_at_once(room_file, catalog, m
     path = room_file("classroom.toml")
     app = _app(path, catalog)
     async with app.run_test(size=SIZE) as pilot:
-        notes = _notes(app)
+        notes = record_notes(app)
         await _ready(pilot)
         await pilot.press("a")
         await pilot.pause()

@@ -26,6 +26,7 @@ from __future__ import annotations
 import copy
 
 from roomcalc.io.checks import read_text_file, read_toml
+from roomcalc.io.roomfile.layout import same_data
 from roomcalc.io.roomfile.parse import SpecProblems, parse_data, parse_with
 from roomcalc.io.roomfile.spec import (AIR_KEYS, CANDIDATE_KEYS, OBJECT_KEYS, RECEIVER_KEYS,
                                        SHAPE_KEYS, SOURCE_KEYS, SURFACE_KEYS, TARGET_KEYS,
@@ -78,7 +79,7 @@ def _keep_as_read(spec: RoomSpec, data: dict) -> None:
         spec.version = None             # a required key left out stays left out: reported
         made.pop("version", None)
     materials = data.get("materials")
-    if materials is not None and not _same(made.get("materials"), materials):
+    if materials is not None and not same_data(made.get("materials"), materials):
         spec.as_read["materials"] = (materials, [])
         spec.materials = []
         made.pop("materials", None)
@@ -107,22 +108,9 @@ def _table(obj, raw: dict, made: dict, known) -> None:
     for key, value in raw.items():
         if key not in known:
             obj.unknown_keys[key] = value
-        elif key not in made or not _same(made[key], value):
+        elif key not in made or not same_data(made[key], value):
             obj.as_read[key] = (value, _copy(getattr(obj, key, None)))
 
-
-def _same(a, b) -> bool:
-    """Equal as TOML data (an int and a float of the same value are the same; true is not 1)."""
-    if isinstance(a, bool) or isinstance(b, bool):
-        return type(a) is type(b) and a == b
-    if isinstance(a, (int, float)) and isinstance(b, (int, float)):
-        return a == b
-    if isinstance(a, list):
-        return isinstance(b, list) and len(a) == len(b) and all(map(_same, a, b))
-    if isinstance(a, dict):
-        return isinstance(b, dict) and a.keys() == b.keys() and \
-            all(_same(v, b[k]) for k, v in a.items())
-    return type(a) is type(b) and a == b
 
 
 def _copy(v):

@@ -44,7 +44,7 @@ import tomllib
 
 from roomcalc.io.roomfile.layout import (ARRAY_TABLES, SINGLE_TABLES, TABLE_ORDER, Entry,
                                          Layout, Table, Unsupported, comment_lines, content_key,
-                                         read_layout, trail_comment)
+                                         read_layout, same_data, trail_comment)
 from roomcalc.io.roomfile.spec import RoomSpec
 from roomcalc.io.roomfile.write import spec_to_dict, spec_to_toml, toml_key, toml_value
 
@@ -217,7 +217,7 @@ def _write_table(t: Table, new: dict, out: list[str], carried: dict) -> None:
         out += e.lead
         if e.key in new:
             v = new[e.key]
-            if _same(v, e.value):
+            if same_data(v, e.value):
                 out += e.lines
             elif len(e.lines) > 1 and (kept := _numbers_in_place(e, v)) is not None:
                 out += kept
@@ -254,7 +254,7 @@ def _numbers_in_place(e: Entry, new) -> list[str] | None:
             continue
         if k >= len(old) or float(m.group(0).replace("_", "")) != old[k]:
             return None
-        if not _same(new[k], old[k]):
+        if not same_data(new[k], old[k]):
             pieces += [body[at:m.start()], toml_value(new[k])]
             at = m.end()
         k += 1
@@ -262,20 +262,6 @@ def _numbers_in_place(e: Entry, new) -> list[str] | None:
         return None
     return (whole[:start] + "".join(pieces) + body[at:] + whole[end:]).split("\n")
 
-
-def _same(a, b) -> bool:
-    """Equal as data: numbers by value (an int and a float of the same value are the same),
-    booleans only to booleans, lists and tables element by element."""
-    if isinstance(a, bool) or isinstance(b, bool):
-        return type(a) is type(b) and a == b
-    if isinstance(a, (int, float)) and isinstance(b, (int, float)):
-        return a == b
-    if isinstance(a, list):
-        return isinstance(b, list) and len(a) == len(b) and all(map(_same, a, b))
-    if isinstance(a, dict):
-        return isinstance(b, dict) and a.keys() == b.keys() and \
-            all(_same(v, b[k]) for k, v in a.items())
-    return type(a) is type(b) and a == b
 
 
 def _match(old: list[dict], new: list[dict], name: str,
@@ -312,7 +298,7 @@ def _match(old: list[dict], new: list[dict], name: str,
     def alike(x: dict, o: dict) -> bool:
         """Most values the same (renamed, perhaps with one of three values changed)."""
         keys = (x.keys() | o.keys()) - {name}
-        same = sum(1 for k in keys if k in x and k in o and _same(x[k], o[k]))
+        same = sum(1 for k in keys if k in x and k in o and same_data(x[k], o[k]))
         return bool(keys) and 2 * same > len(keys)
 
     after = [len(old)] * (len(new) + 1)     # the original index of the next matched entry

@@ -10,7 +10,7 @@ from dataclasses import dataclass, field
 from functools import lru_cache
 
 __all__ = ["ARRAY_TABLES", "Entry", "Layout", "SINGLE_TABLES", "TABLE_ORDER", "Table",
-           "Unsupported", "comment_lines", "content_key", "frozen", "read_layout",
+           "Unsupported", "comment_lines", "content_key", "frozen", "read_layout", "same_data",
            "trail_comment"]
 
 #: Tables written once (``[name]``) and arrays of tables (``[[name]]``), in the documented order.
@@ -271,3 +271,18 @@ def frozen(x):
     if isinstance(x, dict):
         return tuple(sorted((k, frozen(v)) for k, v in x.items()))
     return x
+
+
+def same_data(a, b) -> bool:
+    """Equal as TOML data: numbers by value (an int and a float of the same value are the
+    same), booleans only to booleans (true is not 1), lists and tables element by element."""
+    if isinstance(a, bool) or isinstance(b, bool):
+        return type(a) is type(b) and a == b
+    if isinstance(a, (int, float)) and isinstance(b, (int, float)):
+        return a == b
+    if isinstance(a, list):
+        return isinstance(b, list) and len(a) == len(b) and all(map(same_data, a, b))
+    if isinstance(a, dict):
+        return isinstance(b, dict) and a.keys() == b.keys() and \
+            all(same_data(v, b[k]) for k, v in a.items())
+    return type(a) is type(b) and a == b
