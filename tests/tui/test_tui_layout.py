@@ -20,6 +20,16 @@ async def _settle(pilot, n: int = 8):
         await pilot.pause()
 
 
+async def _planned(pilot) -> None:
+    """Press r in the Plan tab and wait until the plan can be applied."""
+    await pilot.press("r")
+    for _ in range(200):
+        await pilot.pause()
+        if not pilot.app.screen.query_one("#plan-apply").disabled:
+            return
+    raise AssertionError("no plan to apply came")
+
+
 def _right_edge_of_column(grid, key: str) -> int:
     """Where a column ends, in the grid's own columns (0 = its left edge)."""
     x = grid._label_width if hasattr(grid, "_label_width") else 0
@@ -59,11 +69,7 @@ async def test_the_plan_shows_its_costs_and_apply_button(room_file, catalog):
         await _settle(pilot, 20)
         await pilot.press("f9")
         await _settle(pilot)
-        await pilot.press("r")
-        for _ in range(200):
-            await pilot.pause()
-            if not app.screen.query_one("#plan-apply").disabled:
-                break
+        await _planned(pilot)
         screen = app.screen
         view = screen.query_one("#plan-view")
         cands = screen.query_one("#plan-candidates")
@@ -93,11 +99,7 @@ async def test_before_after_shows_every_band_and_dba_at_120x40(room_file, catalo
         await _settle(pilot, 20)
         await pilot.press("p", "f9")
         await _settle(pilot)
-        await pilot.press("r")
-        for _ in range(200):
-            await pilot.pause()
-            if not app.screen.query_one("#plan-apply").disabled:
-                break
+        await _planned(pilot)
         await pilot.press("a")
         await _settle(pilot)
         await pilot.press("f8")
