@@ -241,3 +241,22 @@ def test_a_new_source_keeps_receivers_placed_by_distance_valid(catalog):
     assert spec.receivers[0].distances[new] == 2.0
     assert spec.receivers[1].distances == {}
     check_room(spec, catalog)
+
+
+def test_new_sources_do_not_share_a_point():
+    """Each new source in a box room starts at its own point (they all started at one)."""
+    from pathlib import Path
+
+    from roomcalc.io.roomfile import parse_spec
+    from roomcalc.study.edits import add_item
+
+    path = Path(__file__).resolve().parents[1] / "example_rooms" / "workshop.toml"
+    spec = parse_spec(path.read_text(encoding="utf-8"), str(path))
+    spec.sources = []
+    for _ in range(7):
+        add_item(spec, "sources")
+    points = [tuple(s.position) for s in spec.sources]
+    assert len(set(points)) == len(points)
+    box = spec.shape
+    assert all(0 < x < box.length and 0 < y < box.width and 0 < z < box.height
+               for x, y, z in points)

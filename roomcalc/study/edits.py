@@ -87,7 +87,7 @@ NEW_DISTANCE_M = 2.0
 def new_item(spec: RoomSpec, collection: str) -> object:
     """A new row for one of the tables, valid as it stands in ``spec``, with an unused name
     ("Source 3"): a plastered 1 m^2 surface, one seated person, an 80 dB(A) pink source (at a
-    quarter of a box room's length, mid-width, ear height), a receiver (where every source has
+    quarter of a box room's length, mid-width, ear height; the next ones beside it), a receiver (where every source has
     a position: mid-room at ear height, else 2 m from each source), and a treatment by
     :func:`new_candidate`. Values in the file's units."""
     items = _items(spec, collection)
@@ -103,8 +103,13 @@ def new_item(spec: RoomSpec, collection: str) -> object:
     if collection == "objects":
         return ObjectSpec(name=name, count=1, material="person-seated")
     if collection == "sources":
+        # Side by side across the width (the middle, a quarter, three quarters), a step
+        # further into the room every third source: two new sources never share a point.
+        k = len(items)
         position = None if box is None else [
-            round(box.length / 4, 2), round(box.width / 2, 2), round(min(ear, box.height / 2), 2)]
+            round(box.length * (0.25 + 0.125 * (k // 3)) % box.length, 2),
+            round(box.width * (0.5, 0.25, 0.75)[k % 3], 2),
+            round(min(ear, box.height / 2), 2)]
         return SourceSpec(name=name, sound_power_dba=80.0, spectrum="pink",
                           placement="surface", position=position)
     if collection == "receivers":
