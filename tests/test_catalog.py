@@ -191,3 +191,35 @@ def test_search_puts_materials_named_by_the_words_first(catalog):
         ranks = [rank(m, words) for m in found]
         assert ranks == sorted(ranks), words
         assert ranks[0] == 0, words
+
+
+def test_search_lists_the_preferred_categories_first_among_equals(catalog):
+    """A ceiling's chooser: "tile" listed carpet tiles first; with ceilings preferred the
+    ceiling tiles come first, and every material found is still listed."""
+    plain = catalog.search("tile", kind="surface")
+    ceiling = catalog.search("tile", kind="surface", prefer=("ceilings",))
+    assert {m.id for m in plain} == {m.id for m in ceiling}
+    assert ceiling[0].category == "ceilings"
+    assert any(m.category != "ceilings" for m in ceiling)
+
+
+def test_the_chooser_prefers_the_categories_of_the_face():
+    """Floors and carpets for a floor, ceilings for a ceiling (also for a treatment covering
+    it), porous panels for a treatment on a wall, nothing for a wall or an object."""
+    from pathlib import Path
+
+    from roomcalc.io.roomfile import parse_spec
+    from roomcalc.present.materials import preferred_categories
+    from roomcalc.study.edits import new_candidate
+
+    path = Path(__file__).resolve().parents[1] / "example_rooms" / "classroom.toml"
+    spec = parse_spec(path.read_text(encoding="utf-8"), str(path))
+    by_face = {s.face: s for s in spec.surfaces}
+    assert preferred_categories(spec, "surfaces", by_face["floor"]) == ("floors", "carpets")
+    assert preferred_categories(spec, "surfaces", by_face["ceiling"]) == ("ceilings",)
+    assert preferred_categories(spec, "surfaces", by_face["left"]) == ()
+    cand = new_candidate(spec, "T")
+    assert preferred_categories(spec, "candidates", cand) == ("porous panels",)
+    cand.surface = by_face["ceiling"].name
+    assert preferred_categories(spec, "candidates", cand) == ("ceilings",)
+    assert preferred_categories(spec, "objects", spec.objects[0]) == ()

@@ -102,10 +102,12 @@ class Catalog:
         return Catalog(merged)
 
     def search(self, words: str = "", category: str | None = None,
-               kind: str | None = None) -> list[Material]:
+               kind: str | None = None, prefer: tuple = ()) -> list[Material]:
         """Materials whose id, name, category or notes contain every word (any case), a word
         people use for a thing the catalogue names otherwise also finding it
-        (:data:`EVERYDAY_WORDS`: "drywall" finds gypsum board, "bass trap" the corner traps)."""
+        (:data:`EVERYDAY_WORDS`: "drywall" finds gypsum board, "bass trap" the corner traps).
+        Those named by the words come first; then, among equals, the ``prefer`` categories
+        (a ceiling's chooser lists ceilings before carpets)."""
         terms = search_terms(words)
         out = []
         for m in self.materials.values():
@@ -118,7 +120,8 @@ class Catalog:
                 out.append((self._rank(m, terms), m))
         # Those whose name holds the words first (Enter picks the first row: "wood" should
         # give a wood material, not a rug whose notes mention a wooden floor).
-        return [m for _r, m in sorted(out, key=lambda rm: (rm[0], rm[1].category, rm[1].name))]
+        return [m for _r, m in sorted(out, key=lambda rm: (rm[0], rm[1].category not in prefer,
+                                                            rm[1].category, rm[1].name))]
 
     @staticmethod
     def _rank(m: Material, terms) -> int:

@@ -11,8 +11,8 @@ from roomcalc.io import paths
 from roomcalc.io.catalog import Material
 from roomcalc.present.numbers import fmt, json_text, wrap
 
-__all__ = ["MEMORY_SOURCE", "material_dict", "materials_text", "no_match_text",
-           "source_sentence"]
+__all__ = ["MEMORY_SOURCE", "FACE_CATEGORIES", "material_dict", "materials_text",
+           "no_match_text", "preferred_categories", "source_sentence"]
 
 #: The ``source`` of a catalogue entry whose values are remembered typical values, not taken
 #: from a publication (materials/README.md, "Sources").
@@ -115,3 +115,20 @@ def no_match_text(words: str, categories: list[str], category: str | None = None
     within = f" in '{category}'" if category else ""
     return (f"No material matches {asked}{within}. Fewer words, or a category: "
             f"{', '.join(categories)}.")
+
+
+#: Catalogue categories listed first in the chooser for a surface on each face (our own
+#: grouping of the catalogue's categories).
+FACE_CATEGORIES = {"floor": ("floors", "carpets"), "ceiling": ("ceilings",)}
+
+
+def preferred_categories(spec, coll: str, rec) -> tuple:
+    """The categories to list first when choosing for ``rec``: by the face of the surface
+    (or of the first surface a treatment covers); porous panels for a treatment on a wall."""
+    if coll == "surfaces":
+        return FACE_CATEGORIES.get(rec.face or "", ())
+    if coll == "candidates" and rec.covers:
+        names = rec.surface_names(spec)
+        face = next((s.face for s in spec.surfaces if names and s.name == names[0]), None)
+        return FACE_CATEGORIES.get(face or "", ("porous panels",))
+    return ()

@@ -8,6 +8,7 @@ from __future__ import annotations
 
 from textual.widgets import TabbedContent
 
+from roomcalc.present.materials import preferred_categories
 from roomcalc.present.places import TABLE_TITLES, place_on_screen
 from roomcalc.study.edits import change_bands, convert_units, set_item_fields, set_method
 from roomcalc.tui.messages import FieldEdited, MaterialWanted, RowAction
@@ -160,7 +161,9 @@ class EditRoutes:
             self.apply(fn, f"{coll[:-1]} '{rec.name}': material")
         row = place_on_screen(f"{coll}[{i}]", self.document.spec)
         self.app.push_screen(MaterialChooser(cat, kind, self.document.spec.bands, rec.material,
-                                             own, changes=row), done)
+                                             own, changes=row,
+                                             prefer=preferred_categories(self.document.spec,
+                                                                         coll, rec)), done)
 
     # ------------------------------------------------------------------ undo and redo
     def action_undo(self) -> None:

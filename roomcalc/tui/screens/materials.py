@@ -58,11 +58,13 @@ class MaterialChooser(ModalScreen[tuple | None]):
                 Binding("ctrl+f", "focus_search", "Search", id="chooser.search")]
 
     def __init__(self, catalog: Catalog, kind: str, bands, current: str | None = None,
-                 current_values: list | None = None, changes: str = "") -> None:
+                 current_values: list | None = None, changes: str = "",
+                 prefer: tuple = ()) -> None:
         """``changes``: the row the choice will change, as the screen names it
         (``Surfaces row 1 "Floor"``), shown in the title."""
         super().__init__()
         self.changes = changes
+        self.prefer = prefer            # categories listed first among equals
         self.catalog, self.kind, self.bands = catalog, kind, tuple(bands)
         self.current, self.current_values = current, current_values
         self._shown: list[Material] = []
@@ -113,7 +115,7 @@ class MaterialChooser(ModalScreen[tuple | None]):
         words = self.query_one("#words", Input).value
         cat = self.query_one("#category", Select).value
         category = cat if isinstance(cat, str) else None
-        self._shown = self.catalog.search(words, category, self.kind)
+        self._shown = self.catalog.search(words, category, self.kind, prefer=self.prefer)
         table = self.query_one("#list", CellGrid)
         table.set_rows([self._row(m) for m in self._shown], keys=[m.id for m in self._shown])
         table.move_cursor(row=0)
