@@ -1,4 +1,5 @@
-"""Steady sound field: room constant, critical distance and levels from direct plus reverberant sound.
+"""Steady sound field: room constant, critical distance and levels from direct plus reverberant
+sound.
 
 Levels are sound pressure levels re 20 uPa from sound power levels re 1 pW, with no rho-c correction
 (the +10 lg(rho c / 400) term, about +0.1 dB, is left out; docs/methods.md says so).
@@ -239,7 +240,8 @@ def levels(sound_power_db, directivity, distance_m, room_constant_m2):
     lw = np.asarray(sound_power_db, dtype=float)
     d = direct_term(directivity, distance_m)
     rv = reverberant_term(room_constant_m2)
-    return lw + db_from_ratio(d + rv), lw + db_from_ratio(d), lw + db_from_ratio(rv * np.ones_like(d))
+    return (lw + db_from_ratio(d + rv), lw + db_from_ratio(d),
+            lw + db_from_ratio(rv * np.ones_like(d)))
 
 
 def barron_lee_reverberant_term(rt60, volume, distance_m) -> np.ndarray:

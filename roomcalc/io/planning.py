@@ -152,7 +152,8 @@ def resolve_candidates(spec: RoomSpec, room, catalog: Catalog, *, objective: str
     them); cover: ``surface`` the index into ``room.surfaces`` (a tuple of them for a
     candidate over several surfaces or ``walls``), ``alpha`` per band, ``max_amount`` [m^2]
     (default: the total area of its surfaces, over their counts), ``cost`` per m^2, ``step``
-    [m^2] (``step``, else ``panel`` width x height), ``panel`` (width, height) [m]; units: ``absorption`` [m^2 per unit] per band, ``max_amount``
+    [m^2] (``step``, else ``panel`` width x height), ``panel`` (width, height) [m]; units:
+    ``absorption`` [m^2 per unit] per band, ``max_amount``
     units (default: no limit), ``cost`` per unit, ``integer`` (default True), ``area_each``
     [m^2]. A cost not given (allowed when the objective is area) is 0.
 
@@ -234,7 +235,8 @@ def apply_plan(spec: RoomSpec, plan: Plan, candidates: list[Candidate]) -> RoomS
     -------
     RoomSpec -- each covered part a new surface "<surface> - <candidate>" right after its
     surface (a candidate over several surfaces makes one on each, its area spread in
-    proportion to their total areas, as the planner spreads it), with the candidate's material or alpha, the surface's face and count, and the
+    proportion to their total areas, as the planner spreads it), with the candidate's material or
+    alpha, the surface's face and count, and the
     covered area per copy; the surface keeps the rest (a surface without area, the rest of its
     face, keeps no area and so shrinks by itself; a surface covered whole is removed). Each
     candidate added as units becomes an [[objects]] entry with its count. ``[target]``, the
@@ -372,7 +374,8 @@ def work_patterns(spec: RoomSpec) -> dict[str, tuple[float, dict[str, float]]]:
 
 def convert_candidate_units(spec: RoomSpec, to: str) -> None:
     """Re-express the candidates of a spec in other units, in place: ``max_area``, ``step``,
-    ``panel`` (lengths), ``area_each`` and ``absorption`` per unit in m^2 or ft^2, and the cover cost under the
+    ``panel`` (lengths), ``area_each`` and ``absorption`` per unit in m^2 or ft^2, and the cover
+    cost under the
     key of the new units (``cost_per_m2`` or ``cost_per_ft2``, the same money per the new
     unit of area). Rounded to 4 decimals, as the interface rounds areas when it converts a
     room. ``spec.units`` is left to the caller, who converts the rest of the room.

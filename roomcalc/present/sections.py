@@ -17,8 +17,9 @@ if TYPE_CHECKING:
     from roomcalc.engine.exposure import ExposureSummary
 
 __all__ = ["window_text", "occupancy_text", "target_text", "target_dict", "exposure_text",
-           "exposure_dict", "plan_levels", "plan_totals_text", "plan_text", "plan_dict", "occupancy_dict",
-           "amount_text", "panels_of", "applied_text", "plan_markdown", "plan_csv"]
+           "exposure_dict", "plan_levels", "plan_totals_text", "plan_text", "plan_dict",
+           "occupancy_dict", "amount_text", "panels_of", "applied_text", "plan_markdown",
+           "plan_csv"]
 
 
 def window_text(lo: float, hi: float) -> str:
@@ -221,8 +222,9 @@ def applied_text(run: PlanRun) -> str:
         return ""
     names = ", ".join(f"'{n}'" for n in run.applied)
     one = len(run.applied) == 1
-    return (f"Left out, already applied to the room: {names} (the room has {'it' if one else 'them'}"
-            f" built in; un-mark applied to plan {'it' if one else 'them'} again).")
+    it = "it" if one else "them"
+    return (f"Left out, already applied to the room: {names} (the room has {it} built in; "
+            f"un-mark applied to plan {it} again).")
 
 
 def plan_totals_text(run: PlanRun, u: Units = METRIC) -> str:
@@ -238,10 +240,12 @@ def plan_totals_text(run: PlanRun, u: Units = METRIC) -> str:
 
 def plan_dict(run: PlanRun, u: Units = METRIC) -> dict:
     """The plan as JSON (SI): ``feasible``, ``items`` (``candidate``, ``surface`` or null
-    (several: "A, B"), ``surfaces`` (their names, a list; empty for units), ``area_m2`` or ``count``, ``cost``, ``panels`` for panels of a stated
-    size (``count``, ``area_each_m2``, ``width_m``, ``height_m``), ``how_much`` in words in
-    the file's units), ``applied_left_out`` (candidates applied to the room already), ``total_cost``, ``total_area_m2`` (covers only),
-    ``total_units``, ``rt60_after_s`` by ``method`` (the formula in force), and more."""
+    (several: "A, B"), ``surfaces`` (their names, a list; empty for units), ``area_m2`` or
+    ``count``, ``cost``, ``panels`` for panels of a stated size (``count``, ``area_each_m2``,
+    ``width_m``, ``height_m``), ``how_much`` in words in the file's units),
+    ``applied_left_out`` (candidates applied to the room already), ``total_cost``,
+    ``total_area_m2`` (covers only), ``total_units``, ``rt60_after_s`` by ``method`` (the
+    formula in force), and more."""
     p = run.plan
     items = []
     for it in p.items:

@@ -195,7 +195,8 @@ def make_plan(spec: RoomSpec, room: Room, result: RoomResult, catalog, criteria:
     """Run the planner on the room's ``[target]`` and ``[[candidates]]`` by the formula in
     force (``result.method``), for the room at the criterion's occupancy (``enabled``: the
     names of the candidates to use, None = all; candidates marked ``applied`` are built into
-    the room already and always left out, named in ``PlanRun.applied``). Raises RoomFileError when the target or a
+    the room already and always left out, named in ``PlanRun.applied``). Raises RoomFileError when
+    the target or a
     candidate cannot be resolved, ValueError when there is nothing to plan with.
 
     ``progress`` (called with each PlanProgress, steps counting up) and ``cancel`` (a callable

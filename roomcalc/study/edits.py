@@ -36,16 +36,16 @@ from roomcalc.engine.field import PLACEMENT_Q
 from roomcalc.io.catalog import Catalog
 from roomcalc.io.limits import RANGES
 from roomcalc.io.planning import convert_candidate_units
-from roomcalc.io.roomfile import (COVER_KEYS, UNIT_KEYS, WALL_FACES, CandidateSpec, ObjectSpec, ReceiverSpec,
-                                  RoomSpec, SourceSpec, SurfaceSpec, TargetSpec)
+from roomcalc.io.roomfile import (COVER_KEYS, UNIT_KEYS, WALL_FACES, CandidateSpec, ObjectSpec,
+                                  ReceiverSpec, RoomSpec, SourceSpec, SurfaceSpec, TargetSpec)
 from roomcalc.io.sources import (TypicalSource, source_band_power, spectrum_names,
                                  spectrum_shape)
 from roomcalc.io.units import UNITS
 from roomcalc.study.typed import parse_numbers
 
-__all__ = ["COLLECTIONS", "new_item", "add_item", "new_candidate", "set_item_fields", "rename_item", "change_bands",
-           "convert_units", "nearest_band_fill", "set_method", "set_criterion", "set_objective",
-           "set_own_rt60_limit", "parse_rt60_limit", "use_typical_source"]
+__all__ = ["COLLECTIONS", "new_item", "add_item", "new_candidate", "set_item_fields", "rename_item",
+           "change_bands", "convert_units", "nearest_band_fill", "set_method", "set_criterion",
+           "set_objective", "set_own_rt60_limit", "parse_rt60_limit", "use_typical_source"]
 
 #: The spec's lists of items, in the order the interface shows them.
 COLLECTIONS = ("surfaces", "objects", "sources", "receivers", "candidates")
@@ -87,7 +87,8 @@ NEW_DISTANCE_M = 2.0
 def new_item(spec: RoomSpec, collection: str) -> object:
     """A new row for one of the tables, valid as it stands in ``spec``, with an unused name
     ("Source 3"): a plastered 1 m^2 surface, one seated person, an 80 dB(A) pink source (at a
-    quarter of a box room's length, mid-width, ear height; the next ones beside it), a receiver (where every source has
+    quarter of a box room's length, mid-width, ear height; the next ones beside it), a receiver
+    (where every source has
     a position: mid-room at ear height, else 2 m from each source), and a treatment by
     :func:`new_candidate`. Values in the file's units."""
     items = _items(spec, collection)
@@ -328,7 +329,8 @@ def change_bands(spec: RoomSpec, bands, catalog: Catalog | None = None) -> list[
     Removed bands are dropped from every list; an added band repeats the nearest band's
     value. A catalogue material with no value at an added band is replaced by its own values
     (the nearest band repeated) so the room stays valid; the returned note (one line) names
-    those items and materials, so the user can check the values. ``bands`` equal to the default bands is stored as
+    those items and materials, so the user can check the values. ``bands`` equal to the default
+    bands is stored as
     None (the file then omits ``bands_hz``).
     """
     old = list(spec.bands)

@@ -29,8 +29,8 @@ from roomcalc.engine.planner.model import (AMOUNT_STEP, LEVEL_TOL_DB, LOW_FREQUE
 from roomcalc.engine.planner.plan import plan
 from roomcalc.engine.progress import PlanCancelled, PlanProgress, PlanWatch
 
-__all__ = ["plan", "apply_to_room", "PlanCancelled", "PlanProgress", "PlanWatch", "Candidate", "Goals", "LevelGoal", "Plan", "PlanItem",
-           "cover_surfaces", "cover_shares",
+__all__ = ["plan", "apply_to_room", "PlanCancelled", "PlanProgress", "PlanWatch", "Candidate",
+           "Goals", "LevelGoal", "Plan", "PlanItem", "cover_surfaces", "cover_shares",
            "PLAN_METHODS", "OBJECTIVES", "KINDS", "ALPHA_MAX", "sabine_required_absorption",
            "eyring_required_absorption", "LEVEL_TOL_DB", "RT_TOL_S", "MAX_CUT_ROUNDS",
            "MAX_SURROGATE_ROUNDS", "SURROGATE_MARGIN", "AMOUNT_STEP", "TIE_WEIGHT",

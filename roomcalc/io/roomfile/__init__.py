@@ -42,7 +42,8 @@ from roomcalc.io.roomfile.write import (save_spec, spec_fields_dict, spec_to_dic
 __all__ = [
     # spec
     "FORMAT_VERSION", "TOP_KEYS", "AIR_KEYS", "SHAPE_KEYS", "SURFACE_KEYS", "OBJECT_KEYS",
-    "SOURCE_KEYS", "RECEIVER_KEYS", "TARGET_KEYS", "COVER_KEYS", "UNIT_KEYS", "CANDIDATE_KEYS", "WALL_FACES",
+    "SOURCE_KEYS", "RECEIVER_KEYS", "TARGET_KEYS", "COVER_KEYS", "UNIT_KEYS", "CANDIDATE_KEYS",
+    "WALL_FACES",
     "CANDIDATE_ALPHA_MAX", "AREA_COST_KEY", "DEFAULT_PLACEMENT", "METHODS", "OBJECTIVES",
     "DEFAULT_OBJECTIVE", "LEVEL_LIMIT_MAX_DB",
     "AirSpec", "ShapeSpec", "SurfaceSpec", "ObjectSpec", "SourceSpec", "ReceiverSpec",
@@ -59,7 +60,8 @@ __all__ = [
     "read_room", "check_room", "resolve", "room_catalog", "material_values",
     "candidate_material", "material_problems", "unoccupied_values",
     # write
-    "spec_to_dict", "spec_fields_dict", "with_as_read", "spec_to_toml", "save_spec", "toml_key", "toml_value",
+    "spec_to_dict", "spec_fields_dict", "with_as_read", "spec_to_toml", "save_spec", "toml_key",
+    "toml_value",
     # keep
     "spec_to_toml_keeping", "comments_lost",
 ]

@@ -32,9 +32,9 @@ TARGET_KEYS = ("method", "objective", "currency", "criterion", "rt60_max", "rt60
 COVER_KEYS = ("surface", "walls", "alpha", "max_area", "step", "panel", "cost_per_m2",
               "cost_per_ft2")
 UNIT_KEYS = ("absorption", "max_count", "whole", "cost_each", "area_each")
-CANDIDATE_KEYS = ("name", "surface", "walls", "material", "alpha", "absorption", "max_area",
-                  "step", "panel", "cost_per_m2", "cost_per_ft2", "max_count", "whole", "cost_each", "area_each",
-                  "applied")
+CANDIDATE_KEYS = ("name", "surface", "walls", "material", "alpha", "absorption", "max_area", "step",
+                  "panel", "cost_per_m2", "cost_per_ft2", "max_count", "whole", "cost_each",
+                  "area_each", "applied")
 #: The faces of a box that a candidate with ``walls = true`` covers.
 WALL_FACES = ("front", "back", "left", "right")
 #: Largest alpha of a cover candidate: as for a surface, the catalogue's largest (test reports to

@@ -1,5 +1,6 @@
 """The main screen's edits from its tables and the room form: a typed value, a row added,
-copied, deleted or moved, a material chosen; and undo and redo. Each becomes one change of the document (so it
+copied, deleted or moved, a material chosen; and undo and redo. Each becomes one change of the
+document (so it
 can be undone) by way of the core's edit rules (``roomcalc.study.edits``).
 
 A part of ``MainScreen`` (a mixin): the screen applies the change and shows the result."""
