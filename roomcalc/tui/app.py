@@ -1,4 +1,5 @@
-"""The roomcalc terminal application. Only this module knows every screen.
+"""The roomcalc terminal application. Only this module knows every screen (keeping the recovery
+file up to date is its part in ``recovery_routes``).
 
 ``make_app(document, catalog)`` builds the app; settings come in, none are module globals.
 """
@@ -10,15 +11,15 @@ import gc
 from dataclasses import dataclass
 from pathlib import Path
 
-from textual.app import App, ScreenStackError, SystemCommand
+from textual.app import App, SystemCommand
 from textual.binding import Binding
 
 from roomcalc.io.catalog import Catalog
 from roomcalc.io.errors import RoomFileError
 from roomcalc.study import Study
 from roomcalc.tui.document import Document
-from roomcalc.tui.recovery import (RecoveryWriter, Status, discard_file, find_recoveries,
-                                   take_over)
+from roomcalc.tui.recovery import RecoveryWriter, discard_file, find_recoveries, take_over
+from roomcalc.tui.recovery_routes import RecoveryRoutes
 from roomcalc.tui.screens.dialogs import Ask, AskBox, AskText
 from roomcalc.tui.screens.file_fixes import FIX_KEYS_COMMAND, ask_key_fixes, opening_notice
 from roomcalc.tui.screens.main import MainScreen
@@ -26,7 +27,6 @@ from roomcalc.tui.screens.main import MainScreen
 RECOVERY_DELAY_S = 0.0    # the recovery file is written at once after an edit (off the main
                           # thread): a crash loses at most what was typed in the last moment
 NOT_SAVED_NOTICE_S = 30.0
-RECOVERY_FAILED_NOTICE_S = 60.0
 RESTORE_COMMAND = "Restore changes kept from before"
 SETTLE_DELAY_S = 1.0      # after start-up, the objects made so far leave the garbage collector
 
@@ -44,7 +44,7 @@ class AppConfig:
     ask_box_size: bool = False      # start by asking the size of the (new) room
 
 
-class RoomApp(App):
+class RoomApp(RecoveryRoutes, App):
     """Edit a room and watch its sound field change."""
 
     TITLE = "roomcalc"
@@ -427,65 +427,6 @@ class RoomApp(App):
             discard_file(rec)
         self.notify("Unsaved changes restored. Save to keep them.")
         self._say_problems()
-
-    def schedule_recovery(self) -> None:
-        """After an edit: keep the room's text in the recovery file, in the background, as
-        soon as the screen shows the edit (so that the writer's thread does not compete with
-        drawing it). Coalesced: only the newest request is handed over, and the writer
-        always writes the newest text it has."""
-        self._discard_approved = None
-        doc = self.main.document
-        if doc.demo:
-            return
-        self._recovery_asks += 1
-        ask, room = self._recovery_asks, doc.path
-        text = doc.text_later() if doc.modified else None      # the snapshot: taken now
-
-        def hand_over():
-            if ask != self._recovery_asks:       # a newer request (or a direct write) came
-                return
-            if text is None:
-                self.recovery.discard(room)
-            else:
-                self.recovery.keep(room, text)
-        self.call_after_refresh(hand_over)
-
-    def keep_recovery_now(self) -> bool:
-        """Bring the recovery file up to date now, waiting for the writer: the room's text if
-        it has unsaved changes, else no file. False when it could not be written anywhere
-        (the user has been told)."""
-        try:
-            doc = self.main.document
-        except ScreenStackError:                  # closing: the screens are gone
-            doc = self.document
-        self._recovery_asks += 1                  # an edit's hand-over still queued: void
-        if doc.demo:
-            return True
-        if doc.modified:
-            self.recovery.keep(doc.path, doc.text)
-        else:
-            self.recovery.discard(doc.path)
-        self.recovery.flush()
-        return self.recovery.status.kind != "failed"
-
-    def _recovery_report(self, status: Status) -> None:
-        """From the writer's thread: show a change in where (or whether) the recovery file
-        is written, at once."""
-        loop = self._loop_for_reports
-        if loop is None or loop.is_closed():
-            return
-        loop.call_soon_threadsafe(self._show_recovery_status, status)
-
-    def _show_recovery_status(self, status: Status) -> None:
-        if not self.is_running:
-            return
-        if status.kind == "failed":
-            self.notify(status.message, severity="error", timeout=RECOVERY_FAILED_NOTICE_S,
-                        markup=False)
-        elif status.kind == "fallback":
-            self.notify(status.message, severity="warning", timeout=12, markup=False)
-        else:
-            self.notify(status.message, markup=False)
 
 
 def make_app(document: Document | None = None, catalog: Catalog | None = None,

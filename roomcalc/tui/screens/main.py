@@ -4,7 +4,8 @@ strip at the bottom. It owns the document; every edit goes through it and is rec
 This module lays the screen out and routes: what a table's cells say is in
 ``roomcalc.tui.columns``, each result tab is a view widget (``widgets/views.py``) told what to
 show, the edits from the tables and the Plan tab's messages are handled in ``edit_routes`` and
-``plan_routes``, and the files (save, open, new) and help are the app's actions."""
+``plan_routes``, where the keys go in ``key_routes``, and the files (save, open, new) and
+help are the app's actions."""
 
 from __future__ import annotations
 
@@ -17,7 +18,7 @@ from textual.containers import Horizontal, Vertical
 from textual.reactive import reactive
 from textual.css.query import NoMatches
 from textual.screen import Screen
-from textual.widgets import Input, Select, Static, TabbedContent, TabPane
+from textual.widgets import Static, TabbedContent, TabPane
 
 from roomcalc.engine.analysis import RoomResult
 from roomcalc.io.catalog import Catalog
@@ -29,6 +30,7 @@ from roomcalc.study.distance import distance_picture
 from roomcalc.tui.columns import RecordColumns
 from roomcalc.tui.document import Document
 from roomcalc.tui.screens.edit_routes import EditRoutes
+from roomcalc.tui.screens.key_routes import KeyRoutes, toggle_class
 from roomcalc.tui.screens.plan_routes import PlanRoutes
 from roomcalc.tui.widgets.deferred import Deferred
 from roomcalc.tui.widgets.keystrip import KeyStrip
@@ -51,7 +53,7 @@ VIEW_IDS = {"v-reverb": "#reverb-view", "v-distance": "#distance-view",
             "v-plan": "#plan-view"}
 
 
-class MainScreen(EditRoutes, PlanRoutes, Screen):
+class MainScreen(EditRoutes, PlanRoutes, KeyRoutes, Screen):
     """Edit a room and watch what it does. ``document`` is the one piece of state; every
     change to it goes through :meth:`apply` (with undo) and then :meth:`recompute`."""
 
@@ -162,20 +164,12 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
     def on_resize(self, event) -> None:
         self._layout_for(event.size.width)
 
-    def on_descendant_focus(self, event) -> None:
-        # On a small screen (one column) the half the user works in gets more of the height:
-        # the Plan tab's controls and list do not fit a quarter of 80x24.
-        right = self._opt("#right")
-        if right is not None:
-            _toggle(self.query_one("#body"), right in event.widget.ancestors_with_self,
-                    "right-focus")
-
     def on_unmount(self) -> None:
         self.stop_plan(None, notify=False)    # closing: the planner stops at its next step
 
     def _layout_for(self, width: int) -> None:
         narrow = width < 110
-        _toggle(self, narrow, "narrow")
+        toggle_class(self, narrow, "narrow")
         # The room's six tabs with their digits need about 70 columns: side by side, a
         # narrower left half shows the titles alone (1-6 still switch; the help says so), so
         # that the sixth, Treatments, is not hidden off the edge.
@@ -297,7 +291,7 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
         self.columns.result, self.columns.stale = res, self.stale   # what cells are made of
         self.query_one(FindingsStrip).show(res, self.problems, self.stale and res is not None)
         self._show_table_problems()
-        _toggle(self.query_one("#right"), self.stale, "stale")   # a small subtree to restyle
+        toggle_class(self.query_one("#right"), self.stale, "stale")   # a small subtree to restyle
         tabs = self.query_one("#view", TabbedContent)
         for pane_id, title in VIEW_TITLES.items():
             tab = tabs.get_tab(pane_id)
@@ -462,64 +456,6 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
                     if self.reverberant_model == "barron-lee" else "diffuse field, 4/R"))
         self.recompute()
 
-    def action_edit_tab(self, tab: str) -> None:
-        edit = self.query_one("#edit", TabbedContent)
-        edit.active = tab
-        if tab != "room":   # the table of the new tab takes the keys (the old one is hidden)
-            self.call_after_refresh(self.query_one(f"#t-{tab} #table").focus)
-        else:               # its tab bar: a digit typed next switches tabs, not into a field
-            self.call_after_refresh(edit.query_one("ContentTabs").focus)
-
-    def _field_focused(self):
-        """The focused text field or drop-down of this screen (None when the focus is on a
-        table, a tab bar or a button)."""
-        focused = self.focused
-        return focused if isinstance(focused, (Input, Select)) else None
-
-    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
-        if action == "leave_field":
-            return self._field_focused() is not None
-        if action == "plan_run":
-            view = self._opt("#view")           # (checked before the screen is composed too)
-            return view is not None and view.active == "v-plan" \
-                and self._opt("#plan-view") is not None
-        if action == "enter_tab":
-            return self.focused is not None and type(self.focused).__name__ == "ContentTabs"
-        return True
-
-    def action_leave_field(self) -> None:
-        """Escape in a field: the focus goes to the bar of the tabs the field is in."""
-        field = self._field_focused()
-        tabs = next((a for a in field.ancestors if isinstance(a, TabbedContent)), None) \
-            if field is not None else None
-        if tabs is not None:
-            tabs.query_one("ContentTabs").focus()
-
-    def action_plan_run(self) -> None:
-        self.query_one("#plan-view").action_run()
-
-    def action_enter_tab(self) -> None:
-        """Down on a tab bar: the focus goes to the first thing in the tab shown."""
-        self.focus_next()
-
-    def action_view_tab(self, tab: str) -> None:
-        view = self.query_one("#view", TabbedContent)
-        focused = self.focused
-        if tab != view.active and focused is not None and view in focused.ancestors:
-            # The focus is in the tab being left (the Plan tab's list): a TabbedContent shows
-            # the tab that holds the focus, so it would stay. The keys go to the room's table.
-            edit = self.query_one("#edit", TabbedContent).active
-            table = self._opt(f"#t-{edit} #table") if edit != "room" else None
-            self.set_focus(table)
-        view.active = tab
-        if tab == "v-plan":         # its keys (r, Space) work where the focus is
-
-            def focus():
-                grid = self._opt("#plan-candidates")
-                if grid is not None:
-                    grid.focus()
-            self.call_after_refresh(focus)
-
     def replace_document(self, doc: Document) -> None:
         self.stop_plan("Plan stopped: another room was opened.", notify=False)
         self.document = doc
@@ -528,8 +464,3 @@ class MainScreen(EditRoutes, PlanRoutes, Screen):
         self._refresh_all()
         self.recompute()
 
-
-def _toggle(widget, state: bool, name: str) -> None:
-    """Add or remove a class only when it changes (a change restyles the whole subtree)."""
-    if widget.has_class(name) != state:
-        widget.set_class(state, name)

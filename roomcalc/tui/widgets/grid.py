@@ -15,7 +15,6 @@ on the cell already under the cursor selects it.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import ClassVar
 
 from rich.cells import cell_len
@@ -29,25 +28,8 @@ from textual.message import Message
 from textual.scroll_view import ScrollView
 from textual.strip import Strip
 
-PAD = 1                                 # blank columns either side of a cell
-
-
-@dataclass
-class GridColumn:
-    key: str
-    label: str
-    width: int | None = None            # fixed content width; None = as wide as the widest cell
-    justify: str = "left"               # or "right"
-    content_width: int = 0              # the width used now
-    shrink_to: int | None = None        # text that may be cut (with an ellipsis) to this width
-    #                                     so that the grid's first columns fit its view
-    pad: tuple[int, int] = (PAD, PAD)   # blank columns left and right of the cell
-
-    @property
-    def outer_width(self) -> int:
-        """The columns the cell takes on screen, its blanks included."""
-        return self.content_width + self.pad[0] + self.pad[1]
-
+from roomcalc.tui.widgets.grid_columns import (PAD, GridColumn, cell_texts, column_widths,
+                                               fit_widths, measure_row)
 
 class CellGrid(ScrollView, can_focus=True):
     """Rows of cells under a fixed header line, with a cell or row cursor."""
@@ -349,29 +331,14 @@ class CellGrid(ScrollView, can_focus=True):
         measured = [self._widths.get(v) for v in self._versions]
         for i, m in enumerate(measured):
             if m is None:
-                row = self._rows[i]
-                # A heading row's label runs on over its empty cells: it widens no column.
-                m = (0,) * len(row) if self.headings and len(row) > 1 and not any(row[1:]) \
-                    else tuple(cell_len(c) for c in row)
-                self._widths[self._versions[i]] = m
+                m = self._widths[self._versions[i]] = measure_row(self._rows[i], self.headings)
                 measured[i] = m
-        widths = []
-        for j, col in enumerate(self.columns.values()):
-            if col.width is not None:
-                w = col.width
-            else:
-                # A column narrows to its longest cell when cells are edited in place; when
-                # rows are added or removed it only grows (until it is cleared), so that
-                # copying a row and deleting it again does not redraw every row twice.
-                w = cell_len(col.label) if keep_narrow else max(col.content_width,
-                                                                 cell_len(col.label))
-                for m in measured:
-                    if j < len(m) and m[j] > w:
-                        w = m[j]
-            widths.append(w)
+        cols = list(self.columns.values())
+        widths = column_widths(cols, measured, keep_narrow)
         label_w = (max((cell_len(x) for x in self._labels), default=0) + 2 * PAD
                    if self.show_row_labels and any(self._labels) else 0)
-        self._fit(widths, label_w)
+        view = self.size.width - (self.scrollbar_size_vertical if self.is_mounted else 0)
+        fit_widths(cols, widths, label_w, view, self.keep_in_view)
         if widths != [c.content_width for c in self.columns.values()] \
                 or label_w != self._label_width:
             for col, w in zip(self.columns.values(), widths):
@@ -399,24 +366,6 @@ class CellGrid(ScrollView, can_focus=True):
                 if self.is_mounted and self.container_size:
                     self._scroll_update(size)   # the scrollbars now, in the same frame
         self.refresh()
-
-    def _fit(self, widths: list[int], label_w: int) -> None:
-        """Narrow the cuttable columns among the first ``keep_in_view`` (the widest first, to
-        their ``shrink_to``) until those columns fit the view; the rest scroll sideways."""
-        view = self.size.width - (self.scrollbar_size_vertical if self.is_mounted else 0)
-        k = min(self.keep_in_view, len(widths))
-        if not k or view <= 0:
-            return
-        cols = list(self.columns.values())
-        excess = label_w + sum(widths[:k]) + sum(sum(c.pad) for c in cols[:k]) - view
-        while excess > 0:
-            cuttable = [j for j in range(k) if cols[j].shrink_to is not None
-                        and widths[j] > cols[j].shrink_to]
-            if not cuttable:
-                return
-            j = max(cuttable, key=lambda i: widths[i])
-            widths[j] -= 1
-            excess -= 1
 
     def on_resize(self, event: events.Resize) -> None:
         if self.keep_in_view:
@@ -486,28 +435,10 @@ class CellGrid(ScrollView, can_focus=True):
     def _cell_pieces(self, cells, row_style: str, cursor: int | None) -> list[tuple[str, Style]]:
         """The cells of a row (or the header) as (text, own style) pieces, padded to their
         columns; the row's background goes under them when the line is drawn."""
-        pieces: list[tuple[str, Style]] = []
-        cursor_style = self._style("cell-grid--cursor")
         own = self._parse(row_style)
-        cols = list(self.columns.values())
-        if self.headings and len(cols) > 1 and cells \
-                and cell_len(cells[0]) > cols[0].content_width and not any(cells[1:]):
-            # A heading row (a label, no other cells): its label runs on over the empty cells.
-            w = sum(c.outer_width for c in cols) - cols[0].pad[0] - cols[-1].pad[1]
-            text = cells[0] if cell_len(cells[0]) <= w else cells[0][:max(0, w - 1)] + "\u2026"
-            style = own + cursor_style if cursor is not None else own
-            return [(" " * cols[0].pad[0] + text.ljust(w) + " " * cols[-1].pad[1], style)]
-        for j, col in enumerate(self.columns.values()):
-            text = cells[j] if j < len(cells) else ""
-            w = col.content_width
-            n = cell_len(text)
-            if n > w:
-                text = text[:max(0, w - 1)] + "\u2026" if w > 1 else text[:w]
-                n = cell_len(text)
-            text = " " * (w - n) + text if col.justify == "right" else text + " " * (w - n)
-            style = own + cursor_style if cursor is not None and cursor in (j, -1) else own
-            pieces.append((" " * col.pad[0] + text + " " * col.pad[1], style))
-        return pieces
+        on = own + self._style("cell-grid--cursor")
+        return [(text, on if at_cursor else own) for text, at_cursor in
+                cell_texts(list(self.columns.values()), cells, cursor, self.headings)]
 
     def _row_segments(self, index: int, base: Style) -> tuple[list[Segment], int]:
         """The row's cells as segments over ``base`` (the row's background), and their width.
