@@ -276,6 +276,49 @@ def test_an_edit_survives_a_kill_and_not_now_keeps_it(tmp_path, monkeypatch):
         subprocess.run(tmux + ["kill-server"], capture_output=True, timeout=10)
 
 
+class _Terminal:
+    """A detached tmux session (its own socket, session "rc") running one shell command, kept
+    on screen when it ends; read with capture-pane, driven with send-keys."""
+
+    def __init__(self, cwd, inner: str, size=(120, 40)) -> None:
+        self.tmux = [TMUX, "-L", f"roomcalc-test-{uuid.uuid4().hex[:12]}", "-f", os.devnull]
+        subprocess.run(self.tmux + ["new-session", "-d", "-s", "rc", "-x", str(size[0]),
+                                    "-y", str(size[1]), "sh", "-c", inner, ";", "set-option",
+                                    "-t", "rc", "remain-on-exit", "on"],
+                       check=True, timeout=10, cwd=cwd, stdin=subprocess.DEVNULL)
+
+    def capture(self, history: bool = False) -> str:
+        # With the history (-S -): a program that ends at once may print before the pane
+        # has its final size, and its first lines scroll off the visible part.
+        extra = ["-J", "-S", "-"] if history else []
+        return subprocess.run(self.tmux + ["capture-pane", "-p", *extra, "-t", "rc"],
+                              capture_output=True, text=True, timeout=10).stdout
+
+    def keys(self, *k) -> None:
+        subprocess.run(self.tmux + ["send-keys", "-t", "rc", *k], check=True, timeout=10)
+
+    def press(self, key, until, tries: int = 3, seconds: float = 4.0) -> str:
+        """A key, pressed again if the screen has not shown its effect: a key that arrives
+        while the screen is busy can be missed by a real terminal's reader."""
+        screen = ""
+        for _ in range(tries):
+            self.keys(key)
+            screen = _wait(self.capture, until, seconds)
+            if until(screen):
+                break
+        return screen
+
+    def close(self) -> None:
+        subprocess.run(self.tmux + ["kill-server"], capture_output=True, timeout=10)
+
+
+def _roomcalc(data, *args) -> str:
+    """The shell command that runs roomcalc with its data folder (and the terminal's own
+    size, not the test runner's)."""
+    return (f"env -u COLUMNS -u LINES ROOMCALC_DATA_DIR={shlex.quote(str(data))} "
+            f"{' '.join(shlex.quote(c) for c in [*_command(), *map(str, args)])}")
+
+
 @pytest.mark.skipif(TMUX is None, reason="tmux is not installed")
 def test_roomcalc_open_a_folder_in_a_real_terminal(tmp_path):
     """`roomcalc open FOLDER` in a real terminal: the message names the folder, exit 2, no
@@ -283,33 +326,19 @@ def test_roomcalc_open_a_folder_in_a_real_terminal(tmp_path):
     folder = tmp_path / "rooms"
     folder.mkdir()
     exit_file = tmp_path / "exit.txt"
-    sock = f"roomcalc-test-{uuid.uuid4().hex[:12]}"
-    tmux = [TMUX, "-L", sock, "-f", os.devnull]
-    inner = (f"env -u COLUMNS -u LINES ROOMCALC_DATA_DIR={shlex.quote(str(tmp_path / 'data'))} "
-             f"{' '.join(shlex.quote(c) for c in _command())} open {shlex.quote(str(folder))}; "
-             f"echo EXIT=$? > {shlex.quote(str(exit_file))}")
-
-    def capture() -> str:
-        # With the history (-S -): a program that ends at once may print before the pane
-        # has its final size, and its first lines scroll off the visible part.
-        return subprocess.run(tmux + ["capture-pane", "-p", "-J", "-S", "-", "-t", "rc"],
-                              capture_output=True, text=True, timeout=10).stdout
-
-    subprocess.run(tmux + ["new-session", "-d", "-s", "rc", "-x", "120", "-y", "40",
-                           "sh", "-c", inner, ";", "set-option", "-t", "rc",
-                           "remain-on-exit", "on"], check=True, timeout=10, cwd=tmp_path,
-                   stdin=subprocess.DEVNULL)
+    term = _Terminal(tmp_path, f"{_roomcalc(tmp_path / 'data', 'open', folder)}; "
+                               f"echo EXIT=$? > {shlex.quote(str(exit_file))}")
     try:
         deadline = time.monotonic() + 15
         while time.monotonic() < deadline and not exit_file.exists():
             time.sleep(0.2)
-        assert exit_file.exists(), capture()
+        assert exit_file.exists(), term.capture(history=True)
         assert exit_file.read_text().strip() == "EXIT=2"
-        screen = capture()
+        screen = term.capture(history=True)
         assert f"{folder}: cannot read it: it is a folder" in screen, screen
         assert "Traceback" not in screen and "Error" not in screen, screen
     finally:
-        subprocess.run(tmux + ["kill-server"], capture_output=True, timeout=10)
+        term.close()
 
 
 @pytest.mark.skipif(TMUX is None, reason="tmux is not installed")
@@ -319,56 +348,28 @@ def test_help_scrolls_to_its_last_section_at_80x24(tmp_path):
     PageDown the section explaining the numbers; Escape closes it."""
     room = tmp_path / "workshop.toml"
     shutil.copyfile(EXAMPLES / "workshop.toml", room)
-    data = tmp_path / "data"
-    sock = f"roomcalc-test-{uuid.uuid4().hex[:12]}"
-    tmux = [TMUX, "-L", sock, "-f", os.devnull]
-    inner = (f"env -u COLUMNS -u LINES ROOMCALC_DATA_DIR={shlex.quote(str(data))} "
-             f"{' '.join(shlex.quote(c) for c in _command())} open {shlex.quote(str(room))}")
-
-    def capture() -> str:
-        return subprocess.run(tmux + ["capture-pane", "-p", "-t", "rc"], capture_output=True,
-                              text=True, timeout=10).stdout
-
-    def keys(*k):
-        subprocess.run(tmux + ["send-keys", "-t", "rc", *k], check=True, timeout=10)
-
-    subprocess.run(tmux + ["new-session", "-d", "-s", "rc", "-x", "80", "-y", "24",
-                           "sh", "-c", inner, ";", "set-option", "-t", "rc",
-                           "remain-on-exit", "on"], check=True, timeout=10, cwd=tmp_path,
-                   stdin=subprocess.DEVNULL)
+    term = _Terminal(tmp_path, _roomcalc(tmp_path / "data", "open", room), size=(80, 24))
     try:
-        screen = _wait(capture, lambda s: "Reverberation" in s or "Sabine" in s)
+        screen = _wait(term.capture, lambda s: "Reverberation" in s or "Sabine" in s)
         assert "Reverberation" in screen or "Sabine" in screen, screen
-
-        def press(key, until, tries=3, seconds=4.0):
-            """A key, pressed again if the screen has not shown its effect: a key that
-            arrives while the screen is busy can be missed by a real terminal's reader."""
-            screen = ""
-            for _ in range(tries):
-                keys(key)
-                screen = _wait(capture, until, seconds)
-                if until(screen):
-                    break
-            return screen
-
-        screen = press("F1", lambda s: "keys and numbers" in s)
+        screen = term.press("F1", lambda s: "keys and numbers" in s)
         assert "keys and numbers" in screen, screen
         assert "Hearing and safety" not in screen         # below the fold at first
         # (the scroll is animated: wait for its end, the closing line, not just the heading)
-        screen = press("End", lambda s: "Hearing and safety" in s
-                       and "Press Escape to close" in s)
+        screen = term.press("End", lambda s: "Hearing and safety" in s
+                            and "Press Escape to close" in s)
         assert "Hearing and safety" in screen and "Press Escape to close" in screen, screen
         assert "keys and numbers" not in screen
-        screen = press("Home", lambda s: "keys and numbers" in s
-                       and "Hearing and safety" not in s)
+        screen = term.press("Home", lambda s: "keys and numbers" in s
+                            and "Hearing and safety" not in s)
         assert "keys and numbers" in screen and "Hearing and safety" not in screen, screen
-        screen = press("PageDown", lambda s: "The numbers" in s, tries=4, seconds=2.0)
+        screen = term.press("PageDown", lambda s: "The numbers" in s, tries=4, seconds=2.0)
         assert "The numbers" in screen, screen
-        keys("Escape")
-        screen = _wait(capture, lambda s: "keys and numbers" not in s)
+        term.keys("Escape")
+        screen = _wait(term.capture, lambda s: "keys and numbers" not in s)
         assert "keys and numbers" not in screen and "Traceback" not in screen, screen
     finally:
-        subprocess.run(tmux + ["kill-server"], capture_output=True, timeout=10)
+        term.close()
 
 
 @pytest.mark.skipif(TMUX is None, reason="tmux is not installed")
@@ -378,35 +379,15 @@ def test_view_keys_after_the_plan_and_a_digit_in_a_field_in_a_real_terminal(tmp_
     switch tabs); Escape leaves the field, and then 2 shows the Surfaces table."""
     room = tmp_path / "workshop.toml"
     shutil.copyfile(EXAMPLES / "workshop.toml", room)
-    sock = f"roomcalc-test-{uuid.uuid4().hex[:12]}"
-    tmux = [TMUX, "-L", sock, "-f", os.devnull]
-    inner = (f"env -u COLUMNS -u LINES ROOMCALC_DATA_DIR={shlex.quote(str(tmp_path / 'data'))} "
-             f"{' '.join(shlex.quote(c) for c in _command())} open {shlex.quote(str(room))}")
-
-    def capture() -> str:
-        return subprocess.run(tmux + ["capture-pane", "-p", "-t", "rc"], capture_output=True,
-                              text=True, timeout=10).stdout
-
-    def press(key, until, tries=3, seconds=4.0):
-        """A key, pressed again if the screen has not shown its effect (a real terminal's
-        reader can miss a key that arrives while the screen is busy)."""
-        screen = ""
-        for _ in range(tries):
-            subprocess.run(tmux + ["send-keys", "-t", "rc", key], check=True, timeout=10)
-            screen = _wait(capture, until, seconds)
-            if until(screen):
-                break
-        return screen
+    term = _Terminal(tmp_path, _roomcalc(tmp_path / "data", "open", room))
+    press = term.press
 
     def right(screen):
-        return "\n".join(line.split("│", 1)[1] for line in screen.splitlines() if "│" in line)
+        return "\n".join(line.split("\u2502", 1)[1] for line in screen.splitlines()
+                         if "\u2502" in line)
 
-    subprocess.run(tmux + ["new-session", "-d", "-s", "rc", "-x", "120", "-y", "40",
-                           "sh", "-c", inner, ";", "set-option", "-t", "rc",
-                           "remain-on-exit", "on"], check=True, timeout=10, cwd=tmp_path,
-                   stdin=subprocess.DEVNULL)
     try:
-        screen = _wait(capture, lambda s: "Sabine" in s)
+        screen = _wait(term.capture, lambda s: "Sabine" in s)
         assert "Sabine" in screen, screen
         # (the plan view's own keys on the key line tell it is shown, whatever it scrolled to)
         screen = press("F9", lambda s: "Use or not" in s)
@@ -431,4 +412,4 @@ def test_view_keys_after_the_plan_and_a_digit_in_a_field_in_a_real_terminal(tmp_
         # The title took one "2", not two.
         assert titled(screen) and not re.match(r" roomcalc - .*22  -  ", screen.splitlines()[0])
     finally:
-        subprocess.run(tmux + ["kill-server"], capture_output=True, timeout=10)
+        term.close()
