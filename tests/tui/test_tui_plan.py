@@ -78,20 +78,30 @@ async def _planned(pilot, timeout_s: float = 30.0):
     raise AssertionError("the plan did not finish")
 
 
-async def test_plan_view_plans_applies_and_undoes(tmp_path, catalog):
+def _plan_room_app(tmp_path, catalog):
+    """The planning room written to a file, and an app on it (no recovery writes)."""
     path = tmp_path / "plan-room.toml"
     path.write_text(ROOM, encoding="utf-8")
-    app = make_app(Document.open(path), catalog, AppConfig(offer_recovery=False,
-                                                           recovery_delay_s=3600))
+    return path, make_app(Document.open(path), catalog,
+                          AppConfig(offer_recovery=False, recovery_delay_s=3600))
+
+
+async def _open_plan_view(pilot) -> None:
+    """F9, and wait until the Plan tab is mounted."""
+    await pilot.press("f9")
+    for _ in range(20):
+        await pilot.pause()
+        if pilot.app.screen.query("#plan-view"):
+            return
+
+
+async def test_plan_view_plans_applies_and_undoes(tmp_path, catalog):
+    path, app = _plan_room_app(tmp_path, catalog)
     async with app.run_test(size=SIZE) as pilot:
         await _ready(pilot)
         screen = app.screen
         doc = screen.document
-        await pilot.press("f9")
-        for _ in range(20):
-            await pilot.pause()
-            if screen.query("#plan-view"):
-                break
+        await _open_plan_view(pilot)
         # Opening the view is not an edit, and it shows the file's target.
         assert not doc.modified and not doc.undo_stack
         assert screen.query_one("#plan-criterion", Select).value == "own"
@@ -168,19 +178,12 @@ async def test_the_applied_line_goes_when_the_room_changes_or_is_saved(tmp_path,
     Ctrl+Z, Ctrl+Y, an edit and a save each replace it."""
     from roomcalc.tui.screens.plan_routes import AFTER_APPLIED, APPLIED
 
-    path = tmp_path / "plan-room.toml"
-    path.write_text(ROOM, encoding="utf-8")
-    app = make_app(Document.open(path), catalog, AppConfig(offer_recovery=False,
-                                                           recovery_delay_s=3600))
+    path, app = _plan_room_app(tmp_path, catalog)
     async with app.run_test(size=SIZE) as pilot:
         await _ready(pilot)
         screen = app.screen
         doc = screen.document
-        await pilot.press("f9")
-        for _ in range(20):
-            await pilot.pause()
-            if screen.query("#plan-view"):
-                break
+        await _open_plan_view(pilot)
 
         def line() -> str:
             return str(screen.query_one("#plan-result").content)
